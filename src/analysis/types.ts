@@ -1,0 +1,34 @@
+import type { Diagnostic } from "../diagnostics/issue.js";
+import type { EquilibriumResult } from "./equilibria.js";
+
+export type { EquilibriumResult } from "./equilibria.js";
+export type { StabilityResult, EquilibriumType, Complex } from "./stability.js";
+
+export interface AssumptionResult {
+  index: number;
+  text: string;
+  condition: string | null;
+  tex: string | null;
+  /** At the nominal parameter values: lhs and rhs of the condition, and whether it holds. */
+  lhs: number | null;
+  rhs: number | null;
+  holds: boolean | null;
+}
+
+/** Everything keel computes from one spec; serialised as results.json. */
+export interface Results {
+  keel: string;
+  spec: { id: string; sha256: string };
+  model: {
+    states: string[];
+    parameters: Record<string, number>;
+    window: Record<string, [number, number]>;
+    equations: { state: string; text: string; tex: string }[];
+    jacobian: { text: string; tex: string }[][];
+  };
+  equilibria: EquilibriumResult[];
+  assumptions: AssumptionResult[];
+  diagnostics: Diagnostic[];
+  /** Settings every pass used, so the dossier's methods section and `verify` can restate them. */
+  settings: Record<string, unknown>;
+}

@@ -1,0 +1,20 @@
+import { formatPath, type SpecIssue } from "./issue.js";
+
+/** Renders one issue for a terminal: location first, then the message, then a caret line. */
+export function formatIssue(issue: SpecIssue, file?: string): string {
+  const where = `${file ? file + ": " : ""}at ${formatPath(issue.path)}`;
+  const lines = [`error ${where}: ${issue.message}`];
+  if (issue.source) {
+    const { text, column, length = 1 } = issue.source;
+    lines.push(`    ${text}`);
+    lines.push(`    ${" ".repeat(Math.max(0, column - 1))}${"^".repeat(Math.max(1, length))}`);
+  }
+  return lines.join("\n");
+}
+
+export function formatIssues(issues: SpecIssue[], file?: string): string {
+  const shown = issues.map((i) => formatIssue(i, file));
+  const n = issues.length;
+  shown.push(`${n} error${n === 1 ? "" : "s"} in the spec; nothing was written.`);
+  return shown.join("\n");
+}

@@ -1,0 +1,46 @@
+/** Every user-facing message, as a function, so wording lives in one place. */
+export const messages = {
+  jsonSyntax: (detail: string, line: number, column: number) =>
+    `the file is not valid JSON (line ${line}, column ${column}): ${detail}`,
+  fileUnreadable: (file: string, reason: string) => `cannot read ${file}: ${reason}`,
+  duplicateName: (name: string, first: string) => `the name '${name}' is already used at ${first}`,
+  invalidIdentifier: (name: string) =>
+    `'${name}' is not a valid name: use a letter followed by letters, digits or '_'`,
+  reservedName: (name: string) =>
+    `'${name}' is reserved (a keyword, constant or function name); choose another name`,
+  missingEquation: (state: string) => `state '${state}' has no equation: add equations.${state}`,
+  equationForUnknownState: (key: string) => `'${key}' is not a declared state, so it cannot have an equation`,
+  windowUnknownState: (key: string) => `'${key}' is not a declared state`,
+  windowMissingState: (state: string) => `the window gives no interval for state '${state}'`,
+  intervalOrder: (lo: number, hi: number) => `the interval [${lo}, ${hi}] must have lo < hi`,
+  windowOutsideBounds: (state: string, lo: number, hi: number, min: number, max: number) =>
+    `the window [${lo}, ${hi}] for '${state}' lies outside the state's bounds [${min}, ${max}]`,
+  initialMissing: (state: string) => `the initial state gives no value for '${state}'`,
+  initialUnknown: (key: string) => `'${key}' is not a declared state`,
+  initialOutsideWindow: (state: string, value: number, lo: number, hi: number) =>
+    `initial ${state} = ${value} lies outside the window [${lo}, ${hi}]`,
+  rangeExcludesValue: (value: number, lo: number, hi: number) =>
+    `the range [${lo}, ${hi}] does not contain the value ${value}`,
+  planarOnly: (n: number) => `keel analyses planar models: exactly 2 states are needed, found ${n}`,
+  // expression errors
+  unexpectedCharacter: (ch: string) => `unexpected character '${ch}'`,
+  unknownName: (name: string, kinds: string) => `unknown name '${name}': declare it as ${kinds}`,
+  timeNotAllowed: () => `'t' is not a declared name: equations must be autonomous (time may not appear)`,
+  functionNotAllowed: (name: string, allowed: readonly string[]) =>
+    `'${name}' is not an accepted function; accepted: ${allowed.join(", ")}`,
+  nameIsNotFunction: (name: string) => `'${name}' is a name, not a function; it cannot be called`,
+  functionNeedsCall: (name: string) => `'${name}' is a function: call it with arguments, e.g. ${name}(x)`,
+  wrongArity: (name: string, expected: string, got: number) =>
+    `${name}() takes ${expected}, given ${got}`,
+  implicitMultiplication: () => `a number, name or ')' is followed directly by a name or '(': write '*' for multiplication`,
+  syntax: (detail: string) => `cannot read the expression: ${detail}`,
+  emptyExpression: () => `the expression is empty`,
+  stateInCondition: (name: string) =>
+    `'${name}' is a state; an assumption's condition relates parameters only`,
+  conditionNeedsComparison: () =>
+    `a condition must compare two expressions with one of < <= > >=, e.g. 'K2 < r1/a12'`,
+  // CLI
+  usage: (detail: string) => `usage error: ${detail}`,
+  internal: (detail: string) =>
+    `internal error (please report it with the spec that caused it): ${detail}`,
+} as const;

@@ -1,0 +1,102 @@
+import type { MathNode } from "mathjs";
+
+/**
+ * JavaScript source from a whitelisted (internal-symbol) tree. Only node kinds produced by the
+ * checked parser or by differentiation reach here; anything else is a bug and throws.
+ * States read from locals s0, s1; parameters are either literals (bound) or p[j] (parametric).
+ */
+const FUNCTIONS: Record<string, string> = {
+  exp: "Math.exp", log: "Math.log", sqrt: "Math.sqrt", abs: "Math.abs", min: "Math.min", max: "Math.max",
+  sin: "Math.sin", cos: "Math.cos", tan: "Math.tan", tanh: "Math.tanh", cosh: "Math.cosh", sinh: "Math.sinh",
+  sign: "Math.sign", pow: "Math.pow",
+};
+
+export interface CodegenOptions {
+  /** Parameter values to inline as literals; when absent, parameters read p[j]. */
+  parameterValues?: readonly number[];
+}
+
+export function literal(v: number): string {
+  if (!Number.isFinite(v)) throw new Error(`non-finite literal ${v}`);
+  const s = String(v);
+  return v < 0 || Object.is(v, -0) ? `(${s})` : s;
+}
+
+/** Integer powers up to this order become multiplications: V8's Math.pow costs several multiplies. */
+const MAX_UNROLLED_POWER = 4;
+
+export function emitExpression(node: MathNode, options: CodegenOptions = {}): string {
+  const emit = (m: MathNode): string => {
+    const n = m as any;
+    switch (n.type) {
+      case "ConstantNode":
+        return literal(n.value as number);
+      case "SymbolNode": {
+        const name = n.name as string;
+        const match = /^([SP])(\d+)$/.exec(name);
+        if (!match) throw new Error(`unexpected symbol ${name}`);
+        const index = Number(match[2]);
+        if (match[1] === "S") return `s${index}`;
+        return options.parameterValues ? literal(options.parameterValues[index]) : `p[${index}]`;
+      }
+      case "ParenthesisNode":
+        return emit(n.content);
+      case "OperatorNode": {
+        const args = (n.args as MathNode[]).map(emit);
+        switch (n.fn) {
+          case "add": return `(${args.join(" + ")})`;
+          case "subtract": return `(${args[0]} - ${args[1]})`;
+          case "multiply": return `(${args.join(" * ")})`;
+          case "divide": return `(${args[0]} / ${args[1]})`;
+          case "unaryMinus": return `(-${args[0]})`;
+          case "unaryPlus": return args[0];
+          case "pow": return emitPow(n.args[0], n.args[1], emit);
+        }
+        throw new Error(`unexpected operator ${n.fn}`);
+      }
+      case "FunctionNode": {
+        const name = n.fn.name as string;
+        const args = (n.args as MathNode[]).map(emit);
+        if (name === "pow") return emitPow(n.args[0], n.args[1], emit);
+        if (name === "sech") return `(1 / Math.cosh(${args[0]}))`;
+        if (name === "sec") return `(1 / Math.cos(${args[0]}))`;
+        if (name === "csc") return `(1 / Math.sin(${args[0]}))`;
+        if (name === "ifle") return `(${args[0]} <= ${args[1]} ? ${args[2]} : ${args[3]})`;
+        const fn = FUNCTIONS[name];
+        if (!fn) throw new Error(`unexpected function ${name}`);
+        return `${fn}(${args.join(", ")})`;
+      }
+    }
+    throw new Error(`unexpected node ${n.type}`);
+  };
+  return emit(node);
+}
+
+function constantValue(node: MathNode): number | null {
+  const n = node as any;
+  if (n.type === "ConstantNode") return n.value as number;
+  if (n.type === "ParenthesisNode") return constantValue(n.content);
+  if (n.type === "OperatorNode" && n.fn === "unaryMinus") {
+    const v = constantValue(n.args[0]);
+    return v === null ? null : -v;
+  }
+  return null;
+}
+
+function emitPow(base: MathNode, exponent: MathNode, emit: (m: MathNode) => string): string {
+  const k = constantValue(exponent);
+  const b = emit(base);
+  if (k !== null && Number.isInteger(k) && Math.abs(k) <= MAX_UNROLLED_POWER && k !== 0) {
+    const product = Math.abs(k) === 1 ? b : `pw${Math.abs(k)}(${b})`;
+    return k < 0 ? `(1 / ${product})` : product;
+  }
+  if (k === 0.5) return `Math.sqrt(${b})`;
+  return `Math.pow(${b}, ${emit(exponent)})`;
+}
+
+/** Helpers the generated code may call; small enough for V8 to inline. */
+export const PRELUDE = [
+  "const pw2 = (v) => v * v;",
+  "const pw3 = (v) => v * v * v;",
+  "const pw4 = (v) => { const q = v * v; return q * q; };",
+].join("\n");

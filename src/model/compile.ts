@@ -1,0 +1,114 @@
+import type { MathNode } from "mathjs";
+import type { Parsed, SpecIssue } from "../diagnostics/issue.js";
+import type { NormalizedSpec } from "../spec/types.js";
+import { buildNameTable, parseCondition, parseExpression } from "./expressions.js";
+import { differentiate } from "./derivatives.js";
+import { emitExpression, PRELUDE, type CodegenOptions } from "./codegen.js";
+import { expressionToTex, expressionToText, nameToTex } from "./tex.js";
+import type { CompiledCondition, CompiledExpression, GeneratedSource, Model, ParametricRhsFunction, RhsFunction } from "./types.js";
+
+const COMPARISON_TEX = { "<": "<", "<=": "\\le", ">": ">", ">=": "\\ge" } as const;
+
+function body(nodes: MathNode[], options: CodegenOptions): string {
+  const reads = "const s0 = y[0], s1 = y[1];";
+  const writes = nodes.map((node, k) => `out[${k}] = ${emitExpression(node, options)};`);
+  return [reads, ...writes].join("\n");
+}
+
+/** Builds a function from generated source. Source comes only from whitelisted trees, never user text. */
+function instantiate<F>(params: string[], source: string): F {
+  // eslint-disable-next-line @typescript-eslint/no-implied-eval
+  return new Function(`${PRELUDE}\nreturn function (${params.join(", ")}) {\n${source}\n};`)() as F;
+}
+
+export function instantiateRhs(source: string): RhsFunction {
+  return instantiate<RhsFunction>(["y", "out"], source);
+}
+
+export function instantiateParametric(source: string): ParametricRhsFunction {
+  return instantiate<ParametricRhsFunction>(["y", "p", "out"], source);
+}
+
+/** Spec → Model: parse, whitelist, differentiate, generate code, typeset. Collects every issue. */
+export function compileModel(spec: NormalizedSpec): Parsed<Model> {
+  const stateNames = spec.states.map((s) => s.name);
+  const parameterNames = spec.parameters.map((p) => p.name);
+  const names = buildNameTable(stateNames, parameterNames);
+  const issues: SpecIssue[] = [];
+  const trees: MathNode[] = [];
+  for (const state of stateNames) {
+    const parsed = parseExpression(spec.equations[state], ["equations", state], names);
+    if (parsed.ok) trees.push(parsed.node);
+    else issues.push(parsed.issue);
+  }
+  const parsedConditions: { index: number; text: string; result: ReturnType<typeof parseCondition> }[] = [];
+  spec.assumptions.forEach((a, index) => {
+    if (a.condition === null) return;
+    const result = parseCondition(a.condition, ["assumptions", index, "condition"], names);
+    if (!result.ok) issues.push(result.issue);
+    parsedConditions.push({ index, text: a.condition, result });
+  });
+  if (issues.length) return { ok: false, issues };
+
+  const describe = (node: MathNode): CompiledExpression => ({
+    node,
+    text: expressionToText(node, names.user),
+    tex: expressionToTex(node, names.user),
+  });
+  const equations = trees.map(describe);
+  const jacobianNodes = trees.map((tree) => stateNames.map((_, j) => differentiate(tree, `S${j}`)));
+  const jacobian = jacobianNodes.map((row) => row.map(describe));
+
+  const parameterValues = Float64Array.from(spec.parameters.map((p) => p.value));
+  const bound: CodegenOptions = { parameterValues: Array.from(parameterValues) };
+  const source: GeneratedSource = {
+    rhs: body(trees, bound),
+    jacobian: body(jacobianNodes.flat(), bound),
+    rhsParametric: body(trees, {}),
+    jacobianParametric: body(jacobianNodes.flat(), {}),
+  };
+
+  const conditions: CompiledCondition[] = parsedConditions.map(({ index, text, result }) => {
+    if (!result.ok) throw new Error("unreachable: condition issues returned above");
+    const lhs = describe(result.lhs);
+    const rhs = describe(result.rhs);
+    const evalSide = instantiate<(p: ArrayLike<number>) => number>(["p"], `return ${emitExpression(result.lhs, {})};`);
+    const evalOther = instantiate<(p: ArrayLike<number>) => number>(["p"], `return ${emitExpression(result.rhs, {})};`);
+    const op = result.op;
+    return {
+      assumption: index,
+      text,
+      lhs,
+      rhs,
+      op,
+      tex: `${lhs.tex} ${COMPARISON_TEX[op]} ${rhs.tex}`,
+      evaluate: (p) => {
+        const l = evalSide(p);
+        const r = evalOther(p);
+        const holds = op === "<" ? l < r : op === "<=" ? l <= r : op === ">" ? l > r : l >= r;
+        return { lhs: l, rhs: r, holds };
+      },
+    };
+  });
+
+  return {
+    ok: true,
+    value: {
+      spec,
+      dimension: stateNames.length,
+      stateNames,
+      parameterNames,
+      parameterValues,
+      equations,
+      jacobian,
+      conditions,
+      rhs: instantiateRhs(source.rhs),
+      jacobianAt: instantiateRhs(source.jacobian),
+      rhsParametric: instantiateParametric(source.rhsParametric),
+      jacobianParametric: instantiateParametric(source.jacobianParametric),
+      source,
+    },
+  };
+}
+
+export { nameToTex };

@@ -1,0 +1,108 @@
+import { derivative, simplify, ConstantNode, FunctionNode, OperatorNode, SymbolNode, type MathNode } from "mathjs";
+
+/**
+ * Symbolic partial derivatives by mathjs. mathjs cannot differentiate min and max and gives
+ * abs(u)/u (undefined at u = 0) for abs, so those three get their rules here, as internal
+ * functions `sign(u)` and `ifle(a, b, da, db)` (da where a <= b, else db); every other subtree
+ * goes to mathjs unchanged.
+ */
+const NON_SMOOTH = new Set(["abs", "min", "max"]);
+
+const num = (v: number) => new ConstantNode(v);
+const op = (o: string, fn: string, args: MathNode[]) => new OperatorNode(o as any, fn as any, args);
+const call = (name: string, args: MathNode[]) => new FunctionNode(new SymbolNode(name), args);
+
+function hasNonSmooth(node: MathNode): boolean {
+  let found = false;
+  node.traverse((n: any) => {
+    if (n.type === "FunctionNode" && NON_SMOOTH.has(n.fn.name)) found = true;
+  });
+  return found;
+}
+
+function dependsOn(node: MathNode, variable: string): boolean {
+  let found = false;
+  node.traverse((n: any) => {
+    if (n.type === "SymbolNode" && n.name === variable) found = true;
+  });
+  return found;
+}
+
+function raw(node: MathNode, variable: string): MathNode {
+  if (!dependsOn(node, variable)) return num(0);
+  if (!hasNonSmooth(node)) return derivative(node, variable, { simplify: false });
+  const n = node as any;
+  switch (n.type) {
+    case "ParenthesisNode":
+      return raw(n.content, variable);
+    case "OperatorNode": {
+      const [a, b] = n.args as MathNode[];
+      switch (n.fn) {
+        case "unaryPlus": return raw(a, variable);
+        case "unaryMinus": return op("-", "unaryMinus", [raw(a, variable)]);
+        case "add": return op("+", "add", [raw(a, variable), raw(b, variable)]);
+        case "subtract": return op("-", "subtract", [raw(a, variable), raw(b, variable)]);
+        case "multiply":
+          return op("+", "add", [op("*", "multiply", [raw(a, variable), b]), op("*", "multiply", [a, raw(b, variable)])]);
+        case "divide":
+          return op("/", "divide", [
+            op("-", "subtract", [op("*", "multiply", [raw(a, variable), b]), op("*", "multiply", [a, raw(b, variable)])]),
+            op("^", "pow", [b, num(2)]),
+          ]);
+        case "pow": return powRule(a, b, variable);
+      }
+      throw new Error(`no derivative rule for operator ${n.fn}`);
+    }
+    case "FunctionNode": {
+      const name = n.fn.name as string;
+      const args = n.args as MathNode[];
+      if (name === "pow") return powRule(args[0], args[1], variable);
+      if (name === "abs") return op("*", "multiply", [call("sign", [args[0]]), raw(args[0], variable)]);
+      if (name === "min" || name === "max") {
+        // min(a, b, c) = min(min(a, b), c): fold pairwise so each selection has two branches
+        let acc = args[0];
+        let dacc = raw(args[0], variable);
+        for (const next of args.slice(1)) {
+          const dnext = raw(next, variable);
+          dacc = name === "min" ? call("ifle", [acc, next, dacc, dnext]) : call("ifle", [acc, next, dnext, dacc]);
+          acc = call(name, [acc, next]);
+        }
+        return dacc;
+      }
+      // smooth outer function of a non-smooth argument: chain rule through a placeholder
+      const placeholder = "U__";
+      const outer = derivative(call(name, [new SymbolNode(placeholder)]), placeholder, { simplify: false });
+      const inner = args[0];
+      const outerAt = outer.transform((m: any) => (m.type === "SymbolNode" && m.name === placeholder ? inner : m));
+      return op("*", "multiply", [outerAt, raw(inner, variable)]);
+    }
+  }
+  throw new Error(`no derivative rule for node ${n.type}`);
+}
+
+function powRule(base: MathNode, exponent: MathNode, variable: string): MathNode {
+  if (!dependsOn(exponent, variable)) {
+    return op("*", "multiply", [
+      op("*", "multiply", [exponent, op("^", "pow", [base, op("-", "subtract", [exponent, num(1)])])]),
+      raw(base, variable),
+    ]);
+  }
+  // d(u^w) = u^w (w' log u + w u'/u)
+  return op("*", "multiply", [
+    op("^", "pow", [base, exponent]),
+    op("+", "add", [
+      op("*", "multiply", [raw(exponent, variable), call("log", [base])]),
+      op("/", "divide", [op("*", "multiply", [exponent, raw(base, variable)]), base]),
+    ]),
+  ]);
+}
+
+/** Partial derivative of `node` with respect to the internal symbol `variable`, simplified. */
+export function differentiate(node: MathNode, variable: string): MathNode {
+  const d = raw(node, variable);
+  try {
+    return simplify(d);
+  } catch {
+    return d; // simplify gives up on some internal functions; the unsimplified form is exact
+  }
+}

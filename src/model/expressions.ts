@@ -1,0 +1,172 @@
+import { parse, type MathNode } from "mathjs";
+import type { SpecIssue } from "../diagnostics/issue.js";
+import { messages } from "../diagnostics/messages.js";
+import { ALLOWED_FUNCTIONS, isAllowedFunction } from "../spec/names.js";
+import { lexExpression, type Token } from "./lexer.js";
+
+/** How the expression's names map to the internal symbols the compiler and differentiator use. */
+export interface NameTable {
+  /** user name → internal symbol (S0, S1 for states; P0, P1, ... for parameters) */
+  internal: Map<string, string>;
+  /** internal symbol → user name */
+  user: Map<string, string>;
+  states: Set<string>;
+  parameters: Set<string>;
+}
+
+export function buildNameTable(states: string[], parameters: string[]): NameTable {
+  const internal = new Map<string, string>();
+  const user = new Map<string, string>();
+  states.forEach((n, i) => { internal.set(n, `S${i}`); user.set(`S${i}`, n); });
+  parameters.forEach((n, i) => { internal.set(n, `P${i}`); user.set(`P${i}`, n); });
+  return { internal, user, states: new Set(states), parameters: new Set(parameters) };
+}
+
+export type ExpressionResult = { ok: true; node: MathNode } | { ok: false; issue: SpecIssue };
+
+const OPERATORS = new Set(["add", "subtract", "multiply", "divide", "pow", "unaryMinus", "unaryPlus"]);
+
+interface CheckContext {
+  text: string;
+  path: (string | number)[];
+  names: NameTable;
+  /** Conditions relate parameters only. */
+  allowStates: boolean;
+}
+
+function fail(ctx: CheckContext, code: string, message: string, column: number, length = 1): ExpressionResult {
+  return { ok: false, issue: { code, path: ctx.path, message, source: { text: ctx.text, column, length } } };
+}
+
+function checkTokens(ctx: CheckContext, tokens: Token[]): ExpressionResult | null {
+  if (tokens.length === 0) return fail(ctx, "empty_expression", messages.emptyExpression(), 1);
+  for (let k = 0; k < tokens.length; k++) {
+    const tok = tokens[k];
+    const next = tokens[k + 1];
+    const endsOperand = tok.kind === "number" || tok.kind === "rparen" || (tok.kind === "name" && next?.kind !== "lparen");
+    if (tok.kind === "name") {
+      const isCall = next?.kind === "lparen";
+      const declared = ctx.names.internal.has(tok.text);
+      if (isCall && declared) return fail(ctx, "not_a_function", messages.nameIsNotFunction(tok.text), tok.column, tok.text.length);
+      if (isCall && !isAllowedFunction(tok.text))
+        return fail(ctx, "function_not_allowed", messages.functionNotAllowed(tok.text, Object.keys(ALLOWED_FUNCTIONS)), tok.column, tok.text.length);
+      if (!isCall && isAllowedFunction(tok.text) && !declared)
+        return fail(ctx, "function_needs_call", messages.functionNeedsCall(tok.text), tok.column, tok.text.length);
+      if (!isCall && !declared) {
+        const message = tok.text === "t" ? messages.timeNotAllowed()
+          : messages.unknownName(tok.text, ctx.allowStates ? "a state or a parameter" : "a parameter");
+        return fail(ctx, "unknown_name", message, tok.column, tok.text.length);
+      }
+      if (!isCall && !ctx.allowStates && ctx.names.states.has(tok.text))
+        return fail(ctx, "state_in_condition", messages.stateInCondition(tok.text), tok.column, tok.text.length);
+    }
+    if (endsOperand && next && (next.kind === "number" || next.kind === "name" || next.kind === "lparen"))
+      return fail(ctx, "implicit_multiplication", messages.implicitMultiplication(), next.column, next.text.length);
+  }
+  return null;
+}
+
+/** Defence in depth: the parsed tree may hold only the node kinds the grammar allows. */
+function checkTree(ctx: CheckContext, root: MathNode): ExpressionResult | null {
+  let problem: ExpressionResult | null = null;
+  root.traverse((node: MathNode) => {
+    if (problem) return;
+    const n = node as MathNode & Record<string, any>;
+    switch (n.type) {
+      case "ConstantNode":
+        if (typeof n.value !== "number" || !Number.isFinite(n.value)) problem = fail(ctx, "syntax", messages.syntax("only finite numbers are accepted"), 1);
+        return;
+      case "SymbolNode":
+        return; // names were checked token by token; function names appear here as call targets
+      case "ParenthesisNode":
+        return;
+      case "OperatorNode":
+        if (!OPERATORS.has(n.fn) || n.implicit) problem = fail(ctx, "operator_not_allowed", messages.syntax(`the operator '${n.op}' is not accepted`), 1);
+        return;
+      case "FunctionNode": {
+        const name = n.fn?.name as string | undefined;
+        if (!name || !isAllowedFunction(name)) {
+          problem = fail(ctx, "function_not_allowed", messages.functionNotAllowed(String(name), Object.keys(ALLOWED_FUNCTIONS)), 1);
+          return;
+        }
+        const [lo, hi] = ALLOWED_FUNCTIONS[name];
+        const count = n.args.length as number;
+        if (count < lo || count > hi) {
+          const col = ctx.text.indexOf(name) + 1 || 1;
+          const expected = lo === hi ? `${lo} argument${lo === 1 ? "" : "s"}` : `at least ${lo} arguments`;
+          problem = fail(ctx, "wrong_arity", messages.wrongArity(name, expected, count), col, name.length);
+        }
+        return;
+      }
+      default:
+        problem = fail(ctx, "syntax", messages.syntax(`this construct is not accepted (${n.type})`), 1);
+    }
+  });
+  return problem;
+}
+
+/** Rewrites user names to internal symbols, so no user text reaches the simplifier or compiler. */
+function toInternal(root: MathNode, names: NameTable): MathNode {
+  return root.transform((node: MathNode) => {
+    const n = node as MathNode & Record<string, any>;
+    if (n.type === "SymbolNode" && names.internal.has(n.name)) {
+      const copy = n.clone();
+      copy.name = names.internal.get(n.name)!;
+      return copy;
+    }
+    return node;
+  });
+}
+
+/** Parses one expression of the whitelisted grammar into an internal-symbol tree. */
+export function parseExpression(
+  text: string,
+  path: (string | number)[],
+  names: NameTable,
+  options: { allowStates?: boolean } = {},
+): ExpressionResult {
+  const ctx: CheckContext = { text, path, names, allowStates: options.allowStates ?? true };
+  const lexed = lexExpression(text, false);
+  if (!lexed.ok) return fail(ctx, "unexpected_character", messages.unexpectedCharacter(lexed.char), lexed.column);
+  const tokenProblem = checkTokens(ctx, lexed.tokens);
+  if (tokenProblem) return tokenProblem;
+  let root: MathNode;
+  try {
+    root = parse(text);
+  } catch (err) {
+    const e = err as Error & { char?: number };
+    const detail = e.message.replace(/\s*\(char \d+\)\s*$/, "");
+    return fail(ctx, "syntax", messages.syntax(detail), typeof e.char === "number" ? Math.max(1, Math.min(e.char, text.length)) : 1);
+  }
+  const treeProblem = checkTree(ctx, root);
+  if (treeProblem) return treeProblem;
+  return { ok: true, node: toInternal(root, names) };
+}
+
+export type Comparison = "<" | "<=" | ">" | ">=";
+
+export type ConditionResult =
+  | { ok: true; lhs: MathNode; rhs: MathNode; op: Comparison }
+  | { ok: false; issue: SpecIssue };
+
+/** Parses an inequality `lhs OP rhs` between parameter expressions. */
+export function parseCondition(text: string, path: (string | number)[], names: NameTable): ConditionResult {
+  const lexed = lexExpression(text, true);
+  const ctx: CheckContext = { text, path, names, allowStates: false };
+  if (!lexed.ok) return fail(ctx, "unexpected_character", messages.unexpectedCharacter(lexed.char), lexed.column) as ConditionResult;
+  const comparisons = lexed.tokens.filter((t) => t.kind === "compare");
+  if (comparisons.length !== 1) {
+    const col = comparisons[1]?.column ?? 1;
+    return fail(ctx, "condition_form", messages.conditionNeedsComparison(), col) as ConditionResult;
+  }
+  const cmp = comparisons[0];
+  const at = cmp.column - 1;
+  const left = parseExpression(text.slice(0, at), path, names, { allowStates: false });
+  if (!left.ok) return left;
+  const right = parseExpression(" ".repeat(at + cmp.text.length) + text.slice(at + cmp.text.length), path, names, { allowStates: false });
+  if (!right.ok) {
+    right.issue.source = { ...right.issue.source!, text };
+    return right;
+  }
+  return { ok: true, lhs: left.node, rhs: right.node, op: cmp.text as Comparison };
+}

@@ -1,0 +1,98 @@
+import { z } from "zod";
+
+/**
+ * The spec contract (see DEVELOPERS.md). Each key carries its documentation, which flows into
+ * the generated JSON Schema (schema/keel-spec.schema.json) and so into editors.
+ * Cross-field rules (names, windows, ranges) live in validate.ts: zod checks shape here.
+ */
+const finite = () => z.number().refine(Number.isFinite, { message: "expected a finite number" });
+
+const interval = (what: string) =>
+  z.tuple([finite(), finite()]).describe(`${what} as [lo, hi], lo < hi.`);
+
+export const StateSpecSchema = z
+  .strictObject({
+    name: z.string().describe("Identifier used in the equations (letter, then letters, digits or '_')."),
+    label: z.string().optional().describe("What the state measures, in words, for the dossier."),
+    unit: z.string().optional().describe("Unit of the state, e.g. 'fish' or 'g/m^2'."),
+    min: finite().describe("Lower bound of the feasible region (a population is at least 0)."),
+    max: finite().describe("Upper bound of the feasible region."),
+  })
+  .describe("One state variable of the model.");
+
+export const ParameterSpecSchema = z
+  .strictObject({
+    name: z.string().describe("Identifier used in the equations."),
+    value: finite().describe("Nominal (current) value, in the parameter's unit."),
+    unit: z.string().optional().describe("Unit, e.g. '1/year'."),
+    label: z.string().optional().describe("Meaning of the parameter, in words."),
+    source: z.string().optional().describe("Where the value comes from (study, estimate, or 'invented')."),
+    range: interval("Plausible interval, used by threshold search and uncertainty; must contain value")
+      .optional(),
+  })
+  .describe("One model parameter.");
+
+export const ScenarioSpecSchema = z
+  .strictObject({
+    name: z.string().min(1).describe("Short name of the scenario, e.g. 'survey-2025'."),
+    label: z.string().optional().describe("Description of the scenario."),
+    initial: z.record(z.string(), finite()).describe("Starting value of every state, inside the window."),
+    horizon: finite()
+      .refine((v) => v > 0, { message: "the horizon must be positive" })
+      .describe("How far ahead to integrate, in the model's time unit."),
+  })
+  .describe("A starting state whose trajectory the dossier follows.");
+
+export const AssumptionSpecSchema = z
+  .strictObject({
+    text: z.string().min(1).describe("The assumption in words."),
+    condition: z
+      .string()
+      .optional()
+      .describe("Optional machine-checkable inequality between parameters, e.g. 'K2 < r1/a12'."),
+  })
+  .describe("An assumption the analysis rests on.");
+
+export const KeelSpecSchema = z
+  .strictObject({
+    $schema: z.string().optional().describe("Path or URI of this JSON Schema, for editors."),
+    keel: z.literal(1).describe("Spec format version; currently 1."),
+    id: z
+      .string()
+      .regex(/^[a-z0-9][a-z0-9-]*$/, { message: "an id is a slug: lower-case letters, digits and '-'" })
+      .max(80)
+      .describe("Slug naming the model; it names the output folder out/<id>/."),
+    title: z.string().min(1).describe("Title of the dossier."),
+    authors: z.array(z.string()).optional().describe("Authors of the analysis. Default: none."),
+    organisation: z.string().optional().describe("Organisation responsible for the analysis."),
+    purpose: z.string().optional().describe("Why the analysis is done, in one or two sentences."),
+    time: z
+      .strictObject({ unit: z.string().min(1).describe("Unit of time, e.g. 'year' or 'day'.") })
+      .describe("The model's time axis."),
+    states: z.array(StateSpecSchema).describe("The state variables (exactly 2: keel analyses planar models)."),
+    parameters: z.array(ParameterSpecSchema).optional().describe("The parameters. Default: none."),
+    equations: z
+      .record(z.string(), z.string())
+      .describe(
+        "Time derivative of each state in infix maths: numbers, declared names, + - * / ^, parentheses and " +
+          "exp, log, sqrt, abs, min, max, sin, cos, tan, tanh, pow.",
+      ),
+    window: z
+      .record(z.string(), interval("Interval of this state analysed and drawn"))
+      .optional()
+      .describe("Region analysed and drawn, per state. Default: the states' [min, max]."),
+    scenarios: z.array(ScenarioSpecSchema).optional().describe("Starting states to follow. Default: none."),
+    assumptions: z.array(AssumptionSpecSchema).optional().describe("Assumptions. Default: none."),
+    cautions: z.array(z.string()).optional().describe("Cautions specific to this model, printed in the dossier."),
+  })
+  .describe("A keel model spec: one planar ODE model and its context.");
+
+export type KeelSpecInput = z.infer<typeof KeelSpecSchema>;
+export type StateSpec = z.infer<typeof StateSpecSchema>;
+export type ParameterSpec = z.infer<typeof ParameterSpecSchema>;
+
+/** The JSON Schema committed as schema/keel-spec.schema.json and printed by `keel schema`. */
+export function buildSpecJsonSchema(): Record<string, unknown> {
+  const schema = z.toJSONSchema(KeelSpecSchema, { target: "draft-2020-12", io: "input" }) as Record<string, unknown>;
+  return { $id: "keel-spec.schema.json", title: "keel model spec", ...schema };
+}

@@ -1,0 +1,84 @@
+import type { SpecIssue } from "../diagnostics/issue.js";
+import { formatPath } from "../diagnostics/issue.js";
+import { messages } from "../diagnostics/messages.js";
+import type { KeelSpecInput } from "./schema.js";
+import { IDENTIFIER, isReservedName } from "./names.js";
+
+const own = (o: object, k: string) => Object.prototype.hasOwnProperty.call(o, k);
+
+/** Cross-field rules zod's shape check cannot express. Returns every issue found. */
+export function validateSpecRules(spec: KeelSpecInput): SpecIssue[] {
+  const issues: SpecIssue[] = [];
+  const add = (code: string, path: (string | number)[], message: string) => issues.push({ code, path, message });
+
+  if (spec.states.length !== 2) add("planar_only", ["states"], messages.planarOnly(spec.states.length));
+
+  const firstUse = new Map<string, string>();
+  const checkName = (name: string, path: (string | number)[]) => {
+    if (!IDENTIFIER.test(name)) return add("invalid_name", path, messages.invalidIdentifier(name));
+    if (isReservedName(name)) return add("reserved_name", path, messages.reservedName(name));
+    const first = firstUse.get(name);
+    if (first) return add("duplicate_name", path, messages.duplicateName(name, first));
+    firstUse.set(name, formatPath(path));
+  };
+  spec.states.forEach((s, i) => checkName(s.name, ["states", i, "name"]));
+  (spec.parameters ?? []).forEach((p, i) => checkName(p.name, ["parameters", i, "name"]));
+
+  const stateNames = spec.states.map((s) => s.name);
+  for (const [i, s] of spec.states.entries()) {
+    if (!(s.min < s.max)) add("interval_order", ["states", i], messages.intervalOrder(s.min, s.max));
+    if (!own(spec.equations, s.name)) add("missing_equation", ["equations"], messages.missingEquation(s.name));
+  }
+  for (const key of Object.keys(spec.equations)) {
+    if (!stateNames.includes(key)) add("unknown_state", ["equations", key], messages.equationForUnknownState(key));
+  }
+
+  for (const [i, p] of (spec.parameters ?? []).entries()) {
+    if (!p.range) continue;
+    const [lo, hi] = p.range;
+    if (!(lo < hi)) add("interval_order", ["parameters", i, "range"], messages.intervalOrder(lo, hi));
+    else if (p.value < lo || p.value > hi)
+      add("range_excludes_value", ["parameters", i, "range"], messages.rangeExcludesValue(p.value, lo, hi));
+  }
+
+  const window = spec.window;
+  if (window) {
+    for (const key of Object.keys(window)) {
+      if (!stateNames.includes(key)) add("unknown_state", ["window", key], messages.windowUnknownState(key));
+    }
+    for (const s of spec.states) {
+      if (!own(window, s.name)) {
+        add("missing_window", ["window"], messages.windowMissingState(s.name));
+        continue;
+      }
+      const [lo, hi] = window[s.name];
+      if (!(lo < hi)) add("interval_order", ["window", s.name], messages.intervalOrder(lo, hi));
+      else if (lo < s.min || hi > s.max)
+        add("window_outside_bounds", ["window", s.name], messages.windowOutsideBounds(s.name, lo, hi, s.min, s.max));
+    }
+  }
+
+  for (const [i, sc] of (spec.scenarios ?? []).entries()) {
+    for (const key of Object.keys(sc.initial)) {
+      if (!stateNames.includes(key)) add("unknown_state", ["scenarios", i, "initial", key], messages.initialUnknown(key));
+    }
+    for (const s of spec.states) {
+      if (!own(sc.initial, s.name)) {
+        add("missing_initial", ["scenarios", i, "initial"], messages.initialMissing(s.name));
+        continue;
+      }
+      const v = sc.initial[s.name];
+      const [lo, hi] = window && own(window, s.name) ? window[s.name] : [s.min, s.max];
+      if (v < lo || v > hi)
+        add("initial_outside_window", ["scenarios", i, "initial", s.name], messages.initialOutsideWindow(s.name, v, lo, hi));
+    }
+  }
+  const scenarioNames = new Map<string, number>();
+  for (const [i, sc] of (spec.scenarios ?? []).entries()) {
+    const first = scenarioNames.get(sc.name);
+    if (first !== undefined)
+      add("duplicate_name", ["scenarios", i, "name"], messages.duplicateName(sc.name, `scenarios[${first}].name`));
+    else scenarioNames.set(sc.name, i);
+  }
+  return issues;
+}

@@ -21,11 +21,12 @@ export interface StabilityResult {
 }
 
 /**
- * Relative tolerance for calling trace, determinant or discriminant zero, against the matching
- * power of the Jacobian's Frobenius norm (‖J‖ for the trace, ‖J‖² for the others). Entries are
- * evaluated at a point polished to ~1e-13 relative, so cancellation noise stays near 1e-12;
- * 1e-8 leaves four digits of margin and sends a genuinely borderline case to "non-hyperbolic"
- * (or "center") rather than guessing a side.
+ * Relative tolerance for calling trace, determinant or discriminant zero, against a scale for
+ * each that a change of units (J → D J D⁻¹, D diagonal) leaves unchanged: the spectral radius ρ,
+ * and the sizes of the terms that cancel (|a|, |d| for the trace; |ad|, |bc| for the determinant
+ * and the discriminant). Entries are evaluated at a point polished to ~1e-13 relative, so
+ * cancellation noise stays near 1e-12; 1e-8 leaves four digits of margin and sends a genuinely
+ * borderline case to "non-hyperbolic" (or "center") rather than guessing a side.
  */
 export const CLASSIFY_REL_TOL = 1e-8;
 
@@ -54,9 +55,14 @@ export function classifyEquilibrium(jacobian: number[][]): StabilityResult {
   const V = evd.eigenvectorMatrix;
   const eigenvectors = complexPair ? [] : order.map((k) => normalizeVector([V.get(0, k), V.get(1, k)]));
 
-  const zeroTrace = Math.abs(trace) <= CLASSIFY_REL_TOL * scale;
-  const zeroDet = Math.abs(determinant) <= CLASSIFY_REL_TOL * scale * scale;
-  const zeroDisc = Math.abs(discriminant) <= CLASSIFY_REL_TOL * scale * scale;
+  // unit-invariant scales: a state measured in 1e5 units must not turn a node into "non-hyperbolic"
+  const radius = Math.max(...eigenvalues.map((e) => Math.hypot(e.re, e.im)));
+  const traceScale = Math.max(Math.abs(a), Math.abs(d), radius);
+  const detScale = Math.max(Math.abs(a * d), Math.abs(b * c), radius * radius);
+  const discScale = Math.max(trace * trace, 4 * detScale);
+  const zeroTrace = Math.abs(trace) <= CLASSIFY_REL_TOL * traceScale;
+  const zeroDet = Math.abs(determinant) <= CLASSIFY_REL_TOL * detScale;
+  const zeroDisc = Math.abs(discriminant) <= CLASSIFY_REL_TOL * discScale;
   const base = { jacobian: jacobian.map((r) => r.slice()), trace, determinant, discriminant, eigenvalues, eigenvectors };
 
   if (scale === 0 || zeroDet) return { ...base, type: "non-hyperbolic", hyperbolic: false, stable: null };

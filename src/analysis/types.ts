@@ -1,7 +1,14 @@
 import type { Diagnostic } from "../diagnostics/issue.js";
 import type { EquilibriumResult } from "./equilibria.js";
+import type { PortraitTrajectory, ScenarioResult } from "./trajectories.js";
+import type { CycleResult } from "./cycles.js";
+import type { SeparatrixResult } from "./manifolds.js";
 
 export type { EquilibriumResult } from "./equilibria.js";
+export type { PortraitTrajectory, ScenarioResult } from "./trajectories.js";
+export type { CycleResult } from "./cycles.js";
+export type { SeparatrixResult, ManifoldEnd } from "./manifolds.js";
+export type { Fate, TrajectoryPath } from "./flow.js";
 export type { StabilityResult, EquilibriumType, Complex } from "./stability.js";
 
 export interface AssumptionResult {
@@ -27,6 +34,10 @@ export interface Results {
     jacobian: { text: string; tex: string }[][];
   };
   equilibria: EquilibriumResult[];
+  scenarios: ScenarioResult[];
+  cycles: CycleResult[];
+  separatrices: SeparatrixResult[];
+  trajectories: PortraitTrajectory[];
   assumptions: AssumptionResult[];
   diagnostics: Diagnostic[];
   /** Settings every pass used, so the dossier's methods section and `verify` can restate them. */

@@ -17,7 +17,8 @@ export function readSpecFile(file: string): string {
   try {
     return readFileSync(file, "utf8");
   } catch (err) {
-    const reason = (err as NodeJS.ErrnoException).code === "ENOENT" ? "no such file" : (err as Error).message;
+    const code = (err as NodeJS.ErrnoException).code;
+    const reason = code === "ENOENT" ? "no such file" : code === "EISDIR" ? messages.fileIsFolder() : (err as Error).message;
     throw new CliExit(EXIT.input, `error: ${messages.fileUnreadable(file, reason)}`);
   }
 }
@@ -26,16 +27,35 @@ export function inputError(issues: SpecIssue[], file: string): CliExit {
   return new CliExit(EXIT.input, formatIssues(issues, file));
 }
 
+/** File-system refusals caused by the output path the user chose: bad usage (exit 2), not a fault. */
+const OUTPUT_PATH_REASONS: Record<string, string> = {
+  EEXIST: "a file stands where a folder is needed",
+  ENOTDIR: "a file stands where a folder is needed",
+  EISDIR: "a folder stands where the file should go",
+  EACCES: "permission denied",
+  EPERM: "permission denied",
+  EROFS: "the file system is read-only",
+};
+
+function outputError(path: string, err: unknown): unknown {
+  const reason = OUTPUT_PATH_REASONS[(err as NodeJS.ErrnoException).code ?? ""];
+  return reason ? new CliExit(EXIT.input, `error: ${messages.outputUnwritable(path, reason)}`) : err;
+}
+
 /** Writes a file atomically: a temporary file beside it, then a rename. */
 export function writeFileAtomic(path: string, content: string | Uint8Array): void {
-  mkdirSync(dirname(path), { recursive: true });
+  try {
+    mkdirSync(dirname(path), { recursive: true });
+  } catch (err) {
+    throw outputError(path, err);
+  }
   const tmp = join(dirname(path), `.${basename(path)}.${process.pid}.tmp`);
   try {
     writeFileSync(tmp, content);
     renameSync(tmp, path);
   } catch (err) {
     rmSync(tmp, { force: true });
-    throw err;
+    throw outputError(path, err);
   }
 }
 

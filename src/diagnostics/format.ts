@@ -6,7 +6,8 @@ export function formatIssue(issue: SpecIssue, file?: string): string {
   const lines = [`error ${where}: ${issue.message}`];
   if (issue.source) {
     const { text, column, length = 1 } = issue.source;
-    lines.push(`    ${text}`);
+    // tabs and line breaks would misalign the caret: show each as one space, keeping columns
+    lines.push(`    ${text.replace(/[\t\n\r\v\f]/g, " ")}`);
     lines.push(`    ${" ".repeat(Math.max(0, column - 1))}${"^".repeat(Math.max(1, length))}`);
   }
   return lines.join("\n");

@@ -2,10 +2,26 @@
 export const messages = {
   jsonSyntax: (detail: string, line: number, column: number) =>
     `the file is not valid JSON (line ${line}, column ${column}): ${detail}`,
+  // JSON faults found by spec/json-locate.ts (the engine's own messages omit the position of some)
+  jsonEndOfFile: (expected: string) => `the file ends where ${expected} is expected`,
+  jsonExpected: (expected: string, found: string) => `expected ${expected}, found ${found}`,
+  jsonSingleQuotes: () => `strings and keys take double quotes (") in JSON, not single quotes`,
+  jsonUnterminatedString: () => `this string is never closed with a double quote`,
+  jsonControlInString: () => `a line break or control character inside a string must be escaped (\\n, \\t)`,
+  jsonBadEscape: () => `invalid escape sequence in a string`,
+  jsonBadNumber: () => `invalid number (JSON numbers have no leading zeros, '+' sign, or bare '.')`,
+  jsonTrailing: () => `unexpected text after the end of the top-level value`,
   fileUnreadable: (file: string, reason: string) => `cannot read ${file}: ${reason}`,
+  fileIsFolder: () => `it is a folder, not a file`,
+  outputUnwritable: (path: string, reason: string) => `cannot write ${path}: ${reason}`,
+  missingKey: (key: string, expected: string) => `the required key '${key}' is missing (expected ${expected})`,
+  unknownKey: (key: string, suggestion: string | null) =>
+    `unknown key '${key}'${suggestion ? `; did you mean '${suggestion}'?` : ""}`,
+  forbiddenKey: (key: string) => `the key '${key}' is not accepted anywhere in a spec`,
   duplicateName: (name: string, first: string) => `the name '${name}' is already used at ${first}`,
   invalidIdentifier: (name: string) =>
     `'${name}' is not a valid name: use a letter followed by letters, digits or '_'`,
+  timeNameReserved: () => `'t' is reserved for time, which may not appear in an autonomous model; choose another name`,
   reservedName: (name: string) =>
     `'${name}' is reserved (a keyword, constant or function name); choose another name`,
   missingEquation: (state: string) => `state '${state}' has no equation: add equations.${state}`,
@@ -23,7 +39,12 @@ export const messages = {
     `the range [${lo}, ${hi}] does not contain the value ${value}`,
   planarOnly: (n: number) => `keel analyses planar models: exactly 2 states are needed, found ${n}`,
   // expression errors
-  unexpectedCharacter: (ch: string) => `unexpected character '${ch}'`,
+  unexpectedCharacter: (ch: string) =>
+    `unexpected character ${/^[\x20-\x7e]$/.test(ch) ? `'${ch}'` : `${JSON.stringify(ch)} (U+${ch.codePointAt(0)!.toString(16).toUpperCase().padStart(4, "0")})`}`,
+  numberNotFinite: (text: string) => `the number ${text} is too large for double precision`,
+  unclosedParenthesis: () => `this '(' is never closed: a ')' is missing`,
+  unmatchedParenthesis: () => `this ')' has no matching '('`,
+  endsEarly: (last: string) => `the expression ends after '${last}': a value is missing`,
   unknownName: (name: string, kinds: string) => `unknown name '${name}': declare it as ${kinds}`,
   timeNotAllowed: () => `'t' is not a declared name: equations must be autonomous (time may not appear)`,
   functionNotAllowed: (name: string, allowed: readonly string[]) =>
@@ -32,7 +53,8 @@ export const messages = {
   functionNeedsCall: (name: string) => `'${name}' is a function: call it with arguments, e.g. ${name}(x)`,
   wrongArity: (name: string, expected: string, got: number) =>
     `${name}() takes ${expected}, given ${got}`,
-  implicitMultiplication: () => `a number, name or ')' is followed directly by a name or '(': write '*' for multiplication`,
+  implicitMultiplication: () =>
+    `a number, name or ')' is followed directly by a number, name or '(': write '*' for multiplication`,
   syntax: (detail: string) => `cannot read the expression: ${detail}`,
   emptyExpression: () => `the expression is empty`,
   stateInCondition: (name: string) =>

@@ -38,11 +38,31 @@ function fail(ctx: CheckContext, code: string, message: string, column: number, 
   return { ok: false, issue: { code, path: ctx.path, message, source: { text: ctx.text, column, length } } };
 }
 
+/**
+ * Faults the expression parser reports without a usable column: unbalanced parentheses and an
+ * expression that stops after an operator. Found here, from the tokens, so the caret is exact.
+ */
+function checkStructure(ctx: CheckContext, tokens: Token[]): ExpressionResult | null {
+  const open: Token[] = [];
+  for (const tok of tokens) {
+    if (tok.kind === "lparen") open.push(tok);
+    else if (tok.kind === "rparen" && !open.pop())
+      return fail(ctx, "unmatched_parenthesis", messages.unmatchedParenthesis(), tok.column);
+  }
+  if (open.length) return fail(ctx, "unclosed_parenthesis", messages.unclosedParenthesis(), open[open.length - 1].column);
+  const last = tokens[tokens.length - 1];
+  if (last.kind === "op" || last.kind === "comma" || last.kind === "compare")
+    return fail(ctx, "ends_early", messages.endsEarly(last.text), ctx.text.trimEnd().length + 1);
+  return null;
+}
+
 function checkTokens(ctx: CheckContext, tokens: Token[]): ExpressionResult | null {
   if (tokens.length === 0) return fail(ctx, "empty_expression", messages.emptyExpression(), 1);
   for (let k = 0; k < tokens.length; k++) {
     const tok = tokens[k];
     const next = tokens[k + 1];
+    if (tok.kind === "number" && !Number.isFinite(Number(tok.text)))
+      return fail(ctx, "number_not_finite", messages.numberNotFinite(tok.text), tok.column, tok.text.length);
     const endsOperand = tok.kind === "number" || tok.kind === "rparen" || (tok.kind === "name" && next?.kind !== "lparen");
     if (tok.kind === "name") {
       const isCall = next?.kind === "lparen";
@@ -67,8 +87,11 @@ function checkTokens(ctx: CheckContext, tokens: Token[]): ExpressionResult | nul
 }
 
 /** Defence in depth: the parsed tree may hold only the node kinds the grammar allows. */
-function checkTree(ctx: CheckContext, root: MathNode): ExpressionResult | null {
+function checkTree(ctx: CheckContext, root: MathNode, tokens: Token[]): ExpressionResult | null {
   let problem: ExpressionResult | null = null;
+  // the tree keeps no positions, but a pre-order walk meets calls in the order their names appear
+  const callNames = tokens.filter((tok, k) => tok.kind === "name" && tokens[k + 1]?.kind === "lparen");
+  let callsSeen = 0;
   root.traverse((node: MathNode) => {
     if (problem) return;
     const n = node as MathNode & Record<string, any>;
@@ -85,14 +108,14 @@ function checkTree(ctx: CheckContext, root: MathNode): ExpressionResult | null {
         return;
       case "FunctionNode": {
         const name = n.fn?.name as string | undefined;
+        const col = callNames[callsSeen++]?.column ?? 1;
         if (!name || !isAllowedFunction(name)) {
-          problem = fail(ctx, "function_not_allowed", messages.functionNotAllowed(String(name), Object.keys(ALLOWED_FUNCTIONS)), 1);
+          problem = fail(ctx, "function_not_allowed", messages.functionNotAllowed(String(name), Object.keys(ALLOWED_FUNCTIONS)), col);
           return;
         }
         const [lo, hi] = ALLOWED_FUNCTIONS[name];
         const count = n.args.length as number;
         if (count < lo || count > hi) {
-          const col = ctx.text.indexOf(name) + 1 || 1;
           const expected = lo === hi ? `${lo} argument${lo === 1 ? "" : "s"}` : `at least ${lo} arguments`;
           problem = fail(ctx, "wrong_arity", messages.wrongArity(name, expected, count), col, name.length);
         }
@@ -128,7 +151,7 @@ export function parseExpression(
   const ctx: CheckContext = { text, path, names, allowStates: options.allowStates ?? true };
   const lexed = lexExpression(text, false);
   if (!lexed.ok) return fail(ctx, "unexpected_character", messages.unexpectedCharacter(lexed.char), lexed.column);
-  const tokenProblem = checkTokens(ctx, lexed.tokens);
+  const tokenProblem = checkTokens(ctx, lexed.tokens) ?? checkStructure(ctx, lexed.tokens);
   if (tokenProblem) return tokenProblem;
   let root: MathNode;
   try {
@@ -138,7 +161,7 @@ export function parseExpression(
     const detail = e.message.replace(/\s*\(char \d+\)\s*$/, "");
     return fail(ctx, "syntax", messages.syntax(detail), typeof e.char === "number" ? Math.max(1, Math.min(e.char, text.length)) : 1);
   }
-  const treeProblem = checkTree(ctx, root);
+  const treeProblem = checkTree(ctx, root, lexed.tokens);
   if (treeProblem) return treeProblem;
   return { ok: true, node: toInternal(root, names) };
 }
@@ -162,7 +185,10 @@ export function parseCondition(text: string, path: (string | number)[], names: N
   const cmp = comparisons[0];
   const at = cmp.column - 1;
   const left = parseExpression(text.slice(0, at), path, names, { allowStates: false });
-  if (!left.ok) return left;
+  if (!left.ok) {
+    left.issue.source = { ...left.issue.source!, text };
+    return left;
+  }
   const right = parseExpression(" ".repeat(at + cmp.text.length) + text.slice(at + cmp.text.length), path, names, { allowStates: false });
   if (!right.ok) {
     right.issue.source = { ...right.issue.source!, text };

@@ -1,9 +1,11 @@
-import type { Parsed, SpecIssue } from "../diagnostics/issue.js";
+import type { Parsed } from "../diagnostics/issue.js";
 import { messages } from "../diagnostics/messages.js";
 import { KeelSpecSchema } from "./schema.js";
 import { validateSpecRules } from "./validate.js";
 import { normalizeSpec } from "./normalize.js";
 import { hashSpec } from "./hash.js";
+import { locateJsonFault } from "./json-locate.js";
+import { findForbiddenKeys, fromZodIssues } from "./issues.js";
 import type { NormalizedSpec } from "./types.js";
 
 function lineColumn(text: string, position: number): { line: number; column: number } {
@@ -12,23 +14,30 @@ function lineColumn(text: string, position: number): { line: number; column: num
   return { line, column: position - before.lastIndexOf("\n") };
 }
 
+/** Shown from a long line (a minified file): enough either side of the fault to recognise it. */
+const SOURCE_CONTEXT = 80;
+
+/** A byte-order mark, which some editors write; RFC 8259 section 8.1 lets a parser ignore it. */
+const BYTE_ORDER_MARK = "\uFEFF";
+
 /** JSON text to a value, with a located message on a syntax error. */
 export function parseJsonText(text: string): Parsed<unknown> {
+  const body = text.startsWith(BYTE_ORDER_MARK) ? text.slice(1) : text;
   try {
-    return { ok: true, value: JSON.parse(text) };
+    return { ok: true, value: JSON.parse(body) };
   } catch (err) {
-    const detail = (err as Error).message;
-    const match = /position (\d+)/.exec(detail);
-    const pos = match ? Number(match[1]) : text.length;
-    const { line, column } = lineColumn(text, pos);
-    const lineText = text.split("\n")[line - 1] ?? "";
+    // V8 omits the position of some faults; our own scan finds it, the engine's message is the fallback
+    const fault = locateJsonFault(body) ?? { offset: body.length, detail: (err as Error).message };
+    const { line, column } = lineColumn(body, fault.offset);
+    const lineText = body.split("\n")[line - 1] ?? "";
+    const start = Math.max(0, column - 1 - SOURCE_CONTEXT);
     return {
       ok: false,
       issues: [{
         code: "json_syntax",
         path: [],
-        message: messages.jsonSyntax(detail.replace(/ in JSON at position \d+.*$/s, ""), line, column),
-        source: { text: lineText.slice(0, 200), column },
+        message: messages.jsonSyntax(fault.detail, line, column),
+        source: { text: lineText.slice(start, column - 1 + SOURCE_CONTEXT), column: column - start },
       }],
     };
   }
@@ -36,15 +45,10 @@ export function parseJsonText(text: string): Parsed<unknown> {
 
 /** Shape check (zod), cross-field rules, then normalisation. Collects every issue. */
 export function parseSpecValue(raw: unknown): Parsed<NormalizedSpec> {
+  const forbidden = findForbiddenKeys(raw);
+  if (forbidden.length) return { ok: false, issues: forbidden };
   const shaped = KeelSpecSchema.safeParse(raw);
-  if (!shaped.success) {
-    const issues: SpecIssue[] = shaped.error.issues.map((i) => ({
-      code: i.code,
-      path: i.path.map((p) => (typeof p === "symbol" ? String(p) : p)),
-      message: i.message,
-    }));
-    return { ok: false, issues };
-  }
+  if (!shaped.success) return { ok: false, issues: fromZodIssues(shaped.error.issues, raw) };
   const ruleIssues = validateSpecRules(shaped.data);
   if (ruleIssues.length) return { ok: false, issues: ruleIssues };
   return { ok: true, value: normalizeSpec(shaped.data, hashSpec(raw)) };

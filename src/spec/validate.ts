@@ -16,7 +16,8 @@ export function validateSpecRules(spec: KeelSpecInput): SpecIssue[] {
   const firstUse = new Map<string, string>();
   const checkName = (name: string, path: (string | number)[]) => {
     if (!IDENTIFIER.test(name)) return add("invalid_name", path, messages.invalidIdentifier(name));
-    if (isReservedName(name)) return add("reserved_name", path, messages.reservedName(name));
+    if (isReservedName(name))
+      return add("reserved_name", path, name === "t" ? messages.timeNameReserved() : messages.reservedName(name));
     const first = firstUse.get(name);
     if (first) return add("duplicate_name", path, messages.duplicateName(name, first));
     firstUse.set(name, formatPath(path));

@@ -18,8 +18,9 @@ export interface CodegenOptions {
 
 export function literal(v: number): string {
   if (!Number.isFinite(v)) throw new Error(`non-finite literal ${v}`);
+  if (Object.is(v, -0)) return "(-0)";
   const s = String(v);
-  return v < 0 || Object.is(v, -0) ? `(${s})` : s;
+  return v < 0 ? `(${s})` : s;
 }
 
 /** Integer powers up to this order become multiplications: V8's Math.pow costs several multiplies. */

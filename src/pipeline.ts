@@ -14,7 +14,8 @@ import { parseSpecText } from "./spec/parse.js";
 import type { NormalizedSpec } from "./spec/types.js";
 import { compileModel } from "./model/compile.js";
 import type { Model } from "./model/types.js";
-import { analyze, DEFAULT_ANALYSIS_OPTIONS, type AnalysisOptions, type ProgressReporter } from "./analysis/analyze.js";
+import { analyze, analyzeAsync, optionsForModel, type AnalysisOptions, type ProgressReporter } from "./analysis/analyze.js";
+import type { BatchEvaluator } from "./analysis/basins/refine.js";
 import type { Results } from "./analysis/types.js";
 
 export interface PipelineOutput {
@@ -37,12 +38,27 @@ export function prepareModel(specText: string): Parsed<{ spec: NormalizedSpec; m
 /** Steps 1–3: spec text → results. */
 export function runPipeline(
   specText: string,
-  options: AnalysisOptions = DEFAULT_ANALYSIS_OPTIONS,
+  options?: AnalysisOptions,
   progress?: ProgressReporter,
 ): Parsed<PipelineOutput> {
   const prepared = prepareModel(specText);
   if (!prepared.ok) return prepared;
-  // 3. analysis passes
-  const results = analyze(prepared.value.model, options, progress);
+  // 3. analysis passes, in this thread
+  const model = prepared.value.model;
+  const results = analyze(model, options ?? optionsForModel(model), progress);
+  return { ok: true, value: { ...prepared.value, results } };
+}
+
+/** Steps 1–3 with the basin map fanned out through `evaluate` (a worker pool); same Results. */
+export async function runPipelineAsync(
+  specText: string,
+  evaluate: (kernelSource: string) => BatchEvaluator,
+  options?: AnalysisOptions,
+  progress?: ProgressReporter,
+): Promise<Parsed<PipelineOutput>> {
+  const prepared = prepareModel(specText);
+  if (!prepared.ok) return prepared;
+  const model = prepared.value.model;
+  const results = await analyzeAsync(model, evaluate, options ?? optionsForModel(model), progress);
   return { ok: true, value: { ...prepared.value, results } };
 }

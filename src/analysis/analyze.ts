@@ -9,29 +9,43 @@ import { buildFlowContext } from "./flow.js";
 import { CycleRegistry, DEFAULT_TRAJECTORY_OPTIONS, flowTimeScale, integratePortrait, integrateScenarios, type TrajectoryOptions } from "./trajectories.js";
 import { findSeparatrices } from "./manifolds.js";
 import { TRAJECTORY_ABSOLUTE_TOL_OF_WIDTH, TRAJECTORY_RELATIVE_TOL } from "./integrate.js";
+import { assembleBasinResult, DEFAULT_BASIN_OPTIONS, planBasins, startRefinement, type BasinOptions, type BasinPlan } from "./basins/index.js";
+import { instantiateBasinKernel } from "./basins/kernel.js";
+import { runRefinementAsync, runRefinementSync, type BatchEvaluator } from "./basins/refine.js";
+import { BASIN_ABSOLUTE_TOL_OF_WIDTH, BASIN_RELATIVE_TOL } from "./basins/kernel.js";
 
 export interface AnalysisOptions {
   equilibria: EquilibriumOptions;
   trajectories: TrajectoryOptions;
+  basins: BasinOptions;
 }
 
 export const DEFAULT_ANALYSIS_OPTIONS: AnalysisOptions = {
   equilibria: DEFAULT_EQUILIBRIUM_OPTIONS,
   trajectories: DEFAULT_TRAJECTORY_OPTIONS,
+  basins: DEFAULT_BASIN_OPTIONS,
 };
 
-/** Portrait trajectories and separatrices run this many slowest time scales (or the longest scenario horizon, if longer). */
+/** Portrait trajectories, separatrices and basin trajectories run this many slowest time scales (or the longest scenario horizon, if longer). */
 const PORTRAIT_TIME_SCALES = 60;
 
 export type ProgressReporter = (stage: string, done: number, total: number) => void;
 
-/** Model → Results: every analysis pass, in a fixed order. Pure and deterministic. */
-export function analyze(model: Model, options: AnalysisOptions = DEFAULT_ANALYSIS_OPTIONS, progress?: ProgressReporter): Results {
+/** Options as the spec may set them: the spec's `analysis` block over the defaults. */
+export function optionsForModel(model: Model, base: AnalysisOptions = DEFAULT_ANALYSIS_OPTIONS): AnalysisOptions {
+  const basins = model.spec.analysis.basins;
+  return { ...base, basins: { ...base.basins, ...basins } };
+}
+
+/** Steps 1–5 of the analysis: everything but the basin map, plus the basin map's plan. */
+function analyzeCore(model: Model, options: AnalysisOptions, progress?: ProgressReporter): { results: Omit<Results, "basins">; plan: BasinPlan } {
   const diagnostics: Diagnostic[] = [];
+  // 1. equilibria and their stability
   progress?.("equilibria", 0, 1);
   const equilibria = findEquilibria(model, options.equilibria, diagnostics);
   progress?.("equilibria", 1, 1);
 
+  // 2. scenario trajectories, 3. separatrices, 4. portrait trajectories (periodic orbits are solved as they are met)
   const box = windowOf(model);
   const forward = buildFlowContext(model, equilibria, box, 1);
   const backward = buildFlowContext(model, equilibria, box, -1);
@@ -40,12 +54,16 @@ export function analyze(model: Model, options: AnalysisOptions = DEFAULT_ANALYSI
   const scenarios = integrateScenarios(model, forward, registry, options.trajectories);
   progress?.("trajectories", 1, 3);
   const longest = Math.max(0, ...model.spec.scenarios.map((s) => s.horizon));
-  const portraitHorizon = Math.max(longest, PORTRAIT_TIME_SCALES * flowTimeScale(equilibria));
+  const timeScale = flowTimeScale(equilibria);
+  const portraitHorizon = Math.max(longest, PORTRAIT_TIME_SCALES * timeScale);
   const separatrices = findSeparatrices(model, equilibria, box, forward, backward, registry, portraitHorizon, options.trajectories.maxPathPoints);
   progress?.("trajectories", 2, 3);
   const trajectories = integratePortrait(model, equilibria, box, registry, options.trajectories, portraitHorizon, diagnostics);
   progress?.("trajectories", 3, 3);
-  return {
+
+  // 5. the basin map's kernel, for the attractors now known
+  const plan = planBasins(model, equilibria, registry.cycles, box, portraitHorizon, timeScale, options.basins, diagnostics);
+  const results: Omit<Results, "basins"> = {
     keel: KEEL_VERSION,
     spec: { id: model.spec.id, sha256: model.spec.sha256 },
     model: {
@@ -71,6 +89,52 @@ export function analyze(model: Model, options: AnalysisOptions = DEFAULT_ANALYSI
         absoluteToleranceOfWindow: TRAJECTORY_ABSOLUTE_TOL_OF_WIDTH,
         portraitHorizon,
       },
+      basins: {
+        ...options.basins,
+        integrator: "Dormand–Prince 5(4), generated for the model",
+        relativeTolerance: BASIN_RELATIVE_TOL,
+        absoluteToleranceOfWindow: BASIN_ABSOLUTE_TOL_OF_WIDTH,
+        horizon: portraitHorizon,
+      },
     },
   };
+  return { results, plan };
+}
+
+/** The results' key order is fixed here: basins sit after the trajectories. */
+function withBasins(core: Omit<Results, "basins">, basins: Results["basins"]): Results {
+  const { assumptions, diagnostics, settings, ...head } = core;
+  return { ...head, basins, assumptions, diagnostics, settings };
+}
+
+/** Model → Results, every pass in this thread. Pure and deterministic. */
+export function analyze(model: Model, options: AnalysisOptions = optionsForModel(model), progress?: ProgressReporter): Results {
+  const { results, plan } = analyzeCore(model, options, progress);
+  const kernel = instantiateBasinKernel(plan.kernelSource);
+  progress?.("basins", 0, 1);
+  const grid = runRefinementSync(startRefinement(plan), (starts) => {
+    const out = new Int32Array(starts.length / 2);
+    kernel(starts, out);
+    return out;
+  });
+  progress?.("basins", 1, 1);
+  return withBasins(results, assembleBasinResult(plan, grid));
+}
+
+/**
+ * The same Results, with the basin map's batches sent to `evaluate` (a worker pool). Labels
+ * depend only on each start, so the answer does not depend on the number of workers.
+ */
+export async function analyzeAsync(
+  model: Model,
+  evaluate: (kernelSource: string) => BatchEvaluator,
+  options: AnalysisOptions = optionsForModel(model),
+  progress?: ProgressReporter,
+): Promise<Results> {
+  const { results, plan } = analyzeCore(model, options, progress);
+  const batch = evaluate(plan.kernelSource);
+  progress?.("basins", 0, 1);
+  const grid = await runRefinementAsync(startRefinement(plan), batch);
+  progress?.("basins", 1, 1);
+  return withBasins(results, assembleBasinResult(plan, grid));
 }

@@ -3,11 +3,13 @@ import type { EquilibriumResult } from "./equilibria.js";
 import type { PortraitTrajectory, ScenarioResult } from "./trajectories.js";
 import type { CycleResult } from "./cycles.js";
 import type { SeparatrixResult } from "./manifolds.js";
+import type { BasinResult } from "./basins/index.js";
 
 export type { EquilibriumResult } from "./equilibria.js";
 export type { PortraitTrajectory, ScenarioResult } from "./trajectories.js";
 export type { CycleResult } from "./cycles.js";
 export type { SeparatrixResult, ManifoldEnd } from "./manifolds.js";
+export type { BasinResult } from "./basins/index.js";
 export type { Fate, TrajectoryPath } from "./flow.js";
 export type { StabilityResult, EquilibriumType, Complex } from "./stability.js";
 
@@ -38,6 +40,7 @@ export interface Results {
   cycles: CycleResult[];
   separatrices: SeparatrixResult[];
   trajectories: PortraitTrajectory[];
+  basins: BasinResult;
   assumptions: AssumptionResult[];
   diagnostics: Diagnostic[];
   /** Settings every pass used, so the dossier's methods section and `verify` can restate them. */

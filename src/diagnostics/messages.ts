@@ -37,6 +37,8 @@ export const messages = {
     `initial ${state} = ${value} lies outside the window [${lo}, ${hi}]`,
   rangeExcludesValue: (value: number, lo: number, hi: number) =>
     `the range [${lo}, ${hi}] does not contain the value ${value}`,
+  basinGrid: (resolution: number, coarse: number) =>
+    `the basin resolution ${resolution} must be the coarse size ${coarse} times a power of two (e.g. 1024 and 64)`,
   planarOnly: (n: number) => `keel analyses planar models: exactly 2 states are needed, found ${n}`,
   // expression errors
   unexpectedCharacter: (ch: string) =>

@@ -45,6 +45,7 @@ export function normalizeSpec(spec: KeelSpecInput, sha256: string): NormalizedSp
     })),
     assumptions: pick(spec.assumptions, [], "assumptions").map((a) => ({ text: a.text, condition: a.condition ?? null })),
     cautions: pick(spec.cautions, [], "cautions"),
+    analysis: { basins: { ...(pick(spec.analysis, {}, "analysis").basins ?? {}) } },
     defaulted,
     sha256,
   };

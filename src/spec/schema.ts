@@ -84,6 +84,20 @@ export const KeelSpecSchema = z
     scenarios: z.array(ScenarioSpecSchema).optional().describe("Starting states to follow. Default: none."),
     assumptions: z.array(AssumptionSpecSchema).optional().describe("Assumptions. Default: none."),
     cautions: z.array(z.string()).optional().describe("Cautions specific to this model, printed in the dossier."),
+    analysis: z
+      .strictObject({
+        basins: z
+          .strictObject({
+            resolution: z.number().int().min(8).max(4096).optional()
+              .describe("Effective cells per side of the basin map. Default 1024."),
+            coarse: z.number().int().min(4).max(1024).optional()
+              .describe("Cells per side of the first uniform pass; resolution/coarse must be a power of two. Default 64."),
+          })
+          .optional()
+          .describe("Basin map settings."),
+      })
+      .optional()
+      .describe("Settings of the analysis passes. Default: keel's defaults."),
   })
   .describe("A keel model spec: one planar ODE model and its context.");
 

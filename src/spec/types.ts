@@ -43,6 +43,8 @@ export interface NormalizedSpec {
   scenarios: NormalizedScenario[];
   assumptions: NormalizedAssumption[];
   cautions: string[];
+  /** Analysis settings the spec sets (only those given; the analysis fills the rest). */
+  analysis: { basins: { resolution?: number; coarse?: number } };
   /** JSON paths of keys that were absent and took their default, for the dossier. */
   defaulted: string[];
   /** SHA-256 of the canonical serialisation of the spec as written. */

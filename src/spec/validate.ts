@@ -74,6 +74,15 @@ export function validateSpecRules(spec: KeelSpecInput): SpecIssue[] {
         add("initial_outside_window", ["scenarios", i, "initial", s.name], messages.initialOutsideWindow(s.name, v, lo, hi));
     }
   }
+  const basins = spec.analysis?.basins;
+  if (basins) {
+    const resolution = basins.resolution ?? 1024;
+    const coarse = basins.coarse ?? 64;
+    const ratio = resolution / coarse;
+    if (!(Number.isInteger(ratio) && ratio >= 1 && (ratio & (ratio - 1)) === 0))
+      add("basin_grid", ["analysis", "basins"], messages.basinGrid(resolution, coarse));
+  }
+
   const scenarioNames = new Map<string, number>();
   for (const [i, sc] of (spec.scenarios ?? []).entries()) {
     const first = scenarioNames.get(sc.name);

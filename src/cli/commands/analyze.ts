@@ -1,16 +1,17 @@
 import { join } from "node:path";
-import { runPipeline } from "../../pipeline.js";
+import { runAnalysis } from "./run.js";
 import { serializeResults } from "../../analysis/serialize.js";
 import { inputError, makeProgress, readSpecFile, writeFileAtomic } from "../io.js";
 
 export interface AnalyzeOptions {
   out?: string;
   quiet: boolean;
+  jobs?: number;
 }
 
 /** `keel analyze SPEC [--out DIR]`: write DIR/results.json atomically. Returns the path written. */
-export function runAnalyze(file: string, options: AnalyzeOptions): string {
-  const output = runPipeline(readSpecFile(file), undefined, makeProgress(options.quiet));
+export async function runAnalyze(file: string, options: AnalyzeOptions): Promise<string> {
+  const output = await runAnalysis(readSpecFile(file), options.jobs, makeProgress(options.quiet));
   if (!output.ok) throw inputError(output.issues, file);
   const dir = options.out ?? join("out", output.value.spec.id);
   const path = join(dir, "results.json");

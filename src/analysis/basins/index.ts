@@ -1,0 +1,103 @@
+import type { Model } from "../../model/types.js";
+import type { Diagnostic } from "../../diagnostics/issue.js";
+import type { EquilibriumResult } from "../equilibria.js";
+import type { CycleResult } from "../cycles.js";
+import type { Box } from "../window.js";
+import { findCaptureRegions } from "../capture.js";
+import { BASIN_ABSOLUTE_TOL_OF_WIDTH, BASIN_RELATIVE_TOL, generateBasinKernel, type BasinTargets, type KernelSettings } from "./kernel.js";
+import { basinRefinement, encodeRuns, labelFractions, type BasinGrid, type BasinGridOptions } from "./refine.js";
+import { labelName, LABEL_BLOW_UP, LABEL_LEFT_WINDOW, LABEL_UNDECIDED } from "./labels.js";
+
+export interface BasinOptions extends BasinGridOptions {}
+
+export const DEFAULT_BASIN_OPTIONS: BasinOptions = { resolution: 1024, coarse: 64 };
+
+export interface BasinResult {
+  attractors: string[];
+  /** Area fraction of the window per attractor id, and for left-window, blow-up, undecided. */
+  fractions: Record<string, number>;
+  /** Largest error of any fraction from the finest cells whose label is uncertain (they border another label). */
+  errorBound: number;
+  resolution: number;
+  coarse: number;
+  trajectories: number;
+  /** Trajectories a uniform grid at the same resolution would need. */
+  uniformTrajectories: number;
+  /** Row-major from the lowest row of the second state; values index `legend`. */
+  grid: { nx: number; ny: number; legend: string[]; runs: number[] };
+  /** Scaled radius of each attractor's verified capture region. */
+  captureRadius: Record<string, number>;
+}
+
+export interface BasinPlan {
+  kernelSource: string;
+  targets: BasinTargets;
+  options: BasinOptions;
+  box: Box;
+}
+
+/** Which attractors a basin map can label, and the kernel that labels them. */
+export function planBasins(model: Model, equilibria: EquilibriumResult[], cycles: CycleResult[], box: Box, horizon: number, timeScale: number, options: BasinOptions, diagnostics: Diagnostic[]): BasinPlan {
+  const regions = findCaptureRegions(model, equilibria, box, 1);
+  const attractors: string[] = [];
+  const targets: BasinTargets = { attractors, sinks: [], slowSinks: [], cycles: [] };
+  for (const e of equilibria) {
+    if (e.stable !== true) continue;
+    const region = regions.find((r) => r.equilibrium === e.id);
+    if (!region) {
+      diagnostics.push({ severity: "warning", stage: "basins", message: `no capture region could be verified for ${e.id}; its basin is reported as undecided` });
+      continue;
+    }
+    targets.sinks.push({ label: attractors.length, region });
+    attractors.push(e.id);
+  }
+  for (const e of equilibria) {
+    if (e.hyperbolic) continue;
+    targets.slowSinks.push({ label: attractors.length, center: [e.point[model.stateNames[0]], e.point[model.stateNames[1]]] });
+    attractors.push(e.id);
+  }
+  for (const c of cycles) {
+    if (c.stability !== "stable") continue;
+    const around = equilibria.find((e) => e.id === c.around)!;
+    const center: [number, number] = [around.point[model.stateNames[0]], around.point[model.stateNames[1]]];
+    const radius = (c.section.point[model.stateNames[0]] - center[0]) / box.width[0];
+    targets.cycles.push({ label: attractors.length, center, sense: c.section.sense, radius });
+    attractors.push(c.id);
+  }
+  const settings: KernelSettings = {
+    horizon,
+    initialStep: Math.min(horizon, timeScale) * 1e-3,
+    relativeTolerance: BASIN_RELATIVE_TOL,
+    absoluteOfWidth: BASIN_ABSOLUTE_TOL_OF_WIDTH,
+    maxSteps: 200_000,
+    maxStepsOutside: 2_000,
+  };
+  return { kernelSource: generateBasinKernel(model, box, targets, settings), targets, options, box };
+}
+
+export function startRefinement(plan: BasinPlan) {
+  return basinRefinement(plan.box, plan.options);
+}
+
+const SPECIAL_ORDER = [LABEL_LEFT_WINDOW, LABEL_BLOW_UP, LABEL_UNDECIDED];
+
+/** The labelled grid as results: fractions, error bound, and a run-length-encoded grid. */
+export function assembleBasinResult(plan: BasinPlan, grid: BasinGrid): BasinResult {
+  const attractors = plan.targets.attractors;
+  const legendLabels = [...attractors.map((_, k) => k), ...SPECIAL_ORDER];
+  const legend = legendLabels.map((l) => labelName(l, attractors));
+  const indexOf = new Map(legendLabels.map((l, k) => [l, k]));
+  const fractions = labelFractions(grid.labels, attractors);
+  const captureRadius = Object.fromEntries(plan.targets.sinks.map((s) => [attractors[s.label], s.region.radius]));
+  return {
+    attractors,
+    fractions,
+    errorBound: grid.boundaryCells / grid.labels.length,
+    resolution: grid.resolution,
+    coarse: plan.options.coarse,
+    trajectories: grid.trajectories,
+    uniformTrajectories: grid.resolution * grid.resolution,
+    grid: { nx: grid.resolution, ny: grid.resolution, legend, runs: encodeRuns(grid.labels, (l) => indexOf.get(l)!) },
+    captureRadius,
+  };
+}

@@ -1,0 +1,160 @@
+import type { Model } from "../../model/types.js";
+import { emitExpression, literal, PRELUDE } from "../../model/codegen.js";
+import type { Box } from "../window.js";
+import type { CaptureRegion } from "../capture.js";
+import { LABEL_BLOW_UP, LABEL_LEFT_WINDOW, LABEL_UNDECIDED } from "./labels.js";
+import { ALGEBRAIC_HEADING, ALGEBRAIC_NEAR, ALGEBRAIC_STEPS, BLOWUP_WINDOWS, WINDOW_EXIT_SLACK } from "../flow.js";
+
+/**
+ * The basin kernel: a Dormand–Prince 5(4) integrator generated for this model, with the
+ * right-hand side inlined as straight-line scalar code (no arrays inside the step) and the
+ * attractor tests inlined as constants. Written by hand because the general integrators
+ * allocate per step and dominate the basin map's cost; it is validated against odex in tests.
+ *
+ * The generated function has the signature (starts: Float64Array, out: Int32Array) => number,
+ * labelling starts[2k], starts[2k+1] into out[k] and returning the total number of steps.
+ */
+export interface BasinTargets {
+  /** Attractor ids in label order (label k is attractors[k]). */
+  attractors: string[];
+  sinks: { label: number; region: CaptureRegion }[];
+  slowSinks: { label: number; center: [number, number] }[];
+  cycles: { label: number; center: [number, number]; sense: 1 | -1; radius: number }[];
+}
+
+export interface KernelSettings {
+  horizon: number;
+  initialStep: number;
+  relativeTolerance: number;
+  /** Absolute tolerance as a fraction of each window width. */
+  absoluteOfWidth: number;
+  maxSteps: number;
+  /** Steps allowed outside the window to tell a blow-up from a plain exit. */
+  maxStepsOutside: number;
+}
+
+/**
+ * Basin labels need the attractor reached, not an accurate path: 1e-7 relative and 1e-9 of the
+ * window keep every label decided by the verified capture regions.
+ */
+export const BASIN_RELATIVE_TOL = 1e-7;
+export const BASIN_ABSOLUTE_TOL_OF_WIDTH = 1e-9;
+/** A crossing of a stable cycle's section this close (scaled) to its fixed point, twice and closing in, labels the cycle. */
+export const CYCLE_CAPTURE_RADIUS = 1e-3;
+
+// Dormand & Prince (1980), "A family of embedded Runge–Kutta formulae", J. Comput. Appl. Math. 6(1): 19–26.
+const A = [
+  [],
+  [1 / 5],
+  [3 / 40, 9 / 40],
+  [44 / 45, -56 / 15, 32 / 9],
+  [19372 / 6561, -25360 / 2187, 64448 / 6561, -212 / 729],
+  [9017 / 3168, -355 / 33, 46732 / 5247, 49 / 176, -5103 / 18656],
+  [35 / 384, 0, 500 / 1113, 125 / 192, -2187 / 6784, 11 / 84],
+];
+const E = [71 / 57600, 0, -71 / 16695, 71 / 1920, -17253 / 339200, 22 / 525, -1 / 40];
+
+export function generateBasinKernel(model: Model, box: Box, targets: BasinTargets, settings: KernelSettings): string {
+  const values = Array.from(model.parameterValues);
+  const f0 = emitExpression(model.equations[0].node, { parameterValues: values });
+  const f1 = emitExpression(model.equations[1].node, { parameterValues: values });
+  const L = literal;
+  const stage = (k: number) => {
+    // stage k (1-based, k ≥ 2): s = y + h Σ a_kj k_j, then k_k = f(s)
+    const terms = (comp: "a" | "b") =>
+      A[k - 1].map((a, j) => (a === 0 ? "" : ` + h * ${L(a)} * k${j + 1}${comp}`)).join("");
+    return `{ const s0 = x${terms("a")}, s1 = y${terms("b")}; k${k}a = ${f0}; k${k}b = ${f1}; }`;
+  };
+  const sinkTests = targets.sinks.map(({ label, region }) => {
+    const [p00, p01, , p11] = region.p;
+    return `{ const z0 = (x - ${L(region.center[0])}) * ${L(1 / box.width[0])}, z1 = (y - ${L(region.center[1])}) * ${L(1 / box.width[1])};
+        if (${L(p00)} * z0 * z0 + ${L(2 * p01)} * z0 * z1 + ${L(p11)} * z1 * z1 < ${L(region.level)}) { label = ${label}; break; } }`;
+  }).join("\n      ");
+  const slowTests = targets.slowSinks.map(({ label, center }, i) => `{
+        const q0 = (${L(center[0])} - x) * ${L(1 / box.width[0])}, q1 = (${L(center[1])} - y) * ${L(1 / box.width[1])};
+        const d = Math.sqrt(q0 * q0 + q1 * q1);
+        const v0 = k1a * ${L(1 / box.width[0])}, v1 = k1b * ${L(1 / box.width[1])};
+        const heading = (v0 * q0 + v1 * q1) / ((Math.sqrt(v0 * v0 + v1 * v1) * d) || 1);
+        if (d < ${L(ALGEBRAIC_NEAR)} && heading > ${L(ALGEBRAIC_HEADING)} && d < slowLast${i}) { slowCount${i}++; slowLast${i} = d; }
+        else { slowCount${i} = 0; slowLast${i} = Infinity; }
+        if (slowCount${i} >= ${ALGEBRAIC_STEPS} || d < 1e-12) { label = ${label}; break; } }`).join("\n      ");
+  const cycleTests = targets.cycles.map(({ label, center, sense, radius }, i) => `{
+        const before = yPrev - ${L(center[1])}, after = y - ${L(center[1])};
+        if (${sense === 1 ? "before < 0 && after >= 0" : "before > 0 && after <= 0"}) {
+          const w = before / (before - after);
+          const xc = xPrev + w * (x - xPrev);
+          const r = (xc - ${L(center[0])}) * ${L(1 / box.width[0])};
+          if (r > 0) {
+            const gap = Math.abs(r - ${L(radius)});
+            if (gap < ${L(CYCLE_CAPTURE_RADIUS)} && gap < cycleGap${i}) { if (++cycleHits${i} >= 2) { label = ${label}; break; } }
+            else cycleHits${i} = 0;
+            cycleGap${i} = gap;
+          }
+        } }`).join("\n      ");
+  const perStart = [
+    ...targets.slowSinks.map((_, i) => `let slowCount${i} = 0, slowLast${i} = Infinity;`),
+    ...targets.cycles.map((_, i) => `let cycleHits${i} = 0, cycleGap${i} = Infinity;`),
+  ].join(" ");
+  const [lo0, lo1] = box.lo, [hi0, hi1] = box.hi, [w0, w1] = box.width;
+  const atol0 = settings.absoluteOfWidth * w0, atol1 = settings.absoluteOfWidth * w1;
+  const rtol = settings.relativeTolerance;
+  return `${PRELUDE}
+return function basinKernel(starts, out) {
+  let totalSteps = 0;
+  const n = out.length;
+  for (let idx = 0; idx < n; idx++) {
+    let x = starts[2 * idx], y = starts[2 * idx + 1];
+    let t = 0, h = ${L(settings.initialStep)}, steps = 0, outside = 0, label = ${LABEL_UNDECIDED};
+    let k1a, k1b, k2a, k2b, k3a, k3b, k4a, k4b, k5a, k5b, k6a, k6b, k7a, k7b;
+    { const s0 = x, s1 = y; k1a = ${f0}; k1b = ${f1}; }
+    let xPrev = x, yPrev = y;
+    ${perStart}
+    for (;;) {
+      if (!(k1a === k1a && k1b === k1b) || k1a === Infinity || k1a === -Infinity || k1b === Infinity || k1b === -Infinity) { label = ${LABEL_UNDECIDED}; break; }
+      if (t >= ${L(settings.horizon)} || steps >= ${settings.maxSteps}) { label = outside > 0 ? ${LABEL_LEFT_WINDOW} : ${LABEL_UNDECIDED}; break; }
+      if (t + h > ${L(settings.horizon)}) h = ${L(settings.horizon)} - t;
+      ${stage(2)}
+      ${stage(3)}
+      ${stage(4)}
+      ${stage(5)}
+      ${stage(6)}
+      const xn = x + h * (${A[6].map((a, j) => (a === 0 ? "" : `${L(a)} * k${j + 1}a`)).filter(Boolean).join(" + ")});
+      const yn = y + h * (${A[6].map((a, j) => (a === 0 ? "" : `${L(a)} * k${j + 1}b`)).filter(Boolean).join(" + ")});
+      { const s0 = xn, s1 = yn; k7a = ${f0}; k7b = ${f1}; }
+      const ea = h * (${E.map((e, j) => (e === 0 ? "" : `${L(e)} * k${j + 1}a`)).filter(Boolean).join(" + ")});
+      const eb = h * (${E.map((e, j) => (e === 0 ? "" : `${L(e)} * k${j + 1}b`)).filter(Boolean).join(" + ")});
+      const sa = ea / (${L(atol0)} + ${L(rtol)} * Math.max(Math.abs(x), Math.abs(xn)));
+      const sb = eb / (${L(atol1)} + ${L(rtol)} * Math.max(Math.abs(y), Math.abs(yn)));
+      const err = Math.sqrt(0.5 * (sa * sa + sb * sb));
+      if (!(err === err)) { h *= 0.25; if (h < 1e-300) { label = ${LABEL_UNDECIDED}; break; } continue; }
+      // step factor 0.9 err^(-1/5) through exp and log: V8's Math.pow costs several multiplies
+      const factor = err === 0 ? 5 : Math.min(5, Math.max(0.2, 0.9 * Math.exp(-0.2 * Math.log(err))));
+      if (err > 1) { h *= Math.min(1, factor); continue; }
+      xPrev = x; yPrev = y;
+      t += h; x = xn; y = yn; k1a = k7a; k1b = k7b; steps++;
+      h *= factor;
+      const out0 = Math.max((${L(lo0)} - x) * ${L(1 / w0)}, (x - ${L(hi0)}) * ${L(1 / w0)});
+      const out1 = Math.max((${L(lo1)} - y) * ${L(1 / w1)}, (y - ${L(hi1)}) * ${L(1 / w1)});
+      const off = Math.max(out0, out1);
+      if (off > ${L(BLOWUP_WINDOWS)}) { label = ${LABEL_BLOW_UP}; break; }
+      if (off > ${L(WINDOW_EXIT_SLACK)} || outside > 0) {
+        if (++outside > ${settings.maxStepsOutside}) { label = ${LABEL_LEFT_WINDOW}; break; }
+        continue;
+      }
+      ${sinkTests}
+      ${slowTests}
+      ${cycleTests}
+    }
+    out[idx] = label;
+    totalSteps += steps;
+  }
+  return totalSteps;
+};`;
+}
+
+export type BasinKernel = (starts: Float64Array, out: Int32Array) => number;
+
+/** Instantiates kernel source; the source comes only from whitelisted expression trees and numbers. */
+export function instantiateBasinKernel(source: string): BasinKernel {
+  return new Function(source)() as BasinKernel;
+}

@@ -36,9 +36,27 @@ function buildProgram(): Command {
     .description("run every analysis and write DIR/results.json")
     .argument("<spec>", "path to the spec JSON file")
     .option("-o, --out <dir>", "output folder (default: out/<id>/)")
-    .action((spec: string, opts: { out?: string }) => {
-      const path = runAnalyze(spec, { out: opts.out, quiet: Boolean(program.opts().quiet) });
+    .action(async (spec: string, opts: { out?: string }) => {
+      const path = await runAnalyze(spec, { out: opts.out, quiet: Boolean(program.opts().quiet), jobs: program.opts().jobs });
       if (!Boolean(program.opts().quiet)) process.stderr.write(`wrote ${path}\n`);
+    });
+
+  program
+    .command("build")
+    .description("write results.json, figures/, dossier.html and dossier.pdf into DIR")
+    .argument("<spec>", "path to the spec JSON file")
+    .option("-o, --out <dir>", "output folder (default: out/<id>/)")
+    .option("--paper <size>", "paper size: a4 or letter", "a4")
+    .option("--pdf", "require the PDF: a missing Chromium is an error")
+    .option("--no-pdf", "skip the PDF")
+    .action(async (spec: string, opts: { out?: string; paper: string; pdf?: boolean }) => {
+      if (opts.paper !== "a4" && opts.paper !== "letter") throw new CliExit(EXIT.input, `error: --paper must be a4 or letter, got '${opts.paper}'`);
+      // with both --pdf and --no-pdf declared, commander leaves the value undefined unless one is given
+      const explicitPdf = opts.pdf;
+      // loaded on demand: the renderer's dependencies are not needed by check and analyze
+      const { runBuild } = await import("./commands/build.js");
+      const written = await runBuild(spec, { out: opts.out, quiet: Boolean(program.opts().quiet), paper: opts.paper, pdf: explicitPdf, jobs: program.opts().jobs });
+      if (!program.opts().quiet) process.stderr.write(`wrote ${written.length} files, including ${written.filter((w) => /dossier\.(html|pdf)$/.test(w)).join(" and ")}\n`);
     });
 
   program
@@ -63,8 +81,10 @@ export async function main(argv: string[]): Promise<number> {
       return err.code;
     }
     if (err instanceof CommanderError) {
-      // help and version are successful exits; commander already printed them
-      if (err.code === "commander.helpDisplayed" || err.code === "commander.version" || err.code === "commander.help") return EXIT.ok;
+      // help and version are successful exits; commander already printed them. Help shown because
+      // no command was given ("commander.help" with exit code 1) is a usage error.
+      if (err.code === "commander.helpDisplayed" || err.code === "commander.version") return EXIT.ok;
+      if (err.code === "commander.help" && err.exitCode === 0) return EXIT.ok;
       return EXIT.input;
     }
     process.stderr.write(messages.internal((err as Error)?.message ?? String(err)) + "\n");

@@ -13,15 +13,24 @@ import { assembleBasinResult, DEFAULT_BASIN_OPTIONS, planBasins, startRefinement
 import { instantiateBasinKernel } from "./basins/kernel.js";
 import { runRefinementAsync, runRefinementSync, type BatchEvaluator } from "./basins/refine.js";
 import { BASIN_ABSOLUTE_TOL_OF_WIDTH, BASIN_RELATIVE_TOL } from "./basins/kernel.js";
+import { DEFAULT_NULLCLINE_OPTIONS, findNullclines, type NullclineOptions } from "./nullclines.js";
+import { DEFAULT_REGION_OPTIONS, findRegions, type RegionOptions } from "./regions.js";
+import { computeDirectionField, DEFAULT_DIRECTION_FIELD_OPTIONS, type DirectionFieldOptions } from "./field.js";
 
 export interface AnalysisOptions {
   equilibria: EquilibriumOptions;
+  nullclines: NullclineOptions;
+  regions: RegionOptions;
+  field: DirectionFieldOptions;
   trajectories: TrajectoryOptions;
   basins: BasinOptions;
 }
 
 export const DEFAULT_ANALYSIS_OPTIONS: AnalysisOptions = {
   equilibria: DEFAULT_EQUILIBRIUM_OPTIONS,
+  nullclines: DEFAULT_NULLCLINE_OPTIONS,
+  regions: DEFAULT_REGION_OPTIONS,
+  field: DEFAULT_DIRECTION_FIELD_OPTIONS,
   trajectories: DEFAULT_TRAJECTORY_OPTIONS,
   basins: DEFAULT_BASIN_OPTIONS,
 };
@@ -45,7 +54,12 @@ function analyzeCore(model: Model, options: AnalysisOptions, progress?: Progress
   const equilibria = findEquilibria(model, options.equilibria, diagnostics);
   progress?.("equilibria", 1, 1);
 
-  // 2. scenario trajectories, 3. separatrices, 4. portrait trajectories (periodic orbits are solved as they are met)
+  // 2. geometry of the portrait: nullclines, the regions they cut out, the direction field
+  const nullclines = findNullclines(model, equilibria, options.nullclines, diagnostics);
+  const regions = findRegions(model, nullclines, options.regions, diagnostics);
+  const field = computeDirectionField(model, options.field);
+
+  // 3. scenario trajectories, 4. separatrices, 5. portrait trajectories (periodic orbits are solved as they are met)
   const box = windowOf(model);
   const forward = buildFlowContext(model, equilibria, box, 1);
   const backward = buildFlowContext(model, equilibria, box, -1);
@@ -61,7 +75,7 @@ function analyzeCore(model: Model, options: AnalysisOptions, progress?: Progress
   const trajectories = integratePortrait(model, equilibria, box, registry, options.trajectories, portraitHorizon, diagnostics);
   progress?.("trajectories", 3, 3);
 
-  // 5. the basin map's kernel, for the attractors now known
+  // 6. the basin map's kernel, for the attractors now known
   const plan = planBasins(model, equilibria, registry.cycles, box, portraitHorizon, timeScale, options.basins, diagnostics);
   const results: Omit<Results, "basins"> = {
     keel: KEEL_VERSION,
@@ -74,6 +88,9 @@ function analyzeCore(model: Model, options: AnalysisOptions, progress?: Progress
       jacobian: model.jacobian.map((row) => row.map((e) => ({ text: e.text, tex: e.tex }))),
     },
     equilibria,
+    nullclines,
+    regions,
+    field,
     scenarios,
     cycles: registry.cycles,
     separatrices,
@@ -82,6 +99,9 @@ function analyzeCore(model: Model, options: AnalysisOptions, progress?: Progress
     diagnostics,
     settings: {
       equilibria: options.equilibria,
+      nullclines: options.nullclines,
+      regions: options.regions,
+      field: options.field,
       trajectories: {
         ...options.trajectories,
         integrator: "odex (Hairer's GBS extrapolation, dense output)",

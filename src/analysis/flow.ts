@@ -8,7 +8,8 @@ import type { Box } from "./window.js";
  * Following one trajectory and deciding where it goes. The decisions, in the order tried at
  * every accepted step:
  *  1. non-finite right-hand side → undecided (reason given);
- *  2. farther than BLOWUP_WINDOWS window widths from the window → blow-up;
+ *  2. farther than BLOWUP_WINDOWS window widths from the window, and growing faster than
+ *     exponentially → blow-up (an exponential escape is a plain exit);
  *  3. inside a capture region of an attracting equilibrium → converged (linear approach);
  *  4. near a saddle with no component along its unstable direction → converged along the
  *     saddle's stable manifold (as on an invariant axis where a population is absent);
@@ -54,8 +55,15 @@ export interface FollowResult {
   evaluations: number;
 }
 
-/** Beyond this many window widths outside the window, growth is called a blow-up. */
+/** Beyond this many window widths outside the window, growth is called a blow-up ... */
 export const BLOWUP_WINDOWS = 1e6;
+/**
+ * ... if it is also faster than exponential: the e-folding time |z|/|z'| (window-scaled) is below
+ * this fraction of the time since the window exit. An exponential escape (a linear saddle) needs
+ * ln(1e6) ≈ 14 e-foldings to get that far, a fraction near 1/14, and it is a plain exit; in a
+ * finite-time blow-up, x ~ (t* − t)^−p, the e-folding time (t* − t)/p shrinks to nothing.
+ */
+export const BLOWUP_EFOLDING_FRACTION = 1e-2;
 /** A state may overshoot the window by this fraction of its width before it has left. */
 export const WINDOW_EXIT_SLACK = 1e-9;
 /** Saddle capture: within this scaled distance ... */
@@ -184,13 +192,16 @@ export function followTrajectory(ctx: FlowContext, start: readonly [number, numb
     steps++;
     path.t.push(t1); path.x.push(y[0]); path.y.push(y[1]);
     const out = outsideBy(box, y);
-    if (out > BLOWUP_WINDOWS) {
-      fate = { kind: "blow-up", t: t1, point: rec(y) };
-      return false;
-    }
     if (out > WINDOW_EXIT_SLACK && !exit) {
       const hit = locate(dense, t0, t1, (x) => outsideBy(box, x) > WINDOW_EXIT_SLACK);
       exit = { t: hit.t, point: hit.x, edge: edgeName(model, box, hit.x) };
+    }
+    if (out > BLOWUP_WINDOWS) {
+      model.rhs(y, fBuffer);
+      const eFolding = Math.hypot(y[0] / box.width[0], y[1] / box.width[1]) / Math.hypot(fBuffer[0] / box.width[0], fBuffer[1] / box.width[1]);
+      const sinceExit = t1 - (exit as FollowResult["exit"])!.t;
+      if (eFolding < BLOWUP_EFOLDING_FRACTION * sinceExit) fate = { kind: "blow-up", t: t1, point: rec(y) };
+      return false; // else the fate is the exit, below
     }
     if (exit) {
       prev[0] = y[0]; prev[1] = y[1];

@@ -2,6 +2,7 @@ import type { Model } from "../model/types.js";
 import type { Diagnostic } from "../diagnostics/issue.js";
 import type { EquilibriumResult } from "./equilibria.js";
 import { buildFlowContext, followTrajectory, type Fate, type FlowContext, type FollowResult, type TrajectoryPath } from "./flow.js";
+import { integrateFlow } from "./integrate.js";
 import { sameCycle, solvePeriodicOrbit, type CycleResult } from "./cycles.js";
 import type { Box } from "./window.js";
 
@@ -83,6 +84,35 @@ function recordOf(model: Model, x: ArrayLike<number>): Record<string, number> {
   return { [model.stateNames[0]]: x[0], [model.stateNames[1]]: x[1] };
 }
 
+/**
+ * The time series on an even grid of [0, tEnd], read from the integrator's dense output by
+ * integrating the scenario a second time with the same tolerances and step cap, so the steps
+ * repeat those of the first pass. Linear interpolation between step points is not enough: odex
+ * takes long steps, and the chord strays from the curve by percents (logistic growth: 6 %).
+ * Grid times the second pass does not reach (it can stop early where the right-hand side turns
+ * non-finite) fall back to the chord.
+ */
+function denseSeries(model: Model, ctx: FlowContext, start: [number, number], path: TrajectoryPath, horizon: number, points: number): TrajectoryPath {
+  const chord = evenSeries(path, points);
+  const tEnd = path.t[path.t.length - 1];
+  if (points < 2 || !(tEnd > 0)) return chord;
+  const out: TrajectoryPath = { t: [0], x: [start[0]], y: [start[1]] };
+  integrateFlow(model.rhs, start, tEnd, {
+    direction: ctx.direction,
+    tolerances: ctx.tolerances,
+    maxStep: horizon / 64,
+    maxSteps: 200_000,
+    onStep: ({ t1, dense }) => {
+      for (let i = out.t.length; i < points && chord.t[i] <= t1; i++) {
+        out.t.push(chord.t[i]); out.x.push(dense(0, chord.t[i])); out.y.push(dense(1, chord.t[i]));
+      }
+      return out.t.length < points;
+    },
+  });
+  for (let i = out.t.length; i < points; i++) { out.t.push(chord.t[i]); out.x.push(chord.x[i]); out.y.push(chord.y[i]); }
+  return out;
+}
+
 /** Resamples a path on an even time grid by linear interpolation between step points. */
 function evenSeries(path: TrajectoryPath, points: number): TrajectoryPath {
   const tEnd = path.t[path.t.length - 1];
@@ -116,7 +146,7 @@ export function integrateScenarios(model: Model, ctx: FlowContext, registry: Cyc
       horizon: sc.horizon,
       fate,
       path: thinPath(full, options.maxPathPoints),
-      series: evenSeries(full, options.seriesPoints),
+      series: denseSeries(model, ctx, start, full, sc.horizon, options.seriesPoints),
       exit: follow.exit ? { t: follow.exit.t, point: recordOf(model, follow.exit.point), edge: follow.exit.edge } : null,
       steps: follow.steps,
     };

@@ -4,12 +4,18 @@ import type { PortraitTrajectory, ScenarioResult } from "./trajectories.js";
 import type { CycleResult } from "./cycles.js";
 import type { SeparatrixResult } from "./manifolds.js";
 import type { BasinResult } from "./basins/index.js";
+import type { NullclineResult } from "./nullclines.js";
+import type { RegionResult } from "./regions.js";
+import type { DirectionFieldResult } from "./field.js";
 
 export type { EquilibriumResult } from "./equilibria.js";
 export type { PortraitTrajectory, ScenarioResult } from "./trajectories.js";
 export type { CycleResult } from "./cycles.js";
 export type { SeparatrixResult, ManifoldEnd } from "./manifolds.js";
 export type { BasinResult } from "./basins/index.js";
+export type { NullclineResult, NullclinePiece } from "./nullclines.js";
+export type { RegionResult } from "./regions.js";
+export type { DirectionFieldResult } from "./field.js";
 export type { Fate, TrajectoryPath } from "./flow.js";
 export type { StabilityResult, EquilibriumType, Complex } from "./stability.js";
 
@@ -36,6 +42,9 @@ export interface Results {
     jacobian: { text: string; tex: string }[][];
   };
   equilibria: EquilibriumResult[];
+  nullclines: NullclineResult[];
+  regions: RegionResult[];
+  field: DirectionFieldResult;
   scenarios: ScenarioResult[];
   cycles: CycleResult[];
   separatrices: SeparatrixResult[];

@@ -1,0 +1,169 @@
+import { ConstantNode, derivative, rationalize, simplify, type MathNode } from "mathjs";
+import type { Model } from "../model/types.js";
+import { differentiate } from "../model/derivatives.js";
+import { emitExpression } from "../model/codegen.js";
+import { expressionToTex, expressionToText } from "../model/tex.js";
+import type { EquilibriumResult } from "./equilibria.js";
+
+/**
+ * Symbolic invasion conditions. Where f_i = x_i g_i (the axis x_i = 0 is invariant: population
+ * i absent), the eigenvalue across the axis at a boundary equilibrium is ∂f_i/∂x_i there, which
+ * is i's per-capita growth rate g_i: i invades when it is positive. The resident state is put in
+ * closed form where its one-dimensional problem is linear or quadratic.
+ */
+export interface ParameterThreshold {
+  parameter: string;
+  /** The rate is linear in this parameter: it changes sign at this expression. */
+  text: string;
+  tex: string;
+  value: number;
+  /** The rate is positive (invasion) when the parameter is below ("<") or above (">") the threshold, other parameters at their nominal values. */
+  invadesWhen: "<" | ">";
+}
+
+export interface InvasionConditionResult {
+  /** Boundary equilibrium (at the nominal values). */
+  equilibrium: string;
+  /** The absent state whose invasion is tested. */
+  absent: string;
+  /** Resident state's value in closed form, when there is one. */
+  resident: { state: string; text: string; tex: string; closedForm: boolean } | null;
+  rate: { text: string; tex: string };
+  /** The rate at the nominal values, and the same eigenvalue as computed numerically at the equilibrium. */
+  value: number;
+  numericEigenvalue: number;
+  invades: boolean;
+  thresholds: ParameterThreshold[];
+}
+
+const symbol = (k: number) => `S${k}`;
+
+function substitute(node: MathNode, name: string, by: MathNode): MathNode {
+  return node.transform((n: any) => (n.type === "SymbolNode" && n.name === name ? by.cloneDeep() : n));
+}
+
+function isZero(node: MathNode): boolean {
+  try {
+    const s = simplify(node);
+    return (s as any).type === "ConstantNode" && (s as any).value === 0;
+  } catch {
+    return false;
+  }
+}
+
+function evaluateAt(node: MathNode, p: ArrayLike<number>, state: [number, number] = [0, 0]): number {
+  const fn = new Function("p", "s0", "s1", `return ${emitExpression(node, {})};`) as (p: ArrayLike<number>, s0: number, s1: number) => number;
+  return fn(p, state[0], state[1]);
+}
+
+/** Roots in closed form of a numerator that is a polynomial of degree ≤ 2 in `variable`; null otherwise. */
+function polynomialRoots(expr: MathNode, variable: string): MathNode[] | null {
+  let numerator: MathNode;
+  try {
+    numerator = (rationalize(expr, {}, true) as any).numerator as MathNode;
+  } catch {
+    return null;
+  }
+  const d1 = derivative(numerator, variable);
+  const d2 = derivative(d1, variable);
+  if (!isZero(derivative(d2, variable))) return null;
+  const zero = new ConstantNode(0);
+  const c0 = simplify(substitute(numerator, variable, zero));
+  const c1 = simplify(substitute(d1, variable, zero));
+  const c2 = simplify(substitute(simplify(`(${d2.toString()}) / 2`), variable, zero));
+  const linearRoot = (a: MathNode, b: MathNode) => simplify(`-(${a.toString()}) / (${b.toString()})`);
+  if (isZero(c2)) return isZero(c1) ? null : [linearRoot(c0, c1)];
+  if (isZero(c0)) return isZero(c1) ? [new ConstantNode(0)] : [new ConstantNode(0), linearRoot(c1, c2)];
+  const disc = `(${c1.toString()})^2 - 4 * (${c2.toString()}) * (${c0.toString()})`;
+  return [
+    simplify(`(-(${c1.toString()}) + sqrt(${disc})) / (2 * (${c2.toString()}))`),
+    simplify(`(-(${c1.toString()}) - sqrt(${disc})) / (2 * (${c2.toString()}))`),
+  ];
+}
+
+/** Agreement of a closed-form root with a numerical value, relative to the window. */
+const ROOT_MATCH_REL_TOL = 1e-7;
+
+export function findInvasionConditions(model: Model, equilibria: EquilibriumResult[]): InvasionConditionResult[] {
+  const out: InvasionConditionResult[] = [];
+  const names = model.stateNames;
+  const p = model.parameterValues;
+  const zero = new ConstantNode(0);
+  for (let i = 0; i < 2; i++) {
+    const spec = model.spec.states[i];
+    const invariant = isZero(substitute(model.equations[i].node, symbol(i), new ConstantNode(spec.min)));
+    if (!invariant) continue;
+    const j = 1 - i;
+    const jii = differentiate(model.equations[i].node, symbol(i));
+    for (const e of equilibria) {
+      if (e.point[names[i]] !== spec.min) continue;
+      const onAxis = substitute(jii, symbol(i), new ConstantNode(spec.min));
+      const residentValue = e.point[names[j]];
+      let rateNode = onAxis;
+      let resident: InvasionConditionResult["resident"] = null;
+      const width = model.spec.window[names[j]][1] - model.spec.window[names[j]][0];
+      if (residentValue === 0) {
+        rateNode = substitute(onAxis, symbol(j), zero);
+        resident = { state: names[j], text: "0", tex: "0", closedForm: true };
+      } else {
+        const restricted = substitute(model.equations[j].node, symbol(i), new ConstantNode(spec.min));
+        const roots = polynomialRoots(restricted, symbol(j)) ?? [];
+        const match = roots.find((r) => Math.abs(evaluateAt(r, p) - residentValue) <= ROOT_MATCH_REL_TOL * width);
+        if (match) {
+          rateNode = substitute(onAxis, symbol(j), match);
+          resident = { state: names[j], text: expressionToText(match, userNames(model)), tex: expressionToTex(match, userNames(model)), closedForm: true };
+        } else {
+          resident = { state: names[j], text: String(residentValue), tex: String(residentValue), closedForm: false };
+        }
+      }
+      let simplified: MathNode;
+      try { simplified = simplify(rateNode); } catch { simplified = rateNode; }
+      const value = evaluateAt(simplified, p, [e.point[names[0]], e.point[names[1]]]);
+      const numericEigenvalue = e.jacobian[i][i];
+      out.push({
+        equilibrium: e.id,
+        absent: names[i],
+        resident,
+        rate: { text: expressionToText(simplified, userNames(model)), tex: expressionToTex(simplified, userNames(model)) },
+        value,
+        numericEigenvalue,
+        invades: value > 0,
+        thresholds: resident?.closedForm ? linearThresholds(model, simplified) : [],
+      });
+    }
+  }
+  return out;
+}
+
+function userNames(model: Model): Map<string, string> {
+  const m = new Map<string, string>();
+  model.stateNames.forEach((n, k) => m.set(`S${k}`, n));
+  model.parameterNames.forEach((n, k) => m.set(`P${k}`, n));
+  return m;
+}
+
+/** For each parameter in which the rate is linear (rate = A + B p), the threshold −A/B. */
+function linearThresholds(model: Model, rate: MathNode): ParameterThreshold[] {
+  const out: ParameterThreshold[] = [];
+  const p = model.parameterValues;
+  model.parameterNames.forEach((name, k) => {
+    const sym = `P${k}`;
+    let slope: MathNode;
+    try { slope = simplify(derivative(rate, sym)); } catch { return; }
+    if (isZero(slope)) return;
+    if (!isZero(derivative(slope, sym))) return; // not linear in this parameter
+    const intercept = simplify(substitute(rate, sym, new ConstantNode(0)));
+    const threshold = simplify(`-(${intercept.toString()}) / (${slope.toString()})`);
+    const value = evaluateAt(threshold, p);
+    const b = evaluateAt(slope, p);
+    if (!Number.isFinite(value) || b === 0) return;
+    out.push({
+      parameter: name,
+      text: expressionToText(threshold, userNames(model)),
+      tex: expressionToTex(threshold, userNames(model)),
+      value,
+      invadesWhen: b > 0 ? ">" : "<",
+    });
+  });
+  return out;
+}

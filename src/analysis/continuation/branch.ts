@@ -1,0 +1,205 @@
+import {
+  correct, cross3, dot3, evaluate, scaledDistance, stepAlong, tangentAt,
+  type ContinuationSystem, type CurvePoint,
+} from "./system.js";
+
+/** How a traced direction stopped. */
+export type BranchEnd =
+  /** reached an end of the parameter range (the last point sits on it) */
+  | "range"
+  /** left the window by more than the margin */
+  | "window"
+  /** came back to its seed: a closed branch (an isola) */
+  | "closed"
+  | "step-limit"
+  /** the step shrank below the minimum without a converged corrector */
+  | "stalled";
+
+export interface TraceOptions {
+  /** First step, scaled arclength. */
+  initialStep: number;
+  /** Longest step, scaled arclength: bounds the spacing of the points a diagram draws. */
+  maxStep: number;
+  /** Shortest step before the direction is abandoned. */
+  minStep: number;
+  /** Largest angle (radians) between consecutive tangents; a larger turn is retried shorter. */
+  maxAngle: number;
+  /** A branch may run this fraction of the window width beyond it, so that bound crossings are seen. */
+  windowMargin: number;
+  /** Accepted steps per direction. */
+  maxSteps: number;
+}
+
+export const DEFAULT_TRACE_OPTIONS: TraceOptions = {
+  initialStep: 0.005, maxStep: 0.02, minStep: 1e-9, maxAngle: 0.15, windowMargin: 0.25, maxSteps: 4000,
+};
+
+export interface TracedPoint {
+  z: CurvePoint;
+  /** Unit tangent (scaled), oriented along the branch's stored order. */
+  t: Float64Array;
+  trace: number;
+  determinant: number;
+}
+
+export interface TracedBranch {
+  points: TracedPoint[];
+  /** Index of the seed in points. */
+  seed: number;
+  /** How the start and the end of points were reached. */
+  ends: [BranchEnd, BranchEnd];
+}
+
+/** Newton iterations per corrector while tracing; more means the step was too long. */
+const TRACE_ITERATIONS = 8;
+/** Step grows by this factor after an easy corrector (at most this many iterations)... */
+const GROW = 1.5;
+const EASY_ITERATIONS = 2;
+/** ...and shrinks after a hard one (at least this many). */
+const SHRINK = 0.7;
+const HARD_ITERATIONS = 5;
+/** A corrector that moved further than this fraction of the step has likely jumped to another branch. */
+const MAX_CORRECTION = 0.3;
+/** A branch has closed when it returns within one step of its seed after at least this many steps... */
+const CLOSE_MIN_STEPS = 10;
+
+function tracedPoint(sys: ContinuationSystem, z: CurvePoint, t: Float64Array): TracedPoint {
+  evaluate(sys, z);
+  const j = sys.j;
+  return { z, t, trace: j[0] + j[3], determinant: j[0] * j[3] - j[1] * j[2] };
+}
+
+function outsideWindow(sys: ContinuationSystem, z: ArrayLike<number>, margin: number): boolean {
+  const { lo, hi, width } = sys.box;
+  return [0, 1].some((k) => !(z[k] >= lo[k] - margin * width[k] && z[k] <= hi[k] + margin * width[k]));
+}
+
+/** The point of the branch between a and b (p on either side of bound) with p = bound exactly. */
+function clipToRange(sys: ContinuationSystem, a: CurvePoint, b: CurvePoint, bound: number): CurvePoint | null {
+  const w = (bound - a[2]) / (b[2] - a[2]);
+  const start = Float64Array.from([0, 1, 2].map((k) => a[k] + w * (b[k] - a[k])));
+  start[2] = bound;
+  const c = correct(sys, start, [0, 0, 1], start, TRACE_ITERATIONS);
+  if (!c.converged) return null;
+  c.z[2] = bound;
+  return c.z;
+}
+
+/** Follows the branch from z0 along t0 until a stop condition; returns the points after z0. */
+function traceDirection(sys: ContinuationSystem, z0: CurvePoint, t0: Float64Array, options: TraceOptions): { points: TracedPoint[]; end: BranchEnd } {
+  const points: TracedPoint[] = [];
+  const [lo, hi] = sys.range;
+  let z = z0;
+  let t = t0;
+  let h = options.initialStep;
+  let travelled = 0;
+  while (points.length < options.maxSteps) {
+    if (h < options.minStep) return { points, end: "stalled" };
+    const predicted = stepAlong(sys, z, t, h);
+    const c = correct(sys, predicted, t, predicted, TRACE_ITERATIONS);
+    const tNew = c.converged ? tangentAt(sys, c.z, t) ?? t : null;
+    if (!c.converged || !tNew || scaledDistance(sys, c.z, predicted) > MAX_CORRECTION * h || Math.acos(Math.min(1, dot3(t, tNew))) > options.maxAngle) {
+      h /= 2;
+      continue;
+    }
+    const zNew = c.z;
+    travelled += h;
+    if (zNew[2] < lo || zNew[2] > hi) {
+      const bound = zNew[2] < lo ? lo : hi;
+      const clipped = clipToRange(sys, z, zNew, bound);
+      points.push(clipped ? tracedPoint(sys, clipped, tangentAt(sys, clipped, tNew) ?? tNew) : tracedPoint(sys, zNew, tNew));
+      return { points, end: "range" };
+    }
+    points.push(tracedPoint(sys, zNew, tNew));
+    if (outsideWindow(sys, zNew, options.windowMargin)) return { points, end: "window" };
+    if (points.length >= CLOSE_MIN_STEPS && travelled > 3 * h && scaledDistance(sys, zNew, z0) <= h && dot3(tNew, t0) > 0) {
+      points.push(tracedPoint(sys, Float64Array.from(z0), t0));
+      return { points, end: "closed" };
+    }
+    z = zNew;
+    t = tNew;
+    const factor = c.iterations <= EASY_ITERATIONS ? GROW : c.iterations >= HARD_ITERATIONS ? SHRINK : 1;
+    h = Math.min(options.maxStep, h * factor);
+  }
+  return { points, end: "step-limit" };
+}
+
+/** Traces the whole branch through seed, both ways; null when the seed has no unique tangent. */
+export function traceBranch(sys: ContinuationSystem, seed: CurvePoint, options: TraceOptions): TracedBranch | null {
+  const t0 = tangentAt(sys, seed, null);
+  if (!t0) return null;
+  const first = tracedPoint(sys, Float64Array.from(seed), t0);
+  const forward = traceDirection(sys, first.z, t0, options);
+  if (forward.end === "closed") return { points: [first, ...forward.points], seed: 0, ends: ["closed", "closed"] };
+  const back = traceDirection(sys, first.z, Float64Array.from(t0, (v) => -v), options);
+  const backward = back.points.reverse().map((p) => ({ ...p, t: Float64Array.from(p.t, (v) => -v + 0) }));
+  return { points: [...backward, first, ...forward.points], seed: backward.length, ends: [back.end, forward.end] };
+}
+
+/** Scaled distance from z to the segment a–b. */
+function segmentDistance(sys: ContinuationSystem, z: ArrayLike<number>, a: ArrayLike<number>, b: ArrayLike<number>): number {
+  const s = sys.scale;
+  const d = [0, 1, 2].map((k) => (b[k] - a[k]) / s[k]);
+  const w = [0, 1, 2].map((k) => (z[k] - a[k]) / s[k]);
+  const len2 = dot3(d, d);
+  const f = len2 > 0 ? Math.min(1, Math.max(0, dot3(w, d) / len2)) : 0;
+  return Math.max(...[0, 1, 2].map((k) => Math.abs(w[k] - f * d[k])));
+}
+
+/** Index of the segment of branch nearest to z, and its distance. */
+export function nearestSegment(sys: ContinuationSystem, branch: TracedBranch, z: ArrayLike<number>): { index: number; distance: number } {
+  let best = { index: -1, distance: Infinity };
+  const pts = branch.points;
+  if (pts.length === 1) return { index: 0, distance: scaledDistance(sys, z, pts[0].z) };
+  for (let k = 0; k + 1 < pts.length; k++) {
+    const d = segmentDistance(sys, z, pts[k].z, pts[k + 1].z);
+    if (d < best.distance) best = { index: k, distance: d };
+  }
+  return best;
+}
+
+/** Distance a polygon of steps no longer than maxStep, turning at most maxAngle, keeps from its curve, with room. */
+export function onBranchTolerance(options: TraceOptions): number {
+  return Math.max(1e-6, options.maxStep * options.maxAngle);
+}
+
+/**
+ * Whether the curve point z with tangent t (null: do not compare tangents) lies on branch: within
+ * the polygon tolerance of one of its segments, and, when t is given, heading along it (so that a
+ * branch crossing this one at z is not mistaken for it).
+ */
+export function liesOnBranch(sys: ContinuationSystem, branch: TracedBranch, z: ArrayLike<number>, t: ArrayLike<number> | null, options: TraceOptions): boolean {
+  const near = nearestSegment(sys, branch, z);
+  if (near.distance > onBranchTolerance(options)) return false;
+  if (!t) return true;
+  const along = branch.points[near.index].t;
+  return Math.abs(dot3(t, along)) >= Math.cos(2 * options.maxAngle);
+}
+
+/** Offset (scaled) from a branch point at which the crossing branch is sought. */
+export const SWITCH_OFFSET = 1e-3;
+
+/**
+ * A point on the other branch through the branch point z (where the rows of [J | f_p] are
+ * parallel, so its null space is a plane holding both tangents): step from z by SWITCH_OFFSET
+ * along w, the direction of that plane orthogonal to the known tangent t, and correct within the
+ * hyperplane orthogonal to w. That hyperplane cuts the known branch only far away, so Newton
+ * lands on the crossing one.
+ */
+export function switchBranch(sys: ContinuationSystem, z: CurvePoint, t: ArrayLike<number>): CurvePoint[] {
+  evaluate(sys, z);
+  const r0 = sys.a.slice(0, 3);
+  const r1 = sys.a.slice(3, 6);
+  const row = Math.hypot(...r0) >= Math.hypot(...r1) ? r0 : r1;
+  const w = cross3(row, t);
+  const norm = Math.hypot(w[0], w[1], w[2]);
+  if (!(norm > 0)) return [];
+  for (let k = 0; k < 3; k++) w[k] /= norm;
+  const found: CurvePoint[] = [];
+  for (const sign of [1, -1]) {
+    const anchor = stepAlong(sys, z, w, sign * SWITCH_OFFSET);
+    const c = correct(sys, anchor, w, anchor, 2 * TRACE_ITERATIONS);
+    if (c.converged && scaledDistance(sys, c.z, z) <= 3 * SWITCH_OFFSET) found.push(c.z);
+  }
+  return found;
+}

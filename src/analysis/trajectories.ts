@@ -137,6 +137,10 @@ export function integrateScenarios(model: Model, ctx: FlowContext, registry: Cyc
     const follow = followTrajectory(ctx, start, { horizon: sc.horizon, maxPathPoints: 200_000, detectRecurrence: true });
     const fate = settleFate(ctx, follow, registry);
     const full = follow.path;
+    // the fate is decided; the time series still runs to the horizon so a reader sees the approach
+    if ((fate.kind === "equilibrium" || fate.kind === "cycle") && full.t[full.t.length - 1] < sc.horizon) {
+      extendToHorizon(model, ctx, full, sc.horizon);
+    }
     const last = full.t.length - 1;
     return {
       name: sc.name,
@@ -150,6 +154,20 @@ export function integrateScenarios(model: Model, ctx: FlowContext, registry: Cyc
       exit: follow.exit ? { t: follow.exit.t, point: recordOf(model, follow.exit.point), edge: follow.exit.edge } : null,
       steps: follow.steps,
     };
+  });
+}
+
+function extendToHorizon(model: Model, ctx: FlowContext, path: TrajectoryPath, horizon: number): void {
+  const k = path.t.length - 1;
+  const t0 = path.t[k];
+  integrateFlow(model.rhs, [path.x[k], path.y[k]], horizon - t0, {
+    direction: 1,
+    tolerances: ctx.tolerances,
+    maxStep: horizon / 64,
+    maxSteps: 200_000,
+    onStep: ({ t1, y }) => {
+      path.t.push(t0 + t1); path.x.push(y[0]); path.y.push(y[1]);
+    },
   });
 }
 

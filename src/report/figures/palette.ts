@@ -1,0 +1,142 @@
+import type { EquilibriumResult } from "../../analysis/types.js";
+
+/**
+ * keel's visual code: one place for every colour, dash pattern, marker and font a figure uses.
+ *
+ * Colours are our own. Each line colour has its own lightness (CIELAB L*, listed beside it), so
+ * the roles stay apart when printed in grey, and pairs that meet in one figure also differ in
+ * hue along the blue–orange axis that red–green colour blindness keeps. Every role that has to be
+ * told apart without colour also differs in dash pattern, width or marker shape.
+ * tests/report/figures.test.ts checks lightness steps, contrast and colour-blind simulations.
+ */
+
+/** Text, axes, equilibrium outlines (L* 12). */
+export const INK = "#1f1d2b";
+export const PAPER = "#ffffff";
+/** Plot frame and axis ticks: quieter than the data (L* 56). */
+export const FRAME = "#85838c";
+
+export interface LineStyle {
+  color: string;
+  /** px */
+  strokeWidth: number;
+  /** SVG dash array in px; empty: solid. */
+  strokeDash: number[];
+  /** What the legend says this line is. */
+  label: string;
+}
+
+/** The two nullclines: blue long dashes for the first state, orange dots for the second. */
+export const NULLCLINE_STYLES: readonly [Omit<LineStyle, "label">, Omit<LineStyle, "label">] = [
+  { color: "#2663b0", strokeWidth: 2, strokeDash: [9, 4] }, // L* 42
+  { color: "#c47f12", strokeWidth: 2.4, strokeDash: [2, 3] }, // L* 59
+];
+
+export const LINE_STYLES = {
+  /** The scenario trajectories the dossier is about: the darkest and widest lines (L* 26). */
+  scenario: { color: "#3d2c8d", strokeWidth: 2.4, strokeDash: [], label: "scenario trajectory" },
+  /** Portrait trajectories: context only, light grey and thin (L* 81). */
+  portrait: { color: "#c6c9d0", strokeWidth: 1, strokeDash: [], label: "other trajectories" },
+  /** The saddles' stable manifolds: the separatrices between basins, solid (L* 36). */
+  stableManifold: { color: "#9c2759", strokeWidth: 2.2, strokeDash: [], label: "stable manifold (separatrix)" },
+  /** The saddles' unstable manifolds: lighter and dash-dotted (L* 56). */
+  unstableManifold: { color: "#d4607f", strokeWidth: 1.6, strokeDash: [6, 2, 2, 2], label: "unstable manifold" },
+  /** An attracting periodic orbit: solid teal (L* 48). */
+  cycleStable: { color: "#15806c", strokeWidth: 2.6, strokeDash: [], label: "periodic orbit, attracting" },
+  /** A periodic orbit that does not attract (unstable, semi-stable, or one of a family): dashed teal. */
+  cycleOther: { color: "#15806c", strokeWidth: 2.2, strokeDash: [5, 3], label: "periodic orbit, not attracting" },
+  /** The trace–determinant parabola τ² = 4Δ. */
+  parabola: { color: "#2663b0", strokeWidth: 1.6, strokeDash: [], label: "τ² = 4Δ" },
+  /** Reference lines τ = 0, Δ = 0 and equilibrium levels in time series. */
+  reference: { color: FRAME, strokeWidth: 1, strokeDash: [3, 3], label: "reference" },
+} as const satisfies Record<string, LineStyle>;
+
+/** Direction-field arrows: mid grey, thin (L* 59). */
+export const FIELD_STYLE = { color: "#8a8f99", strokeWidth: 1, label: "direction of flow" } as const;
+
+/**
+ * Custom symbol paths (vega scales them from the square [-1, 1]²; angle 0 points up).
+ * The field arrow is open (stroke only) so hundreds of them stay light; the trajectory head is a
+ * filled, notched arrowhead.
+ */
+export const FIELD_ARROW_PATH = "M0,1L0,-1M-0.42,-0.45L0,-1L0.42,-0.45";
+export const ARROWHEAD_PATH = "M0,-1L0.75,0.85L0,0.35L-0.75,0.85Z";
+/** Field arrow symbol size (vega area units: side² of the bounding square). */
+export const FIELD_ARROW_SIZE = 130;
+export const ARROWHEAD_SIZE = 110;
+/** Scenario start: a filled diamond in the scenario colour (no equilibrium uses a diamond). */
+export const START_MARKER = { shape: "diamond", size: 80 } as const;
+
+/** How an equilibrium is drawn: four classes, each its own shape and fill, so no colour is needed. */
+export type EquilibriumClass = "stable" | "unstable" | "saddle" | "non-hyperbolic";
+
+export interface MarkerStyle {
+  /** vega symbol shape name. */
+  shape: string;
+  /** degrees clockwise */
+  angle: number;
+  fill: string;
+  stroke: string;
+  strokeWidth: number;
+  /** vega area units */
+  size: number;
+  label: string;
+}
+
+export const EQUILIBRIUM_MARKERS: Record<EquilibriumClass, MarkerStyle> = {
+  // filled disc: the trajectories around end here
+  stable: { shape: "circle", angle: 0, fill: INK, stroke: INK, strokeWidth: 1.2, size: 110, label: "stable equilibrium" },
+  // open square: a source
+  unstable: { shape: "square", angle: 0, fill: PAPER, stroke: INK, strokeWidth: 1.8, size: 100, label: "unstable equilibrium" },
+  // an X: two manifolds cross here
+  saddle: { shape: "cross", angle: 45, fill: INK, stroke: PAPER, strokeWidth: 0.8, size: 190, label: "saddle" },
+  // open triangle: the linearisation does not decide (zero eigenvalue, or a centre)
+  "non-hyperbolic": { shape: "triangle-up", angle: 0, fill: PAPER, stroke: INK, strokeWidth: 1.8, size: 120, label: "non-hyperbolic (undecided)" },
+};
+
+export const EQUILIBRIUM_CLASSES: readonly EquilibriumClass[] = ["stable", "unstable", "saddle", "non-hyperbolic"];
+
+/** Saddles first (they are hyperbolic by definition), then anything the linearisation does not decide. */
+export function classifyForDrawing(e: Pick<EquilibriumResult, "type" | "hyperbolic" | "stable">): EquilibriumClass {
+  if (e.type === "saddle") return "saddle";
+  if (!e.hyperbolic || e.stable === null) return "non-hyperbolic";
+  return e.stable ? "stable" : "unstable";
+}
+
+export const FONT_FAMILY = "DejaVu Sans, sans-serif";
+/** px, fixed so every figure prints alike. */
+export const FONT_SIZE = { tick: 10, axisTitle: 11, legend: 10, annotation: 10, regionLabel: 10 } as const;
+
+/**
+ * Figure sizes in px. Every figure comes out about 620 px wide: at 96 px per inch that is
+ * 164 mm, inside the text width of A4 and of US letter with 2 cm margins.
+ */
+export const FIGURE_WIDTH = 620;
+export const PORTRAIT_PLOT = { width: 370, height: 380 } as const;
+export const KEY_WIDTH = 160;
+export const TIME_PANEL = { width: 540, height: 165 } as const;
+export const TRACE_DETERMINANT_PLOT = { width: 370, height: 320 } as const;
+
+/** vega-lite config shared by every figure: fonts, quiet axes, no ARIA text (figures carry captions instead). */
+export function figureConfig(): Record<string, unknown> {
+  return {
+    font: FONT_FAMILY,
+    background: PAPER,
+    aria: false,
+    view: { stroke: FRAME, strokeWidth: 1 },
+    axis: {
+      grid: false,
+      domain: false,
+      tickColor: FRAME,
+      labelColor: INK,
+      titleColor: INK,
+      labelFontSize: FONT_SIZE.tick,
+      titleFontSize: FONT_SIZE.axisTitle,
+      titleFontWeight: "normal",
+      labelFont: FONT_FAMILY,
+      titleFont: FONT_FAMILY,
+    },
+    text: { font: FONT_FAMILY, fontSize: FONT_SIZE.annotation, color: INK },
+    concat: { spacing: 14 },
+  };
+}

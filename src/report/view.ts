@@ -1,0 +1,197 @@
+import type { NormalizedSpec } from "../spec/types.js";
+import type { Results } from "../analysis/types.js";
+import { nameToTex } from "../model/tex.js";
+import { formatComplex, formatDate, formatNumber, formatNumberHtml } from "./format.js";
+import { renderMath } from "./math.js";
+import { fateWords, pointWords, TYPE_WORDS } from "./words.js";
+
+/** A rendered figure as the templates need it. */
+export interface FigureView {
+  id: string;
+  number: number;
+  title: string;
+  caption: string;
+  /** Inline SVG markup (trusted: produced by our renderer). */
+  svg: string;
+}
+
+export interface RenderOptions {
+  paper: "a4" | "letter";
+  /** Seconds since the epoch: SOURCE_DATE_EPOCH when set, else the build's clock (injected by the CLI). */
+  dateEpoch: number;
+  /** Wall time of the analysis in seconds, or null for reproducible builds. */
+  runSeconds: number | null;
+  nodeVersion: string;
+  libraries: Record<string, string>;
+}
+
+/** Standard cautions, printed in every dossier before the spec's own. */
+export const STANDARD_CAUTIONS = [
+  "A model simplifies. This dossier describes the behaviour of the model as specified, not of the real system; its conclusions hold only as far as the model's structure, parameter values and assumptions hold.",
+  "Decisions about wildlife, fisheries or public health rest with the responsible authority and qualified professionals. This dossier is an input to such decisions, not a decision or a recommendation.",
+  "Local laws, regulations and management rules apply and take precedence over anything stated here.",
+  "Parameter values carry uncertainty. A conclusion near a threshold can change with small changes in the values; read the margins before relying on an outcome.",
+  "Numerical results are computed to stated tolerances. Equilibria are found by a dense deterministic search, not a proof of completeness; a borderline case is reported as undecided rather than guessed.",
+];
+
+const m = (tex: string, display = false) => renderMath(tex, display);
+
+function matrixTex(rows: string[][]): string {
+  return `\\begin{pmatrix} ${rows.map((r) => r.join(" & ")).join(" \\\\ ")} \\end{pmatrix}`;
+}
+
+function numberTex(v: number, digits = 5): string {
+  return formatNumber(v, digits).replace("−", "-").replace(/ × 10\^(-?\d+)/, (_x, e) => ` \\times 10^{${e}}`);
+}
+
+/** Everything the templates print, formatted; user text stays plain (the template escapes it). */
+export function buildDossierView(spec: NormalizedSpec, results: Results, figures: FigureView[], options: RenderOptions) {
+  const unitOf = Object.fromEntries(spec.states.map((s) => [s.name, s.unit]));
+  const stateTex = spec.states.map((s) => nameToTex(s.name));
+  const equilibria = results.equilibria.map((e) => ({
+    id: e.id,
+    coordinates: spec.states.map((s) => formatNumberHtml(e.point[s.name])),
+    trace: formatNumberHtml(e.trace),
+    determinant: formatNumberHtml(e.determinant),
+    discriminant: formatNumberHtml(e.discriminant),
+    eigenvalues: e.eigenvalues.map((v) => formatComplex(v.re, v.im, 5)).join("; "),
+    type: TYPE_WORDS[e.type],
+    hyperbolic: e.hyperbolic ? "yes" : "no",
+    boundary: e.onBoundary ? `on the boundary (${e.boundaryStates.join(", ")} at a bound)` : "interior",
+    jacobianMath: m(`J(${e.id}) = ${matrixTex(e.jacobian.map((r) => r.map((v) => numberTex(v))))}`, true),
+    undecidedNote: e.hyperbolic ? "" : "The linearisation does not decide this equilibrium's stability; higher-order terms do.",
+  }));
+  const scenarios = results.scenarios.map((s) => ({
+    name: s.name,
+    start: pointWords(s.start),
+    outcome: fateWords(s.fate, results, spec.timeUnit),
+    horizon: `${formatNumber(s.horizon)} ${spec.timeUnit}`,
+  }));
+  const dotted = (name: string) => `\\frac{d${nameToTex(name)}}{dt}`;
+  const parameters = spec.parameters.map((p) => ({
+    symbol: m(nameToTex(p.name)),
+    name: p.name,
+    value: formatNumberHtml(p.value),
+    unit: p.unit,
+    label: p.label,
+    source: p.source,
+    range: p.range ? `${formatNumber(p.range[0])} to ${formatNumber(p.range[1])}` : "—",
+  }));
+  const assumptions = results.assumptions.map((a) => ({
+    text: a.text,
+    condition: a.tex ? m(a.tex) : "",
+    status: a.holds === null ? (a.condition ? "could not be evaluated" : "not machine-checkable") : a.holds ? "holds at the nominal values" : "does not hold at the nominal values",
+    detail: a.condition && a.lhs !== null && a.rhs !== null ? `left side ${formatNumber(a.lhs)}, right side ${formatNumber(a.rhs)}` : "",
+    holds: a.holds,
+  }));
+  const cycles = results.cycles.map((c) => ({
+    id: c.id,
+    period: `${formatNumber(c.period, 6)} ${spec.timeUnit}`,
+    stability: c.stability,
+    multiplier: formatNumberHtml(c.floquetMultiplier, 6),
+    around: c.around,
+    extent: spec.states.map((s) => `${s.name}: ${formatNumber(c.extent[s.name][0], 5)} to ${formatNumber(c.extent[s.name][1], 5)}`).join("; "),
+  }));
+  const separatrices = results.separatrices.map((x) => ({
+    saddle: x.saddle,
+    manifold: x.manifold === "stable" ? "stable (backward in time)" : "unstable (forward in time)",
+    branch: x.branch > 0 ? "+" : "−",
+    end: x.end.kind === "equilibrium" || x.end.kind === "cycle" ? `reaches ${x.end.target}`
+      : x.end.kind === "left-window" ? `leaves the window through ${x.end.edge} at ${pointWords(x.end.point)}`
+      : x.end.kind === "outside-window" ? "points out of the window (not drawn)"
+      : `undecided: ${x.end.reason}`,
+  }));
+  const figure = (id: string) => figures.find((f) => f.id === id) ?? null;
+  const growth = (sign: string) => (sign === "+" ? "grows" : "declines");
+  const regions = results.regions.map((r) => ({
+    id: r.id,
+    signs: spec.states.map((s) => `${s.name} ${growth(r.signs[s.name])}`).join(", "),
+    point: pointWords(r.point, 4),
+    area: formatNumber(100 * r.areaFraction, 3) + "%",
+  }));
+  const directionWords = { increasing: "increasing", decreasing: "decreasing", zero: "at rest" } as const;
+  const nullclines = results.nullclines.map((n) => ({
+    state: n.state,
+    math: m(`\\frac{d${nameToTex(n.state)}}{dt} = 0`),
+    pieces: n.pieces.map((piece) => ({
+      kind: piece.onAxis && piece.axis ? `the line ${piece.axis.state} = ${formatNumber(piece.axis.value)}` : "curve",
+      from: pointWords({ [spec.states[0].name]: piece.points[0][0], [spec.states[1].name]: piece.points[0][1] }, 4),
+      to: pointWords({ [spec.states[0].name]: piece.points[piece.points.length - 1][0], [spec.states[1].name]: piece.points[piece.points.length - 1][1] }, 4),
+      direction: `${piece.otherState} ${directionWords[piece.otherDirection]}`,
+      vertices: piece.points.length,
+    })),
+    maxResidual: formatNumberHtml(n.maxResidual, 2),
+  }));
+  const b = results.basins;
+  const basins = {
+    show: b.attractors.length > 0,
+    rows: Object.entries(b.fractions).map(([k, v]) => ({ outcome: k, fraction: formatNumber(100 * v, 4) + "%" })),
+    errorBound: formatNumber(100 * b.errorBound, 3) + "%",
+    resolution: `${b.resolution} × ${b.resolution}`,
+    trajectories: `${b.trajectories} of ${b.uniformTrajectories} (${formatNumber((100 * b.trajectories) / b.uniformTrajectories, 3)}%)`,
+    scenarios: results.scenarios.map((s) => ({
+      name: s.name,
+      reaches: s.fate.kind === "equilibrium" || s.fate.kind === "cycle" ? s.fate.target : s.fate.kind,
+    })),
+    figure: figure("basins"),
+  };
+  const stableCount = results.equilibria.filter((e) => e.stable === true).length + results.cycles.filter((c) => c.stability === "stable").length;
+  return {
+    lang: "en",
+    title: spec.title,
+    id: spec.id,
+    authors: spec.authors.join(", "),
+    organisation: spec.organisation,
+    purpose: spec.purpose,
+    date: formatDate(options.dateEpoch),
+    sha256: spec.sha256,
+    version: results.keel,
+    paper: options.paper,
+    timeUnit: spec.timeUnit,
+    summary: {
+      equilibriumCount: results.equilibria.length,
+      attractorCount: stableCount,
+      multistable: stableCount > 1,
+      scenarios,
+      equilibria: equilibria.map((e) => ({ id: e.id, type: e.type, at: pointWords(results.equilibria.find((q) => q.id === e.id)!.point, 4) })),
+      assumptionsFailing: assumptions.filter((a) => a.holds === false).length,
+    },
+    model: {
+      equations: results.model.equations.map((e) => m(`${dotted(e.state)} = ${e.tex}`, true)),
+      states: spec.states.map((s, i) => ({ symbol: m(stateTex[i]), name: s.name, label: s.label, unit: s.unit, bounds: `${formatNumber(s.min)} to ${formatNumber(s.max)}`, window: `${formatNumber(spec.window[s.name][0])} to ${formatNumber(spec.window[s.name][1])}` })),
+      parameters,
+      assumptions,
+      defaulted: spec.defaulted,
+      jacobianMath: m(`J = ${matrixTex(results.model.jacobian.map((row) => row.map((e) => e.tex)))}`, true),
+    },
+    equilibria,
+    stateHeaders: spec.states.map((s) => (s.unit ? `${s.name} (${s.unit})` : s.name)),
+    scenarios: results.scenarios.map((s) => ({ name: s.name, figure: figure(`timeseries-${s.name}`) })),
+    cycles,
+    separatrices,
+    regions,
+    nullclines,
+    basins,
+    figures: {
+      portrait: figure("portrait"),
+      traceDeterminant: figure("trace-determinant"),
+    },
+    diagnostics: results.diagnostics,
+    methods: {
+      tolerances: [
+        "Equilibria: damped Newton from a deterministic multistart set (a grid, cell centres, window edges and axes, roots of each component along each edge); a root is accepted when every residual is below 1e-9 of that component's scale over the window; roots closer than 1e-6 of the window are merged.",
+        "Classification: trace, determinant and discriminant are called zero within 1e-8 relative to the matching power of the Jacobian's norm; such borderline cases are reported as non-hyperbolic or center.",
+        "Trajectories: Hairer's GBS extrapolation method (odex) with dense output; relative tolerance 1e-9, absolute tolerance 1e-11 of each state's window width. A trajectory counts as converged once it enters a neighbourhood of a stable equilibrium on which the linearisation's quadratic Lyapunov function was checked to decrease.",
+        "Periodic orbits: recurrence through a ray section from an equilibrium, then shooting (secant iteration on the return map) at relative tolerance 1e-12; the Floquet multiplier is exp of the integral of the Jacobian's trace over one period.",
+        "Separatrices: each saddle's manifolds integrated from points 1e-6 of the window along its eigenvectors (stable manifolds backward in time).",
+      ],
+      settings: JSON.stringify(results.settings, null, 1),
+      versions: Object.entries({ keel: results.keel, node: options.nodeVersion, ...options.libraries }).map(([k, v]) => `${k} ${v}`).join(", "),
+      runTime: options.runSeconds === null ? "not recorded (reproducible build: SOURCE_DATE_EPOCH was set)" : `${formatNumber(options.runSeconds, 3)} s`,
+    },
+    cautions: [...STANDARD_CAUTIONS, ...spec.cautions],
+    unitOf,
+  };
+}
+
+export type DossierView = ReturnType<typeof buildDossierView>;

@@ -1,4 +1,3 @@
-#!/usr/bin/env node
 import { Command, CommanderError, InvalidArgumentError } from "commander";
 import { KEEL_VERSION } from "../version.js";
 import { buildSpecJsonSchema } from "../spec/schema.js";
@@ -92,7 +91,3 @@ export async function main(argv: string[]): Promise<number> {
     return EXIT.internal;
   }
 }
-
-main(process.argv.slice(2)).then((code) => {
-  process.exitCode = code;
-});

@@ -15,6 +15,11 @@ import { runRefinementAsync, runRefinementSync, type BatchEvaluator } from "./ba
 import { BASIN_ABSOLUTE_TOL_OF_WIDTH, BASIN_RELATIVE_TOL } from "./basins/kernel.js";
 import { DEFAULT_NULLCLINE_OPTIONS, findNullclines, type NullclineOptions } from "./nullclines.js";
 import { DEFAULT_REGION_OPTIONS, findRegions, type RegionOptions } from "./regions.js";
+import { findInvasionConditions } from "./conditions.js";
+import { studyParameter } from "./thresholds.js";
+import { buildOutcomeMap } from "./maps.js";
+import { findAssumptionFlips } from "./assumptions.js";
+import { nameToTex } from "../model/tex.js";
 import { computeDirectionField, DEFAULT_DIRECTION_FIELD_OPTIONS, type DirectionFieldOptions } from "./field.js";
 
 export interface AnalysisOptions {
@@ -75,7 +80,22 @@ function analyzeCore(model: Model, options: AnalysisOptions, progress?: Progress
   const trajectories = integratePortrait(model, equilibria, box, registry, options.trajectories, portraitHorizon, diagnostics);
   progress?.("trajectories", 3, 3);
 
-  // 6. the basin map's kernel, for the attractors now known
+  // 6. deciding conditions: symbolic invasion rates, thresholds by continuation, outcome intervals, maps
+  progress?.("thresholds", 0, 1);
+  const invasion = findInvasionConditions(model, equilibria);
+  const studied = model.spec.analysis.parameters;
+  const studies = studied.map((name, k) => {
+    const p = model.spec.parameters.find((q) => q.name === name)!;
+    const study = studyParameter(model, name, p.range!, invasion, nameToTex(name), diagnostics);
+    progress?.("thresholds", k + 1, studied.length + model.spec.analysis.parameterPairs.length);
+    return study;
+  });
+  const maps = model.spec.analysis.parameterPairs.map((pair) => buildOutcomeMap(model, pair, studies));
+  progress?.("thresholds", 1, 1);
+  const flips = findAssumptionFlips(model, studies);
+  const assumptions = evaluateAssumptions(model).map((a, k) => ({ ...a, flips: flips[k] }));
+
+  // 7. the basin map's kernel, for the attractors now known
   const plan = planBasins(model, equilibria, registry.cycles, box, portraitHorizon, timeScale, options.basins, diagnostics);
   const results: Omit<Results, "basins"> = {
     keel: KEEL_VERSION,
@@ -95,7 +115,9 @@ function analyzeCore(model: Model, options: AnalysisOptions, progress?: Progress
     cycles: registry.cycles,
     separatrices,
     trajectories,
-    assumptions: evaluateAssumptions(model),
+    thresholds: studies.flatMap((st) => st.thresholds),
+    conditions: { invasion, studies, maps },
+    assumptions,
     diagnostics,
     settings: {
       equilibria: options.equilibria,

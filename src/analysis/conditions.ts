@@ -1,7 +1,7 @@
 import { ConstantNode, derivative, rationalize, simplify, type MathNode } from "mathjs";
 import type { Model } from "../model/types.js";
 import { differentiate } from "../model/derivatives.js";
-import { emitExpression } from "../model/codegen.js";
+import { emitExpression, PRELUDE } from "../model/codegen.js";
 import { expressionToTex, expressionToText } from "../model/tex.js";
 import type { EquilibriumResult } from "./equilibria.js";
 
@@ -52,7 +52,7 @@ function isZero(node: MathNode): boolean {
 }
 
 function evaluateAt(node: MathNode, p: ArrayLike<number>, state: [number, number] = [0, 0]): number {
-  const fn = new Function("p", "s0", "s1", `return ${emitExpression(node, {})};`) as (p: ArrayLike<number>, s0: number, s1: number) => number;
+  const fn = new Function("p", "s0", "s1", `${PRELUDE}\nreturn ${emitExpression(node, {})};`) as (p: ArrayLike<number>, s0: number, s1: number) => number;
   return fn(p, state[0], state[1]);
 }
 

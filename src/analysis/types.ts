@@ -7,6 +7,9 @@ import type { BasinResult } from "./basins/index.js";
 import type { NullclineResult } from "./nullclines.js";
 import type { RegionResult } from "./regions.js";
 import type { DirectionFieldResult } from "./field.js";
+import type { ParameterStudyResult, ThresholdResult } from "./thresholds.js";
+import type { InvasionConditionResult } from "./conditions.js";
+import type { OutcomeMapResult } from "./maps.js";
 
 export type { EquilibriumResult } from "./equilibria.js";
 export type { PortraitTrajectory, ScenarioResult } from "./trajectories.js";
@@ -16,6 +19,9 @@ export type { BasinResult } from "./basins/index.js";
 export type { NullclineResult, NullclinePiece } from "./nullclines.js";
 export type { RegionResult } from "./regions.js";
 export type { DirectionFieldResult } from "./field.js";
+export type { ParameterStudyResult, ThresholdResult, OutcomeIntervalResult, MarginResult } from "./thresholds.js";
+export type { InvasionConditionResult } from "./conditions.js";
+export type { OutcomeMapResult } from "./maps.js";
 export type { Fate, TrajectoryPath } from "./flow.js";
 export type { StabilityResult, EquilibriumType, Complex } from "./stability.js";
 
@@ -28,6 +34,8 @@ export interface AssumptionResult {
   lhs: number | null;
   rhs: number | null;
   holds: boolean | null;
+  /** Where the condition changes truth across each studied parameter range, and the located threshold nearest to it. */
+  flips: import("./assumptions.js").AssumptionFlip[];
 }
 
 /** Everything keel computes from one spec; serialised as results.json. */
@@ -50,6 +58,13 @@ export interface Results {
   separatrices: SeparatrixResult[];
   trajectories: PortraitTrajectory[];
   basins: BasinResult;
+  /** Every located threshold of every studied parameter (the flat list; details under conditions). */
+  thresholds: ThresholdResult[];
+  conditions: {
+    invasion: InvasionConditionResult[];
+    studies: ParameterStudyResult[];
+    maps: OutcomeMapResult[];
+  };
   assumptions: AssumptionResult[];
   diagnostics: Diagnostic[];
   /** Settings every pass used, so the dossier's methods section and `verify` can restate them. */

@@ -17,6 +17,7 @@ export const messages = {
   missingKey: (key: string, expected: string) => `the required key '${key}' is missing (expected ${expected})`,
   unknownKey: (key: string, suggestion: string | null) =>
     `unknown key '${key}'${suggestion ? `; did you mean '${suggestion}'?` : ""}`,
+  numberOverflows: () => `expected a finite number; this one is beyond double precision (about 1.8e308)`,
   forbiddenKey: (key: string) => `the key '${key}' is not accepted anywhere in a spec`,
   duplicateName: (name: string, first: string) => `the name '${name}' is already used at ${first}`,
   invalidIdentifier: (name: string) =>
@@ -39,6 +40,9 @@ export const messages = {
     `the range [${lo}, ${hi}] does not contain the value ${value}`,
   basinGrid: (resolution: number, coarse: number) =>
     `the basin resolution ${resolution} must be the coarse size ${coarse} times a power of two (e.g. 1024 and 64)`,
+  unknownParameter: (name: string) => `'${name}' is not a declared parameter`,
+  parameterWithoutRange: (name: string) => `parameter '${name}' has no range, so its thresholds cannot be searched: add parameters[].range`,
+  pairRepeats: (name: string) => `a parameter pair needs two different parameters, got '${name}' twice`,
   planarOnly: (n: number) => `keel analyses planar models: exactly 2 states are needed, found ${n}`,
   // expression errors
   unexpectedCharacter: (ch: string) =>

@@ -31,13 +31,13 @@ export function findForbiddenKeys(raw: unknown): SpecIssue[] {
   return issues.reverse();
 }
 
-function hasValueAt(raw: unknown, path: Path): boolean {
+function valueAt(raw: unknown, path: Path): unknown {
   let node: unknown = raw;
   for (const part of path) {
-    if (node === null || typeof node !== "object" || !Object.prototype.hasOwnProperty.call(node, part)) return false;
+    if (node === null || typeof node !== "object" || !Object.prototype.hasOwnProperty.call(node, part)) return undefined;
     node = (node as Record<string | number, unknown>)[part];
   }
-  return node !== undefined;
+  return node;
 }
 
 /** The keys the schema accepts for the object at `path`, to suggest the one a typo meant. */
@@ -95,7 +95,11 @@ export function fromZodIssues(zodIssues: z.core.$ZodIssue[], raw: unknown): Spec
       return i.keys.map((key) => ({ code: "unknown_key", path: [...path, key], message: messages.unknownKey(key, suggestKey(key, known)) }));
     }
     const last = path[path.length - 1];
-    if ((i.code === "invalid_type" || i.code === "invalid_value") && typeof last === "string" && !hasValueAt(raw, path)) {
+    const value = valueAt(raw, path);
+    // JSON has no Infinity, but a literal such as 1e999 overflows to it; zod then says "expected number, received number"
+    if (i.code === "invalid_type" && i.expected === "number" && typeof value === "number")
+      return [{ code: "not_finite", path, message: messages.numberOverflows() }];
+    if ((i.code === "invalid_type" || i.code === "invalid_value") && typeof last === "string" && value === undefined) {
       const expected = i.code === "invalid_type" ? `a value of type ${i.expected}` : i.values.map((v) => JSON.stringify(v)).join(" or ");
       return [{ code: "missing_key", path, message: messages.missingKey(last, expected) }];
     }

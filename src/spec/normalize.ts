@@ -13,6 +13,7 @@ export function normalizeSpec(spec: KeelSpecInput, sha256: string): NormalizedSp
   };
   const window: Record<string, [number, number]> = {};
   if (!spec.window) defaulted.push("window");
+  if (!spec.analysis) defaulted.push("analysis");
   for (const s of spec.states) {
     const w = spec.window?.[s.name];
     window[s.name] = w ? [w[0], w[1]] : [s.min, s.max];
@@ -45,7 +46,11 @@ export function normalizeSpec(spec: KeelSpecInput, sha256: string): NormalizedSp
     })),
     assumptions: pick(spec.assumptions, [], "assumptions").map((a) => ({ text: a.text, condition: a.condition ?? null })),
     cautions: pick(spec.cautions, [], "cautions"),
-    analysis: { basins: { ...(pick(spec.analysis, {}, "analysis").basins ?? {}) } },
+    analysis: {
+      basins: { ...(spec.analysis?.basins ?? {}) },
+      parameters: spec.analysis?.parameters ?? (spec.parameters ?? []).filter((p) => p.range).map((p) => p.name),
+      parameterPairs: (spec.analysis?.parameterPairs ?? []).map(([a, b]) => [a, b] as [string, string]),
+    },
     defaulted,
     sha256,
   };

@@ -95,6 +95,10 @@ export const KeelSpecSchema = z
           })
           .optional()
           .describe("Basin map settings."),
+        parameters: z.array(z.string()).optional()
+          .describe("Parameters whose thresholds are searched (each needs a range). Default: every parameter with a range."),
+        parameterPairs: z.array(z.tuple([z.string(), z.string()])).optional()
+          .describe("Pairs of parameters (each with a range) for two-parameter outcome maps. Default: none."),
       })
       .optional()
       .describe("Settings of the analysis passes. Default: keel's defaults."),
@@ -107,6 +111,15 @@ export type ParameterSpec = z.infer<typeof ParameterSpecSchema>;
 
 /** The JSON Schema committed as schema/keel-spec.schema.json and printed by `keel schema`. */
 export function buildSpecJsonSchema(): Record<string, unknown> {
-  const schema = z.toJSONSchema(KeelSpecSchema, { target: "draft-2020-12", io: "input" }) as Record<string, unknown>;
+  const schema = z.toJSONSchema(KeelSpecSchema, {
+    target: "draft-2020-12",
+    io: "input",
+    // zod's exporter writes a fixed tuple as bare prefixItems, which admits [lo] and [lo, hi, x]:
+    // state the length, so the published schema refuses what the validator refuses
+    override: (ctx) => {
+      const def = ctx.zodSchema._zod.def;
+      if (def.type === "tuple" && !def.rest) Object.assign(ctx.jsonSchema, { minItems: def.items.length, maxItems: def.items.length });
+    },
+  }) as Record<string, unknown>;
   return { $id: "keel-spec.schema.json", title: "keel model spec", ...schema };
 }

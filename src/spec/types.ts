@@ -44,7 +44,12 @@ export interface NormalizedSpec {
   assumptions: NormalizedAssumption[];
   cautions: string[];
   /** Analysis settings the spec sets (only those given; the analysis fills the rest). */
-  analysis: { basins: { resolution?: number; coarse?: number } };
+  analysis: {
+    basins: { resolution?: number; coarse?: number };
+    /** Parameters to study: the spec's list, or every parameter with a range. */
+    parameters: string[];
+    parameterPairs: [string, string][];
+  };
   /** JSON paths of keys that were absent and took their default, for the dossier. */
   defaulted: string[];
   /** SHA-256 of the canonical serialisation of the spec as written. */

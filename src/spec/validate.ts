@@ -83,6 +83,19 @@ export function validateSpecRules(spec: KeelSpecInput): SpecIssue[] {
       add("basin_grid", ["analysis", "basins"], messages.basinGrid(resolution, coarse));
   }
 
+  const ranged = new Set((spec.parameters ?? []).filter((p) => p.range).map((p) => p.name));
+  const declared = new Set((spec.parameters ?? []).map((p) => p.name));
+  const checkStudied = (name: string, path: (string | number)[]) => {
+    if (!declared.has(name)) add("unknown_parameter", path, messages.unknownParameter(name));
+    else if (!ranged.has(name)) add("parameter_without_range", path, messages.parameterWithoutRange(name));
+  };
+  (spec.analysis?.parameters ?? []).forEach((n, i) => checkStudied(n, ["analysis", "parameters", i]));
+  (spec.analysis?.parameterPairs ?? []).forEach(([a, b], i) => {
+    checkStudied(a, ["analysis", "parameterPairs", i, 0]);
+    checkStudied(b, ["analysis", "parameterPairs", i, 1]);
+    if (a === b) add("pair_repeats", ["analysis", "parameterPairs", i], messages.pairRepeats(a));
+  });
+
   const scenarioNames = new Map<string, number>();
   for (const [i, sc] of (spec.scenarios ?? []).entries()) {
     const first = scenarioNames.get(sc.name);

@@ -3,7 +3,7 @@ import { emitExpression, literal, PRELUDE } from "../../model/codegen.js";
 import type { Box } from "../window.js";
 import type { CaptureRegion } from "../capture.js";
 import { LABEL_BLOW_UP, LABEL_LEFT_WINDOW, LABEL_UNDECIDED } from "./labels.js";
-import { ALGEBRAIC_HEADING, ALGEBRAIC_NEAR, ALGEBRAIC_STEPS, BLOWUP_WINDOWS, WINDOW_EXIT_SLACK } from "../flow.js";
+import { ALGEBRAIC_HEADING, ALGEBRAIC_NEAR, ALGEBRAIC_STEPS, BLOWUP_EFOLDING_FRACTION, BLOWUP_WINDOWS, WINDOW_EXIT_SLACK } from "../flow.js";
 
 /**
  * The basin kernel: a Dormand–Prince 5(4) integrator generated for this model, with the
@@ -39,6 +39,11 @@ export interface KernelSettings {
  */
 export const BASIN_RELATIVE_TOL = 1e-7;
 export const BASIN_ABSOLUTE_TOL_OF_WIDTH = 1e-9;
+/**
+ * Longest step, as a fraction of the horizon: followTrajectory caps odex the same way, and the
+ * algebraic-approach rule (ALGEBRAIC_STEPS steps in a row closing in) needs that many steps.
+ */
+export const BASIN_MAX_STEP_OF_HORIZON = 1 / 64;
 /** A crossing of a stable cycle's section this close (scaled) to its fixed point, twice and closing in, labels the cycle. */
 export const CYCLE_CAPTURE_RADIUS = 1e-3;
 
@@ -98,19 +103,20 @@ export function generateBasinKernel(model: Model, box: Box, targets: BasinTarget
   const [lo0, lo1] = box.lo, [hi0, hi1] = box.hi, [w0, w1] = box.width;
   const atol0 = settings.absoluteOfWidth * w0, atol1 = settings.absoluteOfWidth * w1;
   const rtol = settings.relativeTolerance;
+  const maxStep = settings.horizon * BASIN_MAX_STEP_OF_HORIZON;
   return `${PRELUDE}
 return function basinKernel(starts, out) {
   let totalSteps = 0;
   const n = out.length;
   for (let idx = 0; idx < n; idx++) {
     let x = starts[2 * idx], y = starts[2 * idx + 1];
-    let t = 0, h = ${L(settings.initialStep)}, steps = 0, outside = 0, label = ${LABEL_UNDECIDED};
+    let t = 0, h = ${L(Math.min(settings.initialStep, maxStep))}, steps = 0, outside = 0, tExit = 0, label = ${LABEL_UNDECIDED};
     let k1a, k1b, k2a, k2b, k3a, k3b, k4a, k4b, k5a, k5b, k6a, k6b, k7a, k7b;
     { const s0 = x, s1 = y; k1a = ${f0}; k1b = ${f1}; }
     let xPrev = x, yPrev = y;
     ${perStart}
     for (;;) {
-      if (!(k1a === k1a && k1b === k1b) || k1a === Infinity || k1a === -Infinity || k1b === Infinity || k1b === -Infinity) { label = ${LABEL_UNDECIDED}; break; }
+      if (!(k1a === k1a && k1b === k1b) || k1a === Infinity || k1a === -Infinity || k1b === Infinity || k1b === -Infinity) { label = outside > 0 ? ${LABEL_LEFT_WINDOW} : ${LABEL_UNDECIDED}; break; }
       if (t >= ${L(settings.horizon)} || steps >= ${settings.maxSteps}) { label = outside > 0 ? ${LABEL_LEFT_WINDOW} : ${LABEL_UNDECIDED}; break; }
       if (t + h > ${L(settings.horizon)}) h = ${L(settings.horizon)} - t;
       ${stage(2)}
@@ -131,12 +137,20 @@ return function basinKernel(starts, out) {
       const factor = err === 0 ? 5 : Math.min(5, Math.max(0.2, 0.9 * Math.exp(-0.2 * Math.log(err))));
       if (err > 1) { h *= Math.min(1, factor); continue; }
       xPrev = x; yPrev = y;
+      const tPrev = t;
       t += h; x = xn; y = yn; k1a = k7a; k1b = k7b; steps++;
-      h *= factor;
+      h = Math.min(h * factor, ${L(maxStep)});
       const out0 = Math.max((${L(lo0)} - x) * ${L(1 / w0)}, (x - ${L(hi0)}) * ${L(1 / w0)});
       const out1 = Math.max((${L(lo1)} - y) * ${L(1 / w1)}, (y - ${L(hi1)}) * ${L(1 / w1)});
       const off = Math.max(out0, out1);
-      if (off > ${L(BLOWUP_WINDOWS)}) { label = ${LABEL_BLOW_UP}; break; }
+      if (off > ${L(WINDOW_EXIT_SLACK)} && outside === 0) tExit = tPrev;
+      if (off > ${L(BLOWUP_WINDOWS)}) {
+        // as followTrajectory: a blow-up only if faster than exponential, else a plain exit
+        const zx = x * ${L(1 / w0)}, zy = y * ${L(1 / w1)}, vx = k1a * ${L(1 / w0)}, vy = k1b * ${L(1 / w1)};
+        const eFolding = Math.sqrt(zx * zx + zy * zy) / Math.sqrt(vx * vx + vy * vy);
+        label = eFolding < ${L(BLOWUP_EFOLDING_FRACTION)} * (t - tExit) ? ${LABEL_BLOW_UP} : ${LABEL_LEFT_WINDOW};
+        break;
+      }
       if (off > ${L(WINDOW_EXIT_SLACK)} || outside > 0) {
         if (++outside > ${settings.maxStepsOutside}) { label = ${LABEL_LEFT_WINDOW}; break; }
         continue;

@@ -1,5 +1,5 @@
 import {
-  correct, cross3, dot3, evaluate, scaledDistance, stepAlong, tangentAt,
+  correct, CORRECTOR_STEP_TOL, cross3, dot3, evaluate, scaledDistance, stepAlong, tangentAt,
   type ContinuationSystem, type CurvePoint,
 } from "./system.js";
 
@@ -40,6 +40,9 @@ export interface TracedPoint {
   t: Float64Array;
   trace: number;
   determinant: number;
+  /** Sizes of the terms that cancel in the trace and in the determinant (as in stability.ts). */
+  traceScale: number;
+  determinantScale: number;
 }
 
 export interface TracedBranch {
@@ -66,7 +69,13 @@ const CLOSE_MIN_STEPS = 10;
 function tracedPoint(sys: ContinuationSystem, z: CurvePoint, t: Float64Array): TracedPoint {
   evaluate(sys, z);
   const j = sys.j;
-  return { z, t, trace: j[0] + j[3], determinant: j[0] * j[3] - j[1] * j[2] };
+  const determinant = j[0] * j[3] - j[1] * j[2];
+  const radius = Math.sqrt(Math.abs(determinant));
+  return {
+    z, t, trace: j[0] + j[3], determinant,
+    traceScale: Math.max(Math.abs(j[0]), Math.abs(j[3]), radius),
+    determinantScale: Math.max(Math.abs(j[0] * j[3]), Math.abs(j[1] * j[2]), Math.abs(determinant)),
+  };
 }
 
 function outsideWindow(sys: ContinuationSystem, z: ArrayLike<number>, margin: number): boolean {
@@ -107,6 +116,8 @@ function traceDirection(sys: ContinuationSystem, z0: CurvePoint, t0: Float64Arra
     if (zNew[2] < lo || zNew[2] > hi) {
       const bound = zNew[2] < lo ? lo : hi;
       const clipped = clipToRange(sys, z, zNew, bound);
+      // a seed sitting on the end of the range clips onto itself: nothing to add
+      if (clipped && scaledDistance(sys, clipped, z) <= CORRECTOR_STEP_TOL) return { points, end: "range" };
       points.push(clipped ? tracedPoint(sys, clipped, tangentAt(sys, clipped, tNew) ?? tNew) : tracedPoint(sys, zNew, tNew));
       return { points, end: "range" };
     }
@@ -160,7 +171,7 @@ export function nearestSegment(sys: ContinuationSystem, branch: TracedBranch, z:
 
 /** Distance a polygon of steps no longer than maxStep, turning at most maxAngle, keeps from its curve, with room. */
 export function onBranchTolerance(options: TraceOptions): number {
-  return Math.max(1e-6, options.maxStep * options.maxAngle);
+  return Math.max(1e-6, (options.maxStep * options.maxAngle) / 2);
 }
 
 /**
@@ -177,7 +188,7 @@ export function liesOnBranch(sys: ContinuationSystem, branch: TracedBranch, z: A
 }
 
 /** Offset (scaled) from a branch point at which the crossing branch is sought. */
-export const SWITCH_OFFSET = 1e-3;
+export const SWITCH_OFFSET = 1e-2;
 
 /**
  * A point on the other branch through the branch point z (where the rows of [J | f_p] are

@@ -35,12 +35,6 @@ export type CurvePoint = Float64Array;
 export const CORRECTOR_STEP_TOL = 1e-11;
 /** A corrector step longer than this (scaled) has left the basin of the branch being followed. */
 const CORRECTOR_MAX_JUMP = 0.5;
-/**
- * Near a branch point the corrector's matrix is nearly singular and the step stalls at the
- * noise floor; a point whose residual (relative to fScale) is this small is on the curve to
- * working precision, and is accepted when the caller allows stalling.
- */
-const STALL_RESIDUAL = 1e-12;
 /** Rows of [J | f_p] this close to parallel (|r0 × r1| / (|r0||r1|)) leave no unique tangent. */
 export const RANK_TOL = 1e-10;
 
@@ -195,8 +189,8 @@ export interface Correction {
 /**
  * Newton on F(z) = 0 together with the hyperplane condition normal · (z − anchor)/scale = 0:
  * pseudo-arclength when the normal is the previous tangent and the anchor the predicted point;
- * natural-parameter continuation when the normal is the p axis. With allowStall, a point on the
- * curve to working precision is accepted although its step has not dropped below the tolerance.
+ * natural-parameter continuation when the normal is the p axis. Converged only when the step
+ * has dropped below CORRECTOR_STEP_TOL (near a branch point it may not: then the caller backs off).
  */
 export function correct(
   sys: ContinuationSystem,
@@ -204,13 +198,14 @@ export function correct(
   normal: ArrayLike<number>,
   anchor: ArrayLike<number>,
   maxIterations: number,
-  allowStall = false,
 ): Correction {
   const z = Float64Array.from(start);
   const s = sys.scale;
   for (let it = 1; it <= maxIterations; it++) {
     evaluate(sys, z);
     const g = normal[0] * (z[0] - anchor[0]) / s[0] + normal[1] * (z[1] - anchor[1]) / s[1] + normal[2] * (z[2] - anchor[2]) / s[2];
+    // exactly on the curve and the hyperplane: nothing to correct, even where the matrix is singular
+    if (sys.f[0] === 0 && sys.f[1] === 0 && g === 0) return { z, iterations: it, converged: true, residual: 0 };
     const m = [...sys.a, normal[0], normal[1], normal[2]];
     const dz = solve3(m, [-sys.f[0], -sys.f[1], -g]);
     if (!dz) break;
@@ -223,5 +218,5 @@ export function correct(
     }
   }
   const residual = residualAt(sys, z);
-  return { z, iterations: maxIterations, converged: allowStall && residual <= STALL_RESIDUAL, residual };
+  return { z, iterations: maxIterations, converged: false, residual };
 }

@@ -18,6 +18,8 @@ export function loadTemplates(dir = TEMPLATES_DIR): TemplateSet {
   if (cached && dir === TEMPLATES_DIR) return cached;
   const hb = Handlebars.create();
   hb.registerHelper("eq", (a: unknown, b: unknown) => a === b);
+  hb.registerHelper("lt", (a: number, b: number) => a < b);
+  hb.registerHelper("gt", (a: number, b: number) => a > b);
   const partials = join(dir, "partials");
   for (const file of readdirSync(partials).sort()) {
     if (file.endsWith(".hbs")) hb.registerPartial(file.slice(0, -4), readFileSync(join(partials, file), "utf8"));

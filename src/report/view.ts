@@ -1,7 +1,7 @@
 import type { NormalizedSpec } from "../spec/types.js";
 import type { Results } from "../analysis/types.js";
 import { nameToTex } from "../model/tex.js";
-import { formatComplex, formatDate, formatNumber, formatNumberHtml } from "./format.js";
+import { formatComplex, formatDate, formatNumber, formatNumberHtml, formatQuantity } from "./format.js";
 import { renderMath } from "./math.js";
 import { fateWords, pointWords, TYPE_WORDS } from "./words.js";
 
@@ -35,6 +35,14 @@ export const STANDARD_CAUTIONS = [
 ];
 
 const m = (tex: string, display = false) => renderMath(tex, display);
+
+const kindWords: Record<string, string> = {
+  "saddle-node": "fold (saddle-node)",
+  transcritical: "transcritical",
+  hopf: "Hopf",
+  "boundary-crossing": "boundary crossing",
+  "outcome change": "outcome change (no local bifurcation)",
+};
 
 function matrixTex(rows: string[][]): string {
   return `\\begin{pmatrix} ${rows.map((r) => r.join(" & ")).join(" \\\\ ")} \\end{pmatrix}`;
@@ -82,6 +90,9 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
     condition: a.tex ? m(a.tex) : "",
     status: a.holds === null ? (a.condition ? "could not be evaluated" : "not machine-checkable") : a.holds ? "holds at the nominal values" : "does not hold at the nominal values",
     detail: a.condition && a.lhs !== null && a.rhs !== null ? `left side ${formatNumber(a.lhs)}, right side ${formatNumber(a.rhs)}` : "",
+    flips: a.flips.map((f) => f.nearestThreshold
+      ? `flips at ${f.parameter} = ${formatNumber(f.value)}: ${f.coincides ? "coincides with" : "does not coincide with"} the ${kindWords[f.nearestThreshold.kind] ?? f.nearestThreshold.kind} threshold at ${formatNumber(f.nearestThreshold.value)} (relative difference ${formatNumber(f.relativeDifference ?? NaN, 2)})`
+      : `flips at ${f.parameter} = ${formatNumber(f.value)}; no threshold of ${f.parameter} was located`),
     holds: a.holds,
   }));
   const cycles = results.cycles.map((c) => ({
@@ -122,6 +133,48 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
     })),
     maxResidual: formatNumberHtml(n.maxResidual, 2),
   }));
+  const c = results.conditions;
+  const conditions = {
+    show: c.studies.length > 0 || c.invasion.length > 0,
+    invasion: c.invasion.map((q) => ({
+      equilibrium: q.equilibrium,
+      absent: q.absent,
+      resident: q.resident ? (q.resident.closedForm ? m(`${nameToTex(q.resident.state)} = ${q.resident.tex}`) : `${q.resident.state} = ${formatNumber(Number(q.resident.text))} (numerical)`) : "—",
+      rate: m(`\lambda = ${q.rate.tex}`),
+      value: formatNumberHtml(q.value),
+      check: formatNumberHtml(Math.abs(q.value - q.numericEigenvalue), 2),
+      invades: q.invades ? `${q.absent} can invade` : `${q.absent} cannot invade`,
+      thresholds: q.thresholds.filter((t) => t.value !== 0).map((t) => ({ math: m(`${nameToTex(t.parameter)} ${t.invadesWhen} ${t.tex}`), value: formatNumber(t.value) })),
+    })),
+    studies: c.studies.map((st) => {
+      const param = spec.parameters.find((q) => q.name === st.parameter)!;
+      return {
+        parameter: st.parameter,
+        symbol: m(nameToTex(st.parameter)),
+        label: param.label,
+        nominal: formatQuantity(st.nominal, param.unit),
+        range: `${formatNumber(st.range[0])} to ${formatNumber(st.range[1])}${param.unit ? " " + param.unit : ""}`,
+        branches: st.continuation.branches.length,
+        thresholds: st.thresholds.map((t) => ({
+          kind: kindWords[t.kind] ?? t.kind,
+          value: formatNumberHtml(t.value, 8),
+          point: pointWords(t.point, 5),
+          criticality: t.criticality ?? "",
+          decisive: t.decisive ? "yes" : "no",
+          symbolic: t.symbolic ? m(`${t.symbolic.tex}`) : "",
+          agreement: t.symbolic ? formatNumberHtml(t.symbolic.relativeDifference, 2) : "",
+        })),
+        intervals: st.intervals.map((iv) => ({ math: m(iv.statement.tex), words: iv.outcome.words, now: iv.containsNominal })),
+        margin: st.margin?.statement ?? "",
+        figure: figure(`bifurcation-${st.parameter}`),
+      };
+    }),
+    maps: c.maps.map((mp) => ({ pair: mp.parameters.join(" and "), figure: figure(`outcome-map-${mp.parameters[0]}-${mp.parameters[1]}`), legend: mp.legend.map((l, k) => ({ letter: String.fromCharCode(65 + k), words: l })) })),
+  };
+  const margins = c.studies
+    .filter((st) => st.margin)
+    .sort((x, y) => Math.abs(x.margin!.relative) - Math.abs(y.margin!.relative))
+    .map((st) => ({ parameter: st.parameter, statement: st.margin!.statement, percent: formatNumber(100 * Math.abs(st.margin!.relative), 3) + "%", side: st.margin!.side }));
   const b = results.basins;
   const basins = {
     show: b.attractors.length > 0,
@@ -155,6 +208,7 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
       scenarios,
       equilibria: equilibria.map((e) => ({ id: e.id, type: e.type, at: pointWords(results.equilibria.find((q) => q.id === e.id)!.point, 4) })),
       assumptionsFailing: assumptions.filter((a) => a.holds === false).length,
+      margins,
     },
     model: {
       equations: results.model.equations.map((e) => m(`${dotted(e.state)} = ${e.tex}`, true)),
@@ -172,6 +226,7 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
     regions,
     nullclines,
     basins,
+    conditions,
     figures: {
       portrait: figure("portrait"),
       traceDeterminant: figure("trace-determinant"),

@@ -20,6 +20,7 @@ import { studyParameter } from "./thresholds.js";
 import { buildOutcomeMap } from "./maps.js";
 import { findAssumptionFlips } from "./assumptions.js";
 import { nameToTex } from "../model/tex.js";
+import { checkClaims } from "./claims.js";
 import { computeDirectionField, DEFAULT_DIRECTION_FIELD_OPTIONS, type DirectionFieldOptions } from "./field.js";
 
 export interface AnalysisOptions {
@@ -95,7 +96,10 @@ function analyzeCore(model: Model, options: AnalysisOptions, progress?: Progress
   const flips = findAssumptionFlips(model, studies);
   const assumptions = evaluateAssumptions(model).map((a, k) => ({ ...a, flips: flips[k] }));
 
-  // 7. the basin map's kernel, for the attractors now known
+  // 7. the spec's claims, one by one
+  const claims = checkClaims({ model, equilibria, scenarios, studies });
+
+  // 8. the basin map's kernel, for the attractors now known
   const plan = planBasins(model, equilibria, registry.cycles, box, portraitHorizon, timeScale, options.basins, diagnostics);
   const results: Omit<Results, "basins"> = {
     keel: KEEL_VERSION,
@@ -117,6 +121,7 @@ function analyzeCore(model: Model, options: AnalysisOptions, progress?: Progress
     trajectories,
     thresholds: studies.flatMap((st) => st.thresholds),
     conditions: { invasion, studies, maps },
+    claims,
     assumptions,
     diagnostics,
     settings: {

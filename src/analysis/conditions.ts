@@ -56,7 +56,14 @@ function evaluateAt(node: MathNode, p: ArrayLike<number>, state: [number, number
   return fn(p, state[0], state[1]);
 }
 
-/** Roots in closed form of a numerator that is a polynomial of degree ≤ 2 in `variable`; null otherwise. */
+/**
+ * Highest degree of a resident's numerator handled: a quadratic per-capita rate times the
+ * resident itself (f_j = x_j g_j, g_j quadratic, as with an Allee effect) is a cubic with a root at 0.
+ */
+const MAX_POLYNOMIAL_DEGREE = 3;
+const FACTORIALS = [1, 1, 2, 6];
+
+/** Roots in closed form of a numerator that is a polynomial in `variable` of degree ≤ 2 once roots at 0 are factored out; null otherwise. */
 function polynomialRoots(expr: MathNode, variable: string): MathNode[] | null {
   let numerator: MathNode;
   try {
@@ -64,20 +71,29 @@ function polynomialRoots(expr: MathNode, variable: string): MathNode[] | null {
   } catch {
     return null;
   }
-  const d1 = derivative(numerator, variable);
-  const d2 = derivative(d1, variable);
-  if (!isZero(derivative(d2, variable))) return null;
   const zero = new ConstantNode(0);
-  const c0 = simplify(substitute(numerator, variable, zero));
-  const c1 = simplify(substitute(d1, variable, zero));
-  const c2 = simplify(substitute(simplify(`(${d2.toString()}) / 2`), variable, zero));
-  const linearRoot = (a: MathNode, b: MathNode) => simplify(`-(${a.toString()}) / (${b.toString()})`);
-  if (isZero(c2)) return isZero(c1) ? null : [linearRoot(c0, c1)];
-  if (isZero(c0)) return isZero(c1) ? [new ConstantNode(0)] : [new ConstantNode(0), linearRoot(c1, c2)];
-  const disc = `(${c1.toString()})^2 - 4 * (${c2.toString()}) * (${c0.toString()})`;
+  // coefficients c_k = (d^k numerator / d variable^k at 0) / k!, lowest degree first
+  const coefficients: MathNode[] = [];
+  let d = numerator;
+  for (let k = 0; k <= MAX_POLYNOMIAL_DEGREE; k++) {
+    coefficients.push(simplify(`(${substitute(d, variable, zero).toString()}) / ${FACTORIALS[k]}`));
+    d = derivative(d, variable);
+  }
+  if (!isZero(d)) return null;
+  while (coefficients.length && isZero(coefficients[coefficients.length - 1])) coefficients.pop();
+  if (!coefficients.length) return null; // identically zero: every value is a root
+  const roots: MathNode[] = [];
+  if (isZero(coefficients[0])) roots.push(new ConstantNode(0));
+  while (isZero(coefficients[0])) coefficients.shift();
+  if (coefficients.length > 3) return null;
+  const [c0, c1, c2] = coefficients.map((c) => c.toString());
+  if (coefficients.length === 1) return roots.length ? roots : null;
+  if (coefficients.length === 2) return [...roots, simplify(`-(${c0}) / (${c1})`)];
+  const disc = `(${c1})^2 - 4 * (${c2}) * (${c0})`;
   return [
-    simplify(`(-(${c1.toString()}) + sqrt(${disc})) / (2 * (${c2.toString()}))`),
-    simplify(`(-(${c1.toString()}) - sqrt(${disc})) / (2 * (${c2.toString()}))`),
+    ...roots,
+    simplify(`(-(${c1}) + sqrt(${disc})) / (2 * (${c2}))`),
+    simplify(`(-(${c1}) - sqrt(${disc})) / (2 * (${c2}))`),
   ];
 }
 
@@ -142,7 +158,10 @@ function userNames(model: Model): Map<string, string> {
   return m;
 }
 
-/** For each parameter in which the rate is linear (rate = A + B p), the threshold −A/B. */
+/**
+ * For each parameter p in which the rate is linear (rate = A + B p: threshold −A/B) or linear in
+ * 1/p (rate = A + B/p, as a carrying capacity dividing a competition term: threshold −B/A).
+ */
 function linearThresholds(model: Model, rate: MathNode): ParameterThreshold[] {
   const out: ParameterThreshold[] = [];
   const p = model.parameterValues;
@@ -151,18 +170,31 @@ function linearThresholds(model: Model, rate: MathNode): ParameterThreshold[] {
     let slope: MathNode;
     try { slope = simplify(derivative(rate, sym)); } catch { return; }
     if (isZero(slope)) return;
-    if (!isZero(derivative(slope, sym))) return; // not linear in this parameter
-    const intercept = simplify(substitute(rate, sym, new ConstantNode(0)));
-    const threshold = simplify(`-(${intercept.toString()}) / (${slope.toString()})`);
+    let threshold: MathNode;
+    let rising: number; // the sign of d rate / dp is the sign of this
+    if (isZero(derivative(slope, sym))) {
+      const intercept = simplify(substitute(rate, sym, new ConstantNode(0)));
+      threshold = simplify(`-(${intercept.toString()}) / (${slope.toString()})`);
+      rising = evaluateAt(slope, p);
+    } else {
+      // rate = A + B/p ⇔ p² rate' (= −B) and rate + p rate' (= A) do not depend on p
+      let a: MathNode, minusB: MathNode;
+      try {
+        minusB = simplify(`(${sym})^2 * (${slope.toString()})`);
+        a = simplify(`${rate.toString()} + ${sym} * (${slope.toString()})`);
+      } catch { return; }
+      if (!isZero(derivative(minusB, sym)) || !isZero(derivative(a, sym)) || isZero(a)) return;
+      threshold = simplify(`(${minusB.toString()}) / (${a.toString()})`);
+      rising = evaluateAt(minusB, p);
+    }
     const value = evaluateAt(threshold, p);
-    const b = evaluateAt(slope, p);
-    if (!Number.isFinite(value) || b === 0) return;
+    if (!Number.isFinite(value) || !(rising !== 0)) return;
     out.push({
       parameter: name,
       text: expressionToText(threshold, userNames(model)),
       tex: expressionToTex(threshold, userNames(model)),
       value,
-      invadesWhen: b > 0 ? ">" : "<",
+      invadesWhen: rising > 0 ? ">" : "<",
     });
   });
   return out;

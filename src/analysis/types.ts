@@ -21,6 +21,7 @@ export type { RegionResult } from "./regions.js";
 export type { DirectionFieldResult } from "./field.js";
 export type { ParameterStudyResult, ThresholdResult, OutcomeIntervalResult, MarginResult } from "./thresholds.js";
 export type { InvasionConditionResult } from "./conditions.js";
+export type { ClaimResult } from "./claims.js";
 export type { OutcomeMapResult } from "./maps.js";
 export type { Fate, TrajectoryPath } from "./flow.js";
 export type { StabilityResult, EquilibriumType, Complex } from "./stability.js";
@@ -60,6 +61,7 @@ export interface Results {
   basins: BasinResult;
   /** Every located threshold of every studied parameter (the flat list; details under conditions). */
   thresholds: ThresholdResult[];
+  claims: import("./claims.js").ClaimResult[];
   conditions: {
     invasion: InvasionConditionResult[];
     studies: ParameterStudyResult[];

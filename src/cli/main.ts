@@ -3,7 +3,7 @@ import { KEEL_VERSION } from "../version.js";
 import { buildSpecJsonSchema } from "../spec/schema.js";
 import { messages } from "../diagnostics/messages.js";
 import { CliExit, EXIT } from "./io.js";
-import { runCheck } from "./commands/check.js";
+import { runCheck, runCheckClaims } from "./commands/check.js";
 import { runAnalyze } from "./commands/analyze.js";
 import { availableParallelism } from "node:os";
 
@@ -26,8 +26,15 @@ function buildProgram(): Command {
     .command("check")
     .description("validate a spec and print a model summary")
     .argument("<spec>", "path to the spec JSON file")
-    .action((spec: string) => {
-      process.stdout.write(runCheck(spec) + "\n");
+    .option("--claims", "also run the analysis and check the spec's claims; exit 3 when any is contradicted")
+    .action(async (spec: string, opts: { claims?: boolean }) => {
+      if (!opts.claims) {
+        process.stdout.write(runCheck(spec) + "\n");
+        return;
+      }
+      const { text, code } = await runCheckClaims(spec, { quiet: Boolean(program.opts().quiet), jobs: program.opts().jobs });
+      process.stdout.write(text + "\n");
+      if (code !== EXIT.ok) throw new CliExit(code, "");
     });
 
   program
@@ -76,7 +83,7 @@ export async function main(argv: string[]): Promise<number> {
     return EXIT.ok;
   } catch (err) {
     if (err instanceof CliExit) {
-      process.stderr.write(err.message + "\n");
+      if (err.message) process.stderr.write(err.message + "\n");
       return err.code;
     }
     if (err instanceof CommanderError) {

@@ -43,6 +43,8 @@ export const messages = {
   unknownParameter: (name: string) => `'${name}' is not a declared parameter`,
   parameterWithoutRange: (name: string) => `parameter '${name}' has no range, so its thresholds cannot be searched: add parameters[].range`,
   pairRepeats: (name: string) => `a parameter pair needs two different parameters, got '${name}' twice`,
+  unknownScenario: (name: string) => `'${name}' is not the name of a scenario in the spec`,
+  claimNearWithCycle: () => `'near' applies to an equilibrium; a claim that a scenario reaches a cycle takes no point`,
   planarOnly: (n: number) => `keel analyses planar models: exactly 2 states are needed, found ${n}`,
   // expression errors
   unexpectedCharacter: (ch: string) =>

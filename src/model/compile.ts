@@ -41,12 +41,20 @@ export function compileModel(spec: NormalizedSpec): Parsed<Model> {
     if (parsed.ok) trees.push(parsed.node);
     else issues.push(parsed.issue);
   }
-  const parsedConditions: { index: number; text: string; result: ReturnType<typeof parseCondition> }[] = [];
+  type ParsedCondition = { index: number; text: string; result: ReturnType<typeof parseCondition> };
+  const parsedConditions: ParsedCondition[] = [];
   spec.assumptions.forEach((a, index) => {
     if (a.condition === null) return;
     const result = parseCondition(a.condition, ["assumptions", index, "condition"], names);
     if (!result.ok) issues.push(result.issue);
     parsedConditions.push({ index, text: a.condition, result });
+  });
+  const parsedClaimConditions: ParsedCondition[] = [];
+  spec.claims.forEach((c, index) => {
+    if (c.kind !== "condition-decides") return;
+    const result = parseCondition(c.condition, ["claims", index, "condition"], names);
+    if (!result.ok) issues.push(result.issue);
+    parsedClaimConditions.push({ index, text: c.condition, result });
   });
   if (issues.length) return { ok: false, issues };
 
@@ -68,7 +76,7 @@ export function compileModel(spec: NormalizedSpec): Parsed<Model> {
     jacobianParametric: body(jacobianNodes.flat(), {}),
   };
 
-  const conditions: CompiledCondition[] = parsedConditions.map(({ index, text, result }) => {
+  const compileCondition = ({ index, text, result }: ParsedCondition): CompiledCondition => {
     if (!result.ok) throw new Error("unreachable: condition issues returned above");
     const lhs = describe(result.lhs);
     const rhs = describe(result.rhs);
@@ -89,7 +97,9 @@ export function compileModel(spec: NormalizedSpec): Parsed<Model> {
         return { lhs: l, rhs: r, holds };
       },
     };
-  });
+  };
+  const conditions = parsedConditions.map(compileCondition);
+  const claimConditions = parsedClaimConditions.map(compileCondition);
 
   return {
     ok: true,
@@ -102,6 +112,7 @@ export function compileModel(spec: NormalizedSpec): Parsed<Model> {
       equations,
       jacobian,
       conditions,
+      claimConditions,
       rhs: instantiateRhs(source.rhs),
       jacobianAt: instantiateRhs(source.jacobian),
       rhsParametric: instantiateParametric(source.rhsParametric),

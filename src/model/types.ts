@@ -16,7 +16,7 @@ export interface CompiledExpression {
 }
 
 export interface CompiledCondition {
-  /** Index into spec.assumptions. */
+  /** Index into spec.assumptions (or spec.claims, for claimConditions). */
   assumption: number;
   text: string;
   lhs: CompiledExpression;
@@ -49,6 +49,8 @@ export interface Model {
   /** jacobian[i][j] = ∂f_i/∂x_j. */
   jacobian: CompiledExpression[][];
   conditions: CompiledCondition[];
+  /** Conditions of condition-decides claims, indexed by claim. */
+  claimConditions: CompiledCondition[];
   rhs: RhsFunction;
   /** Row-major: out[i * n + j] = ∂f_i/∂x_j. */
   jacobianAt: RhsFunction;

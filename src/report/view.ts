@@ -209,6 +209,12 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
       equilibria: equilibria.map((e) => ({ id: e.id, type: e.type, at: pointWords(results.equilibria.find((q) => q.id === e.id)!.point, 4) })),
       assumptionsFailing: assumptions.filter((a) => a.holds === false).length,
       margins,
+      claims: results.claims.map((c) => ({ id: c.id, text: c.text, verdict: c.verdict, evidence: c.evidence, where: c.where })),
+      claimCounts: {
+        supported: results.claims.filter((c) => c.verdict === "supported").length,
+        contradicted: results.claims.filter((c) => c.verdict === "contradicted").length,
+        undecided: results.claims.filter((c) => c.verdict === "undecided").length,
+      },
     },
     model: {
       equations: results.model.equations.map((e) => m(`${dotted(e.state)} = ${e.tex}`, true)),

@@ -46,6 +46,7 @@ export function normalizeSpec(spec: KeelSpecInput, sha256: string): NormalizedSp
     })),
     assumptions: pick(spec.assumptions, [], "assumptions").map((a) => ({ text: a.text, condition: a.condition ?? null })),
     cautions: pick(spec.cautions, [], "cautions"),
+    claims: pick(spec.claims, [], "claims"),
     analysis: {
       basins: { ...(spec.analysis?.basins ?? {}) },
       parameters: spec.analysis?.parameters ?? (spec.parameters ?? []).filter((p) => p.range).map((p) => p.name),

@@ -53,6 +53,69 @@ export const AssumptionSpecSchema = z
   })
   .describe("An assumption the analysis rests on.");
 
+const pointSchema = z.record(z.string(), finite()).describe("A point in state space: a value for every state.");
+const nearTolerance = z.number().positive().max(1).optional()
+  .describe("How near counts as near, as a fraction of the window in each state. Default 0.02.");
+const presenceSchema = z.string().min(1)
+  .describe("Which populations the attractor keeps: 'coexistence' (all present), '<state> only' (e.g. 'S only'), or 'all absent'.");
+const claimBase = {
+  id: z.string().regex(/^[A-Za-z0-9][A-Za-z0-9_.-]*$/, { message: "a claim id is letters, digits, '_', '.' or '-'" })
+    .describe("Short id for the claim, quoted in the verdicts."),
+  text: z.string().optional().describe("The claim as the plan or paper words it."),
+};
+
+export const ClaimSpecSchema = z.discriminatedUnion("kind", [
+  z.strictObject({
+    ...claimBase,
+    kind: z.literal("equilibrium-count"),
+    count: z.number().int().min(0).describe("The number of equilibria claimed."),
+    stableOnly: z.boolean().optional().describe("Count only stable equilibria. Default false."),
+  }).describe("The window holds this many equilibria."),
+  z.strictObject({
+    ...claimBase,
+    kind: z.literal("equilibrium-type"),
+    near: pointSchema,
+    type: z.enum(["saddle", "stable-node", "unstable-node", "stable-focus", "unstable-focus", "center", "stable-degenerate-node",
+      "unstable-degenerate-node", "stable-star", "unstable-star", "non-hyperbolic", "stable", "unstable"])
+      .describe("The type claimed, in keel's vocabulary; 'stable' or 'unstable' accept any type of that stability."),
+    tolerance: nearTolerance,
+  }).describe("An equilibrium near this point has this type."),
+  z.strictObject({
+    ...claimBase,
+    kind: z.literal("scenario-fate"),
+    scenario: z.string().describe("Name of a scenario in the spec."),
+    reaches: z.enum(["equilibrium", "cycle"]).describe("What the scenario's trajectory converges to."),
+    near: pointSchema.optional().describe("For an equilibrium: the point it is claimed to be near."),
+    tolerance: nearTolerance,
+  }).describe("A scenario converges to an equilibrium near a point, or to a periodic orbit."),
+  z.strictObject({
+    ...claimBase,
+    kind: z.literal("parameter-side"),
+    parameter: z.string().describe("A parameter with a range."),
+    side: z.enum(["below", "above"]).describe("The current value lies below or above the threshold."),
+    threshold: z.enum(["saddle-node", "transcritical", "hopf", "boundary-crossing", "any"]).optional()
+      .describe("Kind of the threshold meant; default 'any': the nearest threshold that changes the outcome."),
+  }).describe("A parameter lies below or above its threshold for an outcome."),
+  z.strictObject({
+    ...claimBase,
+    kind: z.literal("condition-decides"),
+    condition: z.string().describe("An inequality between parameters, e.g. 'a12 < K1/K2'."),
+    attractor: presenceSchema,
+    samples: z.number().int().min(8).max(4096).optional().describe("Parameter points sampled across the ranges. Default 64."),
+  }).describe("The condition holds exactly when a stable attractor of this kind exists, across the parameter ranges (necessary and sufficient)."),
+  z.strictObject({
+    ...claimBase,
+    kind: z.literal("threshold-value"),
+    parameter: z.string().describe("A parameter with a range."),
+    value: finite().describe("The threshold value claimed."),
+    tolerance: z.number().positive().describe("Allowed relative difference, e.g. 0.01 for 1%."),
+    threshold: z.enum(["saddle-node", "transcritical", "hopf", "boundary-crossing", "any"]).optional()
+      .describe("Kind of threshold meant. Default 'any'."),
+  }).describe("A threshold of this parameter lies at this value, within the tolerance."),
+]);
+
+export type ClaimSpec = z.infer<typeof ClaimSpecSchema>;
+
 export const KeelSpecSchema = z
   .strictObject({
     $schema: z.string().optional().describe("Path or URI of this JSON Schema, for editors."),
@@ -84,6 +147,8 @@ export const KeelSpecSchema = z
     scenarios: z.array(ScenarioSpecSchema).optional().describe("Starting states to follow. Default: none."),
     assumptions: z.array(AssumptionSpecSchema).optional().describe("Assumptions. Default: none."),
     cautions: z.array(z.string()).optional().describe("Cautions specific to this model, printed in the dossier."),
+    claims: z.array(ClaimSpecSchema).optional()
+      .describe("Statements about the model for keel to check one by one; each gets a verdict. Default: none."),
     analysis: z
       .strictObject({
         basins: z

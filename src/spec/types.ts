@@ -43,6 +43,7 @@ export interface NormalizedSpec {
   scenarios: NormalizedScenario[];
   assumptions: NormalizedAssumption[];
   cautions: string[];
+  claims: import("./schema.js").ClaimSpec[];
   /** Analysis settings the spec sets (only those given; the analysis fills the rest). */
   analysis: {
     basins: { resolution?: number; coarse?: number };

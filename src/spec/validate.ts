@@ -96,6 +96,26 @@ export function validateSpecRules(spec: KeelSpecInput): SpecIssue[] {
     if (a === b) add("pair_repeats", ["analysis", "parameterPairs", i], messages.pairRepeats(a));
   });
 
+  const stateSet = new Set(stateNames);
+  const claimIds = new Map<string, number>();
+  (spec.claims ?? []).forEach((c, i) => {
+    const first = claimIds.get(c.id);
+    if (first !== undefined) add("duplicate_name", ["claims", i, "id"], messages.duplicateName(c.id, `claims[${first}].id`));
+    else claimIds.set(c.id, i);
+    const checkPoint = (point: Record<string, number> | undefined, key: string) => {
+      if (!point) return;
+      for (const s of stateNames) if (!own(point, s)) add("missing_state", ["claims", i, key], messages.initialMissing(s));
+      for (const k of Object.keys(point)) if (!stateSet.has(k)) add("unknown_state", ["claims", i, key, k], messages.initialUnknown(k));
+    };
+    if (c.kind === "equilibrium-type") checkPoint(c.near, "near");
+    if (c.kind === "scenario-fate") {
+      checkPoint(c.near, "near");
+      if (!(spec.scenarios ?? []).some((sc) => sc.name === c.scenario)) add("unknown_scenario", ["claims", i, "scenario"], messages.unknownScenario(c.scenario));
+      if (c.reaches === "cycle" && c.near) add("claim_form", ["claims", i, "near"], messages.claimNearWithCycle());
+    }
+    if (c.kind === "parameter-side" || c.kind === "threshold-value") checkStudied(c.parameter, ["claims", i, "parameter"]);
+  });
+
   const scenarioNames = new Map<string, number>();
   for (const [i, sc] of (spec.scenarios ?? []).entries()) {
     const first = scenarioNames.get(sc.name);

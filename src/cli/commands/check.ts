@@ -1,5 +1,6 @@
 import { prepareModel } from "../../pipeline.js";
-import { inputError, readSpecFile } from "../io.js";
+import { CliExit, EXIT, inputError, makeProgress, readSpecFile } from "../io.js";
+import { runAnalysis } from "./run.js";
 
 /** `keel check SPEC`: validate and print a model summary. */
 export function runCheck(file: string): string {
@@ -23,4 +24,17 @@ export function runCheck(file: string): string {
     "spec OK",
   ];
   return lines.join("\n");
+}
+
+/** `keel check --claims SPEC`: run the analysis and print each claim's verdict; exit 3 when any is contradicted. */
+export async function runCheckClaims(file: string, options: { quiet: boolean; jobs?: number }): Promise<{ text: string; code: number }> {
+  const output = await runAnalysis(readSpecFile(file), options.jobs, makeProgress(options.quiet));
+  if (!output.ok) throw inputError(output.issues, file);
+  const claims = output.value.results.claims;
+  if (claims.length === 0) throw new CliExit(EXIT.input, `error: ${file} states no claims (add a "claims" list to the spec)`);
+  const lines = claims.map((c) => `${c.verdict.padEnd(12)} ${c.id}: ${c.evidence} (see ${c.where})`);
+  const contradicted = claims.filter((c) => c.verdict === "contradicted").length;
+  const undecided = claims.filter((c) => c.verdict === "undecided").length;
+  lines.push(`${claims.length - contradicted - undecided} supported, ${contradicted} contradicted, ${undecided} undecided`);
+  return { text: lines.join("\n"), code: contradicted > 0 ? EXIT.contradicted : EXIT.ok };
 }

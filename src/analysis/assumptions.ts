@@ -73,7 +73,8 @@ export function findAssumptionFlips(
             coincides: relativeDifference !== null && relativeDifference <= ASSUMPTION_MATCH_TOL,
           });
         }
-        prevV = v; prevG = gv;
+        // a sample exactly on the flip (g = 0) is stepped over: the sign change is seen from the next sample
+        if (gv !== 0) { prevV = v; prevG = gv; }
       }
     }
     return flips;

@@ -96,7 +96,9 @@ export function studyParameter(
   };
   for (let k = 0; k + 1 < samples.length; k++) {
     let a = samples[k], b = samples[k + 1];
-    if (cuts.some((c) => c.value > a && c.value < b)) continue;
+    // a sample on a located threshold (to SWITCH_LOCATE_TOL) sees the degenerate outcome there: not a change
+    const slack = SWITCH_LOCATE_TOL * (hi - lo);
+    if (cuts.some((c) => c.value > a - slack && c.value < b + slack)) continue;
     const oa = outcomeAt(a), ob = outcomeAt(b);
     if (oa.signature === ob.signature) continue;
     while (b - a > SWITCH_LOCATE_TOL * (hi - lo)) {

@@ -66,6 +66,17 @@ function buildProgram(): Command {
     });
 
   program
+    .command("verify")
+    .description("check an archived dossier's hashes and re-run its analysis; exit 3 when anything differs")
+    .argument("<target>", "a folder written by keel build, or a dossier.pdf")
+    .action(async (target: string) => {
+      const { runVerify } = await import("./commands/verify.js");
+      const report = await runVerify(target, { quiet: Boolean(program.opts().quiet), jobs: program.opts().jobs });
+      process.stdout.write(report.lines.join("\n") + "\n");
+      if (!report.ok) throw new CliExit(EXIT.contradicted, "");
+    });
+
+  program
     .command("schema")
     .description("print the JSON Schema of the spec format")
     .action(() => {

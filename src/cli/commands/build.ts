@@ -6,6 +6,10 @@ import { buildDossier } from "../../report/dossier.js";
 import { findChromium } from "../../report/render/chromium.js";
 import { renderPdf } from "../../report/render/pdf.js";
 import { toStandaloneSvg } from "../../report/render/svg.js";
+import { embedArchive, manifestText, sha256, type Manifest } from "../../report/archive.js";
+import { existsSync, readFileSync } from "node:fs";
+import { dirname } from "node:path";
+import { fileURLToPath } from "node:url";
 import { CliExit, EXIT, inputError, makeProgress, readSpecFile, writeFileAtomic } from "../io.js";
 
 export interface BuildOptions {
@@ -32,6 +36,12 @@ function libraryVersions(): Record<string, string> {
   return out;
 }
 
+/** SHA-256 of the lockfile keel was installed from (the package root's package-lock.json), when there is one. */
+function lockfileHash(): string | null {
+  const path = join(dirname(fileURLToPath(import.meta.url)), "..", "..", "..", "package-lock.json");
+  return existsSync(path) ? sha256(readFileSync(path)) : null;
+}
+
 /** The build date: SOURCE_DATE_EPOCH when set (reproducible builds), else now. */
 export function buildEpoch(env: NodeJS.ProcessEnv): { epoch: number; reproducible: boolean } {
   const raw = env.SOURCE_DATE_EPOCH;
@@ -52,7 +62,8 @@ export async function runBuild(file: string, options: BuildOptions): Promise<str
     throw new CliExit(EXIT.input, "error: --pdf was given but no Chromium was found; install it (apt-get install chromium) or set KEEL_CHROMIUM to its path");
   }
   const started = performance.now();
-  const output = await runAnalysis(readSpecFile(file), options.jobs, progress);
+  const specText = readSpecFile(file);
+  const output = await runAnalysis(specText, options.jobs, progress);
   if (!output.ok) throw inputError(output.issues, file);
   const { spec, results } = output.value;
   const runSeconds = reproducible ? null : (performance.now() - started) / 1000;
@@ -64,35 +75,52 @@ export async function runBuild(file: string, options: BuildOptions): Promise<str
     nodeVersion: process.version,
     libraries: libraryVersions(),
   });
-  let pdf: Uint8Array | null = null;
+  // every file but the PDF and the manifest, in memory first
+  const files = new Map<string, string | Uint8Array>();
+  files.set("spec.json", specText);
+  files.set("results.json", serializeResults(results));
+  for (const f of dossier.figures) {
+    // file names from ids, made safe: scenario names are free text
+    const base = f.id.replace(/[^A-Za-z0-9_-]+/g, "-");
+    files.set(`figures/${base}.svg`, toStandaloneSvg(f.svg) + "\n");
+    files.set(`figures/${base}.vl.json`, JSON.stringify({ $schema: "https://vega.github.io/schema/vega-lite/v6.json", ...f.vegaLite }, null, 2) + "\n");
+  }
+  files.set("dossier.html", dossier.html);
+  const manifest: Manifest = {
+    keel: results.keel,
+    node: process.version,
+    lockfileSha256: lockfileHash(),
+    spec: { file: "spec.json", sha256Canonical: spec.sha256 },
+    // --jobs is left out on purpose: results do not depend on it
+    options: { paper: options.paper, pdf: Boolean(chromium) },
+    seeds: { claimSampler: 1 },
+    files: Object.fromEntries([...files].map(([name, content]) => [name, sha256(content)])),
+  };
+
   const notes: string[] = [];
   if (chromium) {
     progress?.("dossier", 1, 2);
     const printed = await renderPdf(dossier.html, { chromiumPath: chromium, paper: options.paper, headerLeft: spec.id, headerRight: `spec ${spec.sha256.slice(0, 16)}…` });
-    pdf = printed.pdf;
     if (printed.blockedRequests.length) notes.push(`blocked ${printed.blockedRequests.length} network request(s) while printing: ${printed.blockedRequests.join(", ")}`);
+    // the PDF carries the spec, the results and the manifest (which cannot list the PDF's own hash)
+    const embedded = { "spec.json": specText, "results.json": files.get("results.json") as string, "manifest.json": manifestText(manifest) };
+    const pdf = await embedArchive(printed.pdf, embedded, epoch, `${spec.title} — stability dossier`);
+    files.set("dossier.pdf", pdf);
+    manifest.files["dossier.pdf"] = sha256(pdf);
   } else if (options.pdf !== false) {
     notes.push("no Chromium found, so no PDF was written; install it with `apt-get install chromium` (or set KEEL_CHROMIUM)");
   }
+  files.set("manifest.json", manifestText(manifest));
   progress?.("dossier", 2, 2);
 
   // everything is computed; only now does anything reach the disk
   const dir = options.out ?? join("out", spec.id);
   const written: string[] = [];
-  const write = (name: string, content: string | Uint8Array) => {
+  for (const [name, content] of files) {
     const path = join(dir, name);
     writeFileAtomic(path, content);
     written.push(path);
-  };
-  write("results.json", serializeResults(results));
-  for (const f of dossier.figures) {
-    // file names from ids, made safe: scenario names are free text
-    const base = f.id.replace(/[^A-Za-z0-9_-]+/g, "-");
-    write(join("figures", `${base}.svg`), toStandaloneSvg(f.svg) + "\n");
-    write(join("figures", `${base}.vl.json`), JSON.stringify({ $schema: "https://vega.github.io/schema/vega-lite/v6.json", ...f.vegaLite }, null, 2) + "\n");
   }
-  write("dossier.html", dossier.html);
-  if (pdf) write("dossier.pdf", pdf);
   for (const n of notes) if (!options.quiet) process.stderr.write(`note: ${n}\n`);
   return written;
 }

@@ -140,3 +140,70 @@ export function figureConfig(): Record<string, unknown> {
     concat: { spacing: 14 },
   };
 }
+
+/**
+ * Region fills for basin and outcome maps: light (L* 67 to 91), so the lines and markers drawn
+ * over them keep their contrast, and each its own lightness, at least 5.8 L* from every other
+ * fill below (the special greys included), so neighbouring regions part in grey-scale print.
+ * Hues alternate between the blue and orange ends of the axis that red–green colour blindness
+ * keeps. The first two, the most common pair, are 12 L* apart.
+ */
+export const REGION_FILLS = [
+  "#cde9fe", // L* 91, pale blue
+  "#f0b982", // L* 79, sand orange
+  "#a1e1d0", // L* 85, pale teal
+  "#bfacd2", // L* 73, lilac
+  "#aea564", // L* 67, olive
+] as const;
+
+/**
+ * Basin outcomes that are not attractors, in neutral greys: leaving the window near white (no
+ * attractor in view), blow-up and undecided darker, as cells that call for attention.
+ */
+export const SPECIAL_REGION_FILLS: Record<string, string> = {
+  "left-window": "#f6f6f6", // L* 97
+  "blow-up": "#939393", // L* 61
+  undecided: "#848484", // L* 55
+};
+
+/** A fill's sample in a key: a landscape rectangle (no equilibrium marker has that shape), outlined so the palest fill shows. */
+export const SWATCH_PATH = "M-1,-0.62L1,-0.62L1,0.62L-1,0.62Z";
+export const SWATCH_SIZE = 190;
+
+/** Branches of equilibria in a bifurcation diagram: stability told by dash and width as well as lightness. */
+export const BRANCH_STYLES = {
+  stable: { color: "#23395b", strokeWidth: 2.4, strokeDash: [], label: "stable equilibria" }, // L* 24
+  unstable: { color: "#5b7fb8", strokeWidth: 1.7, strokeDash: [7, 4], label: "unstable equilibria (saddle or source)" }, // L* 53
+  undecided: { color: FRAME, strokeWidth: 1.7, strokeDash: [1, 3.5], label: "stability not decided by the linearisation" },
+} as const satisfies Record<string, LineStyle>;
+
+/** The current parameter values: a burnt-orange rule ("now") and, in two-parameter maps, a star (L* 47). */
+export const NOMINAL_COLOR = "#b5541c";
+export const NOMINAL_STYLE = { color: NOMINAL_COLOR, strokeWidth: 1.4, strokeDash: [], label: "current value (now)" } as const satisfies LineStyle;
+export const NOMINAL_MARKER: MarkerStyle = {
+  shape: "M0,-1L0.225,-0.31L0.951,-0.309L0.363,0.118L0.588,0.809L0,0.382L-0.588,0.809L-0.363,0.118L-0.951,-0.309L-0.225,-0.31Z",
+  angle: 0, fill: NOMINAL_COLOR, stroke: INK, strokeWidth: 0.8, size: 230, label: "current values (now)",
+};
+
+/** Located special points on branches: four shapes that need no colour, none of them an equilibrium marker's. */
+export const SPECIAL_POINT_MARKERS: Record<"saddle-node" | "transcritical" | "hopf" | "boundary-crossing", MarkerStyle> = {
+  // open diamond: two branches meet and end
+  "saddle-node": { shape: "diamond", angle: 0, fill: PAPER, stroke: INK, strokeWidth: 1.6, size: 120, label: "fold (saddle-node)" },
+  // bow tie: two branches cross and exchange stability
+  transcritical: { shape: "M-1,-0.8L1,0.8L1,-0.8L-1,0.8Z", angle: 0, fill: INK, stroke: INK, strokeWidth: 0.6, size: 120, label: "transcritical" },
+  // ring: a periodic orbit is born
+  hopf: { shape: "circle", angle: 0, fill: PAPER, stroke: INK, strokeWidth: 2.2, size: 100, label: "Hopf" },
+  // filled down-triangle: the branch passes a bound of the feasible region
+  "boundary-crossing": { shape: "triangle-down", angle: 0, fill: INK, stroke: INK, strokeWidth: 0.6, size: 100, label: "boundary crossing" },
+};
+
+/** Threshold curves in outcome maps: one ink colour, told apart by dash pattern alone. */
+export const THRESHOLD_CURVE_STYLES: Record<string, LineStyle> = {
+  "saddle-node": { color: INK, strokeWidth: 1.8, strokeDash: [9, 3], label: "fold (saddle-node) curve" },
+  transcritical: { color: INK, strokeWidth: 1.8, strokeDash: [1, 3.5], label: "transcritical curve" },
+  hopf: { color: INK, strokeWidth: 1.8, strokeDash: [9, 3, 1, 3], label: "Hopf curve" },
+  "boundary-crossing": { color: INK, strokeWidth: 1.8, strokeDash: [4, 4], label: "boundary-crossing curve" },
+};
+
+export const BIFURCATION_PANEL = { width: 370, height: 165 } as const;
+export const OUTCOME_MAP_PLOT = { width: 370, height: 340 } as const;

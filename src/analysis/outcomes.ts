@@ -100,7 +100,8 @@ export function classifyOutcome(model: Model, withScenarios: boolean, fineEquili
         const c = registry.cycles.find((q) => q.id === fate.target);
         words = `settles on a ${c?.stability ?? ""} cycle`;
       } else if (fate.kind === "left-window") words = `leaves the window through ${fate.edge.split(" = ")[0]}`;
-      else if (fate.kind === "blow-up") words = "blows up";
+      // a blow-up after an exit (a population driven through 0) is told by where it left, as for manifolds
+      else if (fate.kind === "blow-up") words = follow.exit ? `leaves the window through ${follow.exit.edge.split(" = ")[0]} and then blows up` : "blows up";
       else words = "is undecided";
       scenarios.push({ name: sc.name, fate: words });
     }

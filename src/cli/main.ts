@@ -2,15 +2,23 @@ import { Command, CommanderError, InvalidArgumentError } from "commander";
 import { KEEL_VERSION } from "../version.js";
 import { buildSpecJsonSchema } from "../spec/schema.js";
 import { messages } from "../diagnostics/messages.js";
-import { CliExit, EXIT } from "./io.js";
-import { runCheck, runCheckClaims } from "./commands/check.js";
-import { runAnalyze } from "./commands/analyze.js";
+import { CliExit, EXIT, inputError, readSpecFile } from "./io.js";
+import { parseSpecText } from "../spec/parse.js";
 import { availableParallelism } from "node:os";
 
 function parseJobs(value: string): number {
   const n = Number(value);
   if (!Number.isInteger(n) || n < 1) throw new InvalidArgumentError("expected a whole number of at least 1");
   return n;
+}
+
+/**
+ * Spec-level faults are found before the expression compiler and the analysis are loaded (their
+ * modules take most of a second to import), so a bad spec is reported at once.
+ */
+function prevalidate(file: string): void {
+  const parsed = parseSpecText(readSpecFile(file));
+  if (!parsed.ok) throw inputError(parsed.issues, file);
 }
 
 function buildProgram(): Command {
@@ -28,6 +36,8 @@ function buildProgram(): Command {
     .argument("<spec>", "path to the spec JSON file")
     .option("--claims", "also run the analysis and check the spec's claims; exit 3 when any is contradicted")
     .action(async (spec: string, opts: { claims?: boolean }) => {
+      prevalidate(spec);
+      const { runCheck, runCheckClaims } = await import("./commands/check.js");
       if (!opts.claims) {
         process.stdout.write(runCheck(spec) + "\n");
         return;
@@ -43,6 +53,8 @@ function buildProgram(): Command {
     .argument("<spec>", "path to the spec JSON file")
     .option("-o, --out <dir>", "output folder (default: out/<id>/)")
     .action(async (spec: string, opts: { out?: string }) => {
+      prevalidate(spec);
+      const { runAnalyze } = await import("./commands/analyze.js");
       const path = await runAnalyze(spec, { out: opts.out, quiet: Boolean(program.opts().quiet), jobs: program.opts().jobs });
       if (!Boolean(program.opts().quiet)) process.stderr.write(`wrote ${path}\n`);
     });
@@ -59,6 +71,7 @@ function buildProgram(): Command {
       if (opts.paper !== "a4" && opts.paper !== "letter") throw new CliExit(EXIT.input, `error: --paper must be a4 or letter, got '${opts.paper}'`);
       // with both --pdf and --no-pdf declared, commander leaves the value undefined unless one is given
       const explicitPdf = opts.pdf;
+      prevalidate(spec);
       // loaded on demand: the renderer's dependencies are not needed by check and analyze
       const { runBuild } = await import("./commands/build.js");
       const written = await runBuild(spec, { out: opts.out, quiet: Boolean(program.opts().quiet), paper: opts.paper, pdf: explicitPdf, jobs: program.opts().jobs });

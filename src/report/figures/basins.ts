@@ -23,11 +23,11 @@ import { portraitFrame } from "./portrait.js";
  */
 export const BASIN_DRAW_MAX = 256;
 /**
- * Drawn rectangles reach this far (px) into the next row and run: abutting edges at fractional
- * pixels otherwise leave anti-aliased hairlines of paper between cells. Later rows and runs are
- * drawn over the overlap, so every boundary stays where the grid puts it, to within this.
+ * Drawn rectangles reach this far (px) into the next row and run, which are drawn later and
+ * cover the overlap: abutting edges at fractional pixels otherwise leave anti-aliased hairlines
+ * of paper between cells. A whole pixel, so the pixel under every shared edge is fully covered.
  */
-const SEAM_OVERLAP_PX = 0.35;
+const SEAM_OVERLAP_PX = 1;
 
 /** The grid as drawn: legend indices, row-major from the lowest row of the second state. */
 export interface DrawnBasinGrid {

@@ -62,12 +62,20 @@ export function branchPieces(branch: BranchResult, state: string): { stability: 
   return pieces;
 }
 
+/** Labels in a plot carry this many significant digits; the tables carry the full values. */
+const LABEL_DIGITS = 4;
+/**
+ * A number rounded to LABEL_DIGITS for a label. Rounded first, then formatted with room to
+ * spare: formatNumber(30000, 4) would write 3.000e+4 (toPrecision's exponent form).
+ */
+export const labelNumber = (v: number) => formatNumber(Number(v.toPrecision(LABEL_DIGITS)), 6);
+
 const KIND_SHORT: Record<string, string> = { "saddle-node": "saddle-node", transcritical: "transcritical", hopf: "Hopf", "boundary-crossing": "boundary" };
 
 /** A special point's label in the plot: its kind and parameter value ("saddle-node 1.136", "Hopf (sub) 2.5"). */
 export function specialPointLabel(t: Pick<ParameterStudyResult["thresholds"][number], "kind" | "value" | "criticality">): string {
   const kind = t.kind === "hopf" && t.criticality ? `Hopf (${t.criticality === "supercritical" ? "super" : "sub"})` : KIND_SHORT[t.kind] ?? t.kind;
-  return `${kind} ${formatNumber(t.value, 4)}`;
+  return `${kind} ${labelNumber(t.value)}`;
 }
 
 export function bifurcationFrame(results: Results, study: ParameterStudyResult, state: string): PlotFrame {
@@ -93,7 +101,7 @@ export function buildBifurcationFigure(results: Results, spec: NormalizedSpec, s
     const frame = bifurcationFrame(results, study, name);
     const last = k === names.length - 1;
     const enc = {
-      x: positionEncoding("x", [frame.lo[0], frame.hi[0]], last ? parameterAxisTitle(param) : null, last ? { tickCount: 7 } : { tickCount: 7, labels: false }),
+      x: positionEncoding("x", [frame.lo[0], frame.hi[0]], last ? parameterAxisTitle(param) : null, last ? { tickCount: 5 } : { tickCount: 5, labels: false }),
       y: positionEncoding("y", [frame.lo[1], frame.hi[1]], null, { tickCount: 4 }),
     };
     const layers: Record<string, unknown>[] = [];
@@ -107,7 +115,9 @@ export function buildBifurcationFigure(results: Results, spec: NormalizedSpec, s
     }
     const now = roundData(study.nominal);
     layers.push(lineLayer(`now_${k + 1}`, [{ x: now, y: frame.lo[1], k: "now", i: 0 }, { x: now, y: frame.hi[1], k: "now", i: 1 }], NOMINAL_STYLE, enc));
-    const occupied: ScreenBox[] = [];
+    // labels keep off the rule where they can
+    const [ruleU] = toScreen(frame, now, frame.hi[1]);
+    const occupied: ScreenBox[] = [{ left: ruleU - 1, right: ruleU + 1, top: 0, bottom: frame.height }];
     if (k === 0) {
       layers.push({
         name: "now_label",
@@ -115,8 +125,7 @@ export function buildBifurcationFigure(results: Results, spec: NormalizedSpec, s
         mark: { type: "text", align: "left", baseline: "top", dx: 3, dy: 3, fontSize: FONT_SIZE.annotation, color: NOMINAL_COLOR, fontStyle: "italic" },
         encoding: { ...enc, text: { field: "text", type: "nominal" } },
       });
-      const [u] = toScreen(frame, now, frame.hi[1]);
-      occupied.push({ left: u, right: u + 3 + textWidthPx("now", FONT_SIZE.annotation), top: 0, bottom: 3 + FONT_SIZE.annotation + 2 });
+      occupied.push({ left: ruleU, right: ruleU + 3 + textWidthPx("now", FONT_SIZE.annotation), top: 0, bottom: 3 + FONT_SIZE.annotation + 2 });
     }
     const specials = drawnSpecialPoints(results, study, name);
     const rows = specials.map((t) => {
@@ -140,7 +149,7 @@ export function buildBifurcationFigure(results: Results, spec: NormalizedSpec, s
   });
   const key: KeyEntry[] = [
     ...(["stable", "unstable", "undecided"] as const).filter((s) => used.has(s)).map((s): KeyEntry => ({ kind: "line", style: BRANCH_STYLES[s] })),
-    { kind: "line", style: { ...NOMINAL_STYLE, label: `current value (now), ${study.parameter} = ${formatNumber(study.nominal, 4)}` } },
+    { kind: "line", style: { ...NOMINAL_STYLE, label: `current value (now), ${study.parameter} = ${labelNumber(study.nominal)}` } },
     ...(["saddle-node", "transcritical", "hopf", "boundary-crossing"] as const).filter((c) => kinds.has(c)).map((c): KeyEntry => ({ kind: "symbol", marker: SPECIAL_POINT_MARKERS[c] })),
   ];
   const height = names.length * (BIFURCATION_PANEL.height + TITLE_HEIGHT) + (names.length - 1) * PANEL_SPACING;

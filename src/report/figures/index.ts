@@ -1,8 +1,11 @@
-import type { Results, ScenarioResult } from "../../analysis/types.js";
+import type { OutcomeMapResult, ParameterStudyResult, Results, ScenarioResult } from "../../analysis/types.js";
 import type { NormalizedSpec } from "../../spec/types.js";
-import { formatNumber } from "../format.js";
+import { formatNumber, formatPercent } from "../format.js";
 import { fateWords, pointWords } from "../words.js";
+import { attractorWords, BASIN_DRAW_MAX, downsampleBasinGrid, buildBasinFigure } from "./basins.js";
+import { buildBifurcationFigure, drawnSpecialPoints } from "./bifurcation.js";
 import type { VegaLiteSpec } from "./layers.js";
+import { buildOutcomeMapFigure, outcomeLetter } from "./outcomeMap.js";
 import { buildPortraitFigure, type FieldInput, type NullclineInput } from "./portrait.js";
 import { buildTimeSeriesFigure } from "./timeseries.js";
 import { buildTraceDeterminantFigure, placeOnTraceDeterminant, SPREAD_LIMIT } from "./traceDeterminant.js";
@@ -12,7 +15,10 @@ import { buildTraceDeterminantFigure, placeOnTraceDeterminant, SPREAD_LIMIT } fr
  * units) and returns a vega-lite spec as plain JSON with inline data; render/svg.ts draws it.
  */
 export interface Figure {
-  /** Stable id: "portrait", "trace-determinant", "timeseries-<scenario name>". */
+  /**
+   * Stable id: "trace-determinant", "portrait", "basins", "bifurcation-<parameter>",
+   * "outcome-map-<parameter>-<parameter>", "timeseries-<scenario name>".
+   */
   id: string;
   title: string;
   /** Plain text (the template escapes it). */
@@ -62,6 +68,60 @@ function traceDeterminantCaption(results: Results, spec: NormalizedSpec): string
   return `Trace–determinant diagram: each equilibrium at the trace τ and determinant Δ of its Jacobian. ${regions} ${scale}`;
 }
 
+const count = (n: number) => n.toLocaleString("en-US");
+
+function basinCaption(results: Results, spec: NormalizedSpec): string {
+  const b = results.basins;
+  const [a, c] = spec.states;
+  const drawn = downsampleBasinGrid(b.grid);
+  const computed = `computed on a ${b.grid.nx} × ${b.grid.ny} grid by adaptive refinement from ${b.coarse} × ${b.coarse} ` +
+    `(${count(b.trajectories)} trajectories instead of ${count(b.uniformTrajectories)})`;
+  const drawing = drawn.factor === 1 ? "drawn cell for cell"
+    : `drawn at ${drawn.nx} × ${drawn.ny} (at most ${BASIN_DRAW_MAX} a side): each drawn cell shows the majority label of the ${drawn.factor} × ${drawn.factor} computed cells it covers, a tie going to the first in the key`;
+  const shares = Object.entries(b.fractions).map(([k, v]) => `${b.attractors.includes(k) ? attractorWords(results, k) : k} ${formatPercent(v)}`).join(", ");
+  const saddles = [...new Set(results.separatrices.filter((s) => s.manifold === "stable").map((s) => s.saddle))];
+  const over = [
+    saddles.length ? `the stable manifolds (separatrices) of ${saddles.length === 1 ? "the saddle" : "the saddles"} ${saddles.join(", ")}` : null,
+    results.cycles.length ? `the periodic orbit${results.cycles.length === 1 ? "" : "s"} ${results.cycles.map((q) => q.id).join(", ")}` : null,
+    results.equilibria.length ? "the equilibria, marked by class" : null,
+  ].filter(Boolean);
+  return `Basins of attraction over the window ${a.name} in ${range(spec.window[a.name], a.unit)}, ${c.name} in ${range(spec.window[c.name], c.unit)}: ` +
+    `each cell is filled by the outcome its centre's trajectory reaches, ${computed}, ${drawing}. ` +
+    `Shares of the window: ${shares}; each share is within ±${formatPercent(b.errorBound)} of the window ` +
+    "(the finest cells that border another label could belong to either side), and a basin narrower than a coarse cell can be missed." +
+    (over.length ? ` Drawn over the fills: ${over.join("; ")}.` : "");
+}
+
+const KIND_WORDS: Record<string, string> = { "saddle-node": "fold (saddle-node)", transcritical: "transcritical", hopf: "Hopf", "boundary-crossing": "boundary crossing" };
+
+function bifurcationCaption(results: Results, spec: NormalizedSpec, study: ParameterStudyResult): string {
+  const p = spec.parameters.find((q) => q.name === study.parameter)!;
+  const [a, b] = results.model.states;
+  const drawn = new Set(results.model.states.flatMap((s) => drawnSpecialPoints(results, study, s)));
+  const marked = study.thresholds.map((t) => `${KIND_WORDS[t.kind] ?? t.kind}${t.criticality ? ` (${t.criticality})` : ""} at ${t.parameter} = ${formatNumber(t.value)}` +
+    `${t.decisive ? ", where the outcome changes" : ""}${drawn.has(t) ? "" : ", outside the window and not drawn"}`);
+  return `Equilibria against ${study.parameter}${p.label && p.label !== p.name ? ` (${p.label})` : ""} across its plausible range ${range(study.range, p.unit)}, ` +
+    `the other parameters at their current values: ${a} in the upper panel and ${b} in the lower, on every branch followed by pseudo-arclength continuation ` +
+    `(${study.continuation.branches.length} branch${study.continuation.branches.length === 1 ? "" : "es"}). ` +
+    "Solid where the equilibrium is stable, dashed where it is unstable, dotted where the linearisation does not decide. " +
+    (marked.length ? `Marked by kind and labelled with the value: ${marked.join("; ")}. ` : "No threshold lies in the range. ") +
+    `The vertical line is the current value, ${study.parameter} = ${formatNumber(study.nominal)}. ` +
+    "Each panel spans the state's window: branch parts outside it (infeasible equilibria, such as negative populations) are cut off.";
+}
+
+function outcomeMapCaption(spec: NormalizedSpec, map: OutcomeMapResult): string {
+  const [p1, p2] = map.parameters.map((n) => spec.parameters.find((q) => q.name === n)!);
+  const outcomes = map.legend.map((words, k) => `${outcomeLetter(k)}, ${words}`).join("; ");
+  const curves = map.curves.map((c) => {
+    const [name, value] = c.origin.split(" = ");
+    return `${KIND_WORDS[c.kind] ?? c.kind} from ${name} = ${formatNumber(Number(value))}`;
+  });
+  return `Outcome across ${p1.name} in ${range(map.ranges[0], p1.unit)} and ${p2.name} in ${range(map.ranges[1], p2.unit)}, the other parameters at their current values: ` +
+    `each of the ${map.nx} × ${map.ny} cells is filled by the outcome (the set of attractors) at its centre and lettered in the key. Outcomes: ${outcomes}. ` +
+    (curves.length ? `Lines: the threshold curves continued in the second parameter from the thresholds located one parameter at a time (${curves.join("; ")}), dashed by kind. ` : "No threshold curve was traced. ") +
+    `Star: the current values, ${p1.name} = ${formatNumber(map.nominal[0])}, ${p2.name} = ${formatNumber(map.nominal[1])}.`;
+}
+
 function timeSeriesCaption(results: Results, spec: NormalizedSpec, s: ScenarioResult): string {
   const what = spec.scenarios.find((q) => q.name === s.name)?.label;
   const level = s.fate.kind === "equilibrium" ? ` The dashed level marks ${s.fate.target}.` : "";
@@ -85,6 +145,22 @@ export function buildFigures(results: Results, spec: NormalizedSpec, extras: Por
       spec: buildPortraitFigure({ results, spec, ...extras }),
     },
   ];
+  if (results.basins.attractors.length >= 1) {
+    figures.push({ id: "basins", title: "Basins of attraction", caption: basinCaption(results, spec), spec: buildBasinFigure(results, spec) });
+  }
+  for (const study of results.conditions.studies) {
+    if (study.thresholds.length === 0 && study.continuation.branches.length <= 1) continue;
+    figures.push({
+      id: `bifurcation-${study.parameter}`,
+      title: `Equilibria against ${study.parameter}`,
+      caption: bifurcationCaption(results, spec, study),
+      spec: buildBifurcationFigure(results, spec, study),
+    });
+  }
+  for (const map of results.conditions.maps) {
+    const [p1, p2] = map.parameters;
+    figures.push({ id: `outcome-map-${p1}-${p2}`, title: `Outcomes across ${p1} and ${p2}`, caption: outcomeMapCaption(spec, map), spec: buildOutcomeMapFigure(spec, map) });
+  }
   for (const s of results.scenarios) {
     figures.push({
       id: `timeseries-${s.name}`,

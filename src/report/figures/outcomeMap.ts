@@ -1,4 +1,4 @@
-import type { OutcomeMapResult, Results } from "../../analysis/types.js";
+import type { OutcomeMapResult } from "../../analysis/types.js";
 import type { NormalizedSpec } from "../../spec/types.js";
 import { textWidthPx } from "../render/textWidth.js";
 import { markerBox, placeLabels, roundData, toPlot, type PlotFrame, type ScreenBox } from "./geometry.js";
@@ -54,7 +54,7 @@ export function letterPositions(frame: PlotFrame, map: OutcomeMapResult): { inde
   return [...best.entries()].sort(([a], [b]) => a - b).map(([index, { c }]) => ({ index, x: roundData(cx(c % map.nx)), y: roundData(cy(Math.floor(c / map.nx))) }));
 }
 
-export function buildOutcomeMapFigure(results: Results, spec: NormalizedSpec, map: OutcomeMapResult): VegaLiteSpec {
+export function buildOutcomeMapFigure(spec: NormalizedSpec, map: OutcomeMapResult): VegaLiteSpec {
   const [p1, p2] = map.parameters.map((n) => spec.parameters.find((p) => p.name === n)!);
   const frame = outcomeMapFrame(map);
   const enc = {

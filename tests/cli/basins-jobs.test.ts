@@ -1,0 +1,83 @@
+import { existsSync, readFileSync } from "node:fs";
+import { join } from "node:path";
+import { afterAll, describe, expect, it } from "vitest";
+import { analyze, analyzeAsync } from "../../src/analysis/analyze.js";
+import { instantiateBasinKernel } from "../../src/analysis/basins/kernel.js";
+import type { BatchEvaluator } from "../../src/analysis/basins/refine.js";
+import { prepareModel } from "../../src/pipeline.js";
+import { CLI_ENTRY, PROJECT_ROOT, removeWorkDirs, runKeel } from "../helpers/cli.js";
+
+/**
+ * Determinism across worker counts (common practice for parallel numerics: the answer is
+ * assembled in a fixed order, so it must not depend on how the work was split). The CLI runs
+ * are the built dist/ (npm test builds first).
+ */
+const EXAMPLES = ["reservoir-competition", "grazer-forage"];
+/** An awkward batch size (prime, and not a divisor of any level's batch) for the odd evaluator. */
+const ODD_CHUNK = 7;
+
+afterAll(() => removeWorkDirs());
+
+function analyzeJobs(example: string, jobs: number): Buffer {
+  const spec = join(PROJECT_ROOT, "specs", `${example}.json`);
+  const run = runKeel(["analyze", spec, "--out", "out", "--jobs", String(jobs), "--quiet"]);
+  expect(run.status, run.stderr).toBe(0);
+  return readFileSync(join(run.cwd, "out", "results.json"));
+}
+
+describe("keel analyze --jobs", () => {
+  it("keel analyze EXAMPLE --jobs 1 and --jobs 2 write byte-identical results.json", () => {
+    expect(existsSync(CLI_ENTRY), `${CLI_ENTRY} is missing: build with npx tsc -p tsconfig.json`).toBe(true);
+    for (const example of EXAMPLES) {
+      const one = analyzeJobs(example, 1);
+      const two = analyzeJobs(example, 2);
+      expect(JSON.parse(one.toString("utf8")).basins.grid.nx, example).toBe(1024);
+      expect(two.equals(one), `${example}: results.json differs between --jobs 1 and --jobs 2`).toBe(true);
+    }
+  });
+});
+
+describe("analyzeAsync with an evaluator that splits batches oddly", () => {
+  /**
+   * Labels each batch in chunks of ODD_CHUNK starts, last chunk first, each after a turn of the
+   * event loop: a stand-in for workers that answer out of order. Counts the chunks so the test
+   * knows the batches really were split.
+   */
+  function reversedChunks(counter: { chunks: number }) {
+    return (source: string): BatchEvaluator => {
+      const kernel = instantiateBasinKernel(source);
+      return async (starts) => {
+        const count = starts.length / 2;
+        const out = new Int32Array(count);
+        const firsts: number[] = [];
+        for (let first = 0; first < count; first += ODD_CHUNK) firsts.push(first);
+        for (const first of firsts.reverse()) {
+          await new Promise((resolve) => setImmediate(resolve));
+          const last = Math.min(count, first + ODD_CHUNK);
+          const labels = new Int32Array(last - first);
+          kernel(starts.slice(2 * first, 2 * last), labels);
+          out.set(labels, first);
+          counter.chunks++;
+        }
+        return out;
+      };
+    };
+  }
+
+  for (const example of EXAMPLES) {
+    it(`analyzeAsync(${example}, chunks of 7 in reverse) deep-equals analyze(${example})`, async () => {
+      const spec = JSON.parse(readFileSync(join(PROJECT_ROOT, "specs", `${example}.json`), "utf8"));
+      // a lower resolution keeps the test short; 256/16 still refines over four levels
+      spec.analysis = { basins: { resolution: 256, coarse: 16 } };
+      const prepared = prepareModel(JSON.stringify(spec));
+      if (!prepared.ok) throw new Error(JSON.stringify(prepared.issues));
+      const model = prepared.value.model;
+      const counter = { chunks: 0 };
+      const oddly = await analyzeAsync(model, reversedChunks(counter));
+      const direct = analyze(model);
+      expect(counter.chunks).toBeGreaterThan(16 * 16 / ODD_CHUNK);
+      expect(oddly).toEqual(direct);
+      expect(JSON.stringify(oddly)).toBe(JSON.stringify(direct));
+    });
+  }
+});

@@ -14,6 +14,8 @@ const FUNCTIONS: Record<string, string> = {
 export interface CodegenOptions {
   /** Parameter values to inline as literals; when absent, parameters read p[j]. */
   parameterValues?: readonly number[];
+  /** Denominators (as emitted) whose reciprocal is held in a local: division becomes multiplication. */
+  reciprocals?: ReadonlyMap<string, string>;
 }
 
 export function literal(v: number): string {
@@ -48,7 +50,11 @@ export function emitExpression(node: MathNode, options: CodegenOptions = {}): st
           case "add": return `(${args.join(" + ")})`;
           case "subtract": return `(${args[0]} - ${args[1]})`;
           case "multiply": return `(${args.join(" * ")})`;
-          case "divide": return `(${args[0]} / ${args[1]})`;
+          case "divide": {
+            // keys are the denominators as emitted without reciprocals
+            const local = options.reciprocals?.get(options.reciprocals.size ? emitExpression(n.args[1], { parameterValues: options.parameterValues }) : "");
+            return local ? `(${args[0]} * ${local})` : `(${args[0]} / ${args[1]})`;
+          }
           case "unaryMinus": return `(-${args[0]})`;
           case "unaryPlus": return args[0];
           case "pow": return emitPow(n.args[0], n.args[1], emit);
@@ -101,3 +107,33 @@ export const PRELUDE = [
   "const pw3 = (v) => v * v * v;",
   "const pw4 = (v) => { const q = v * v; return q * q; };",
 ].join("\n");
+
+/**
+ * A function body writing out[k] = nodes[k]. A denominator that occurs in two or more divisions
+ * is divided once into a local reciprocal (differentiated quotients repeat their denominators,
+ * and a division costs several multiplications); this changes results by rounding only.
+ */
+export function emitBody(nodes: MathNode[], dimension: number, options: CodegenOptions): string {
+  const plain: CodegenOptions = { parameterValues: options.parameterValues };
+  const counts = new Map<string, number>();
+  for (const node of nodes) {
+    node.traverse((m: any) => {
+      if (m.type === "OperatorNode" && m.fn === "divide") {
+        const den = emitExpression(m.args[1], plain);
+        // a literal denominator is folded by the engine already
+        if (!/^\(?-?[\d.]+(e[+-]?\d+)?\)?$/.test(den)) counts.set(den, (counts.get(den) ?? 0) + 1);
+      }
+    });
+  }
+  const reciprocals = new Map<string, string>();
+  const locals: string[] = [];
+  for (const [den, n] of counts) {
+    if (n < 2) continue;
+    const name = `r${reciprocals.size}`;
+    locals.push(`const ${name} = 1 / ${den};`);
+    reciprocals.set(den, name);
+  }
+  const reads = `const ${Array.from({ length: dimension }, (_, k) => `s${k} = y[${k}]`).join(", ")};`;
+  const writes = nodes.map((node, k) => `out[${k}] = ${emitExpression(node, { ...options, reciprocals })};`);
+  return [reads, ...locals, ...writes].join("\n");
+}

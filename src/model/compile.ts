@@ -3,16 +3,14 @@ import type { Parsed, SpecIssue } from "../diagnostics/issue.js";
 import type { NormalizedSpec } from "../spec/types.js";
 import { buildNameTable, parseCondition, parseExpression } from "./expressions.js";
 import { differentiate } from "./derivatives.js";
-import { emitExpression, PRELUDE, type CodegenOptions } from "./codegen.js";
+import { emitBody, emitExpression, PRELUDE, type CodegenOptions } from "./codegen.js";
 import { expressionToTex, expressionToText, nameToTex } from "./tex.js";
 import type { CompiledCondition, CompiledExpression, GeneratedSource, Model, ParametricRhsFunction, RhsFunction } from "./types.js";
 
 const COMPARISON_TEX = { "<": "<", "<=": "\\le", ">": ">", ">=": "\\ge" } as const;
 
 function body(nodes: MathNode[], options: CodegenOptions): string {
-  const reads = "const s0 = y[0], s1 = y[1];";
-  const writes = nodes.map((node, k) => `out[${k}] = ${emitExpression(node, options)};`);
-  return [reads, ...writes].join("\n");
+  return emitBody(nodes, 2, options);
 }
 
 /** Builds a function from generated source. Source comes only from whitelisted trees, never user text. */

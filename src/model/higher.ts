@@ -1,6 +1,6 @@
 import type { MathNode } from "mathjs";
 import { differentiate } from "./derivatives.js";
-import { emitExpression, type CodegenOptions } from "./codegen.js";
+import { emitBody, type CodegenOptions } from "./codegen.js";
 import { instantiateParametric } from "./compile.js";
 import type { Model, ParametricRhsFunction } from "./types.js";
 
@@ -25,12 +25,8 @@ export interface HigherDerivatives {
   third: CompiledDerivatives;
 }
 
-function stateReads(dimension: number): string {
-  return `const ${Array.from({ length: dimension }, (_, k) => `s${k} = y[${k}]`).join(", ")};`;
-}
-
 function body(nodes: MathNode[], dimension: number, options: CodegenOptions): string {
-  return [stateReads(dimension), ...nodes.map((node, k) => `out[${k}] = ${emitExpression(node, options)};`)].join("\n");
+  return emitBody(nodes, dimension, options);
 }
 
 function compileTrees(nodes: MathNode[], dimension: number): CompiledDerivatives {

@@ -51,9 +51,14 @@ function isZero(node: MathNode): boolean {
   }
 }
 
+type CompiledNode = (p: ArrayLike<number>, s0: number, s1: number) => number;
+
+function compileNode(node: MathNode): CompiledNode {
+  return new Function("p", "s0", "s1", `${PRELUDE}\nreturn ${emitExpression(node, {})};`) as CompiledNode;
+}
+
 function evaluateAt(node: MathNode, p: ArrayLike<number>, state: [number, number] = [0, 0]): number {
-  const fn = new Function("p", "s0", "s1", `${PRELUDE}\nreturn ${emitExpression(node, {})};`) as (p: ArrayLike<number>, s0: number, s1: number) => number;
-  return fn(p, state[0], state[1]);
+  return compileNode(node)(p, state[0], state[1]);
 }
 
 /**
@@ -158,37 +163,57 @@ function userNames(model: Model): Map<string, string> {
   return m;
 }
 
+/** The numerical screen agrees with an exact form to this, relatively (rounding only). */
+const FORM_SCREEN_REL_TOL = 1e-8;
+/** Parameter values of the screen, as multiples of the nominal value (of 1 when that is 0). */
+const FORM_SCREEN_FACTORS = [1, 1.7, 0.45, 2.9];
+/** At a threshold the rate vanishes to rounding, against the rate's size at the nominal values. */
+const THRESHOLD_CHECK_REL_TOL = 1e-9;
+
+const mentions = (node: MathNode, sym: string) => node.filter((n: any) => n.type === "SymbolNode" && n.name === sym).length > 0;
+
+/** Whether the rate, as a function of parameter k alone, is affine in u(p): equal difference quotients at the screen's values. */
+function affineIn(rateAt: CompiledNode, p: ArrayLike<number>, k: number, u: (v: number) => number): boolean {
+  const base = p[k] === 0 ? 1 : p[k];
+  const q = Float64Array.from(p);
+  const [first, ...rest] = FORM_SCREEN_FACTORS.map((f) => { q[k] = base * f; return { w: u(q[k]), g: rateAt(q, 0, 0) }; });
+  const slopes = rest.map((pt) => (pt.g - first.g) / (pt.w - first.w));
+  if (!slopes.every(Number.isFinite)) return false;
+  const size = Math.max(...slopes.map(Math.abs), Math.abs(first.g), Number.MIN_VALUE);
+  return slopes.every((sl) => Math.abs(sl - slopes[0]) <= FORM_SCREEN_REL_TOL * size);
+}
+
 /**
  * For each parameter p in which the rate is linear (rate = A + B p: threshold −A/B) or linear in
- * 1/p (rate = A + B/p, as a carrying capacity dividing a competition term: threshold −B/A).
+ * 1/p (rate = A + B/p, as a carrying capacity dividing a competition term: threshold −B/A, with
+ * A = rate + p rate' and −B = p² rate'). The form is screened numerically and the threshold checked
+ * numerically: symbolic simplification is slow on closed forms with square roots, so it runs once.
  */
 function linearThresholds(model: Model, rate: MathNode): ParameterThreshold[] {
   const out: ParameterThreshold[] = [];
   const p = model.parameterValues;
+  const rateAt = compileNode(rate);
+  const nominalRate = rateAt(p, 0, 0);
   model.parameterNames.forEach((name, k) => {
     const sym = `P${k}`;
-    let slope: MathNode;
-    try { slope = simplify(derivative(rate, sym)); } catch { return; }
-    if (isZero(slope)) return;
-    let threshold: MathNode;
-    let rising: number; // the sign of d rate / dp is the sign of this
-    if (isZero(derivative(slope, sym))) {
-      const intercept = simplify(substitute(rate, sym, new ConstantNode(0)));
-      threshold = simplify(`-(${intercept.toString()}) / (${slope.toString()})`);
-      rising = evaluateAt(slope, p);
-    } else {
-      // rate = A + B/p ⇔ p² rate' (= −B) and rate + p rate' (= A) do not depend on p
-      let a: MathNode, minusB: MathNode;
-      try {
-        minusB = simplify(`(${sym})^2 * (${slope.toString()})`);
-        a = simplify(`${rate.toString()} + ${sym} * (${slope.toString()})`);
-      } catch { return; }
-      if (!isZero(derivative(minusB, sym)) || !isZero(derivative(a, sym)) || isZero(a)) return;
-      threshold = simplify(`(${minusB.toString()}) / (${a.toString()})`);
-      rising = evaluateAt(minusB, p);
-    }
+    if (!mentions(rate, sym)) return;
+    const linear = affineIn(rateAt, p, k, (v) => v);
+    if (!linear && !affineIn(rateAt, p, k, (v) => 1 / v)) return;
+    let slope: MathNode, threshold: MathNode;
+    try {
+      slope = derivative(rate, sym);
+      threshold = linear
+        ? simplify(`-(${substitute(rate, sym, new ConstantNode(0)).toString()}) / (${slope.toString()})`)
+        : simplify(`(${sym})^2 * (${slope.toString()}) / (${rate.toString()} + ${sym} * (${slope.toString()}))`);
+    } catch { return; }
+    if (mentions(threshold, sym)) return;
+    // d rate / dp has one sign: B, or −B/p²
+    const rising = evaluateAt(slope, p);
     const value = evaluateAt(threshold, p);
     if (!Number.isFinite(value) || !(rising !== 0)) return;
+    const q = Float64Array.from(p);
+    q[k] = value;
+    if (!(Math.abs(rateAt(q, 0, 0)) <= THRESHOLD_CHECK_REL_TOL * Math.max(Math.abs(nominalRate), Math.abs(rising * (value - p[k]))))) return;
     out.push({
       parameter: name,
       text: expressionToText(threshold, userNames(model)),

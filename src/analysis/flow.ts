@@ -166,6 +166,8 @@ export interface FollowOptions {
   /** Look for recurrence through equilibrium rays (cycle candidates). */
   detectRecurrence: boolean;
   maxSteps?: number;
+  /** Largest step the integrator may take (default horizon / 64): curves drawn from the step points need it small. */
+  maxStep?: number;
 }
 
 /** Follows one trajectory from `start` (state coordinates) in the context's time direction. */
@@ -274,7 +276,7 @@ export function followTrajectory(ctx: FlowContext, start: readonly [number, numb
     const outcome = integrateFlow(model.rhs, start, options.horizon, {
       direction: ctx.direction,
       tolerances: ctx.tolerances,
-      maxStep: options.horizon / 64,
+      maxStep: options.maxStep ?? options.horizon / 64,
       maxSteps: options.maxSteps ?? 200_000,
       onStep,
     });

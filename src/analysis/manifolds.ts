@@ -29,6 +29,9 @@ export interface SeparatrixResult {
  */
 export const MANIFOLD_OFFSET = 1e-6;
 
+/** Separatrices are drawn from their step points: at least this many steps over the horizon keep the curve smooth. */
+const MANIFOLD_MIN_STEPS = 4000;
+
 /** Both branches of the stable and unstable manifolds of every saddle, to the window edge or an attractor of the flow direction. */
 export function findSeparatrices(
   model: Model,
@@ -62,7 +65,7 @@ export function findSeparatrices(
           out.push({ saddle: e.id, manifold, branch, start: rec, end: { kind: "outside-window" }, path: { t: [], x: [], y: [] } });
           continue;
         }
-        const follow = followTrajectory(ctx, start, { horizon, maxPathPoints, detectRecurrence: true });
+        const follow = followTrajectory(ctx, start, { horizon, maxPathPoints, detectRecurrence: true, maxStep: horizon / MANIFOLD_MIN_STEPS });
         const fate = settleFate(ctx, follow, registry);
         let end: ManifoldEnd;
         if (fate.kind === "equilibrium" || fate.kind === "cycle") end = { kind: fate.kind, target: fate.target };

@@ -1,7 +1,7 @@
 import type { NormalizedSpec } from "../spec/types.js";
 import type { Results } from "../analysis/types.js";
 import { nameToTex } from "../model/tex.js";
-import { formatComplex, formatDate, formatNumber, formatNumberHtml, formatQuantity } from "./format.js";
+import { formatDate, formatEigenvalues, formatNumber, formatNumberHtml, formatNumberTex, formatQuantity, formatUnit } from "./format.js";
 import { renderMath } from "./math.js";
 import { fateWords, pointWords, TYPE_WORDS } from "./words.js";
 
@@ -48,13 +48,52 @@ function matrixTex(rows: string[][]): string {
   return `\\begin{pmatrix} ${rows.map((r) => r.join(" & ")).join(" \\\\ ")} \\end{pmatrix}`;
 }
 
-function numberTex(v: number, digits = 5): string {
-  return formatNumber(v, digits).replace("−", "-").replace(/ × 10\^(-?\d+)/, (_x, e) => ` \\times 10^{${e}}`);
+const numberTex = (v: number, digits = 5) => formatNumberTex(v, digits);
+
+/**
+ * Coordinates smaller than this fraction of the window's width are printed as 0: an integrator
+ * leaves residues like 6e-20 on an axis, far below the 6 significant digits any number here
+ * shows of window-scale values.
+ */
+const SNAP_TO_ZERO = 1e-10;
+
+/** Figures numbered in the order the templates print them, so Figure 3 follows Figure 2. */
+function numberFiguresInReadingOrder(figures: FigureView[], results: Results): FigureView[] {
+  const order = [
+    "trace-determinant",
+    "portrait",
+    ...results.scenarios.map((s) => `timeseries-${s.name}`),
+    ...(results.basins.attractors.length > 0 ? ["basins"] : []),
+    ...results.conditions.studies.map((st) => `bifurcation-${st.parameter}`),
+    ...results.conditions.maps.map((mp) => `outcome-map-${mp.parameters[0]}-${mp.parameters[1]}`),
+  ];
+  const printed = order.map((id) => figures.find((f) => f.id === id)).filter((f): f is FigureView => f !== undefined);
+  const rest = figures.filter((f) => !printed.includes(f));
+  return [...printed, ...rest].map((f, k) => ({ ...f, number: k + 1 }));
+}
+
+/** The basin pass's method in words, from the settings it recorded (none when it did not run). */
+function basinMethod(settings: Record<string, unknown>): string[] {
+  const b = settings.basins as { resolution?: number; coarse?: number; integrator?: string; relativeTolerance?: number; absoluteToleranceOfWindow?: number; horizon?: number } | undefined;
+  if (!b || b.resolution === undefined || b.coarse === undefined) return [];
+  return [
+    `Basins: a first pass over ${b.coarse} × ${b.coarse} cells, then cells subdivided near basin boundaries up to ${b.resolution} × ${b.resolution}; ` +
+      `each cell's trajectory integrated${b.integrator ? ` by ${b.integrator}` : ""}` +
+      (b.relativeTolerance !== undefined ? ` at relative tolerance ${formatNumber(b.relativeTolerance)}` : "") +
+      (b.absoluteToleranceOfWindow !== undefined ? `, absolute tolerance ${formatNumber(b.absoluteToleranceOfWindow)} of the window` : "") +
+      (b.horizon !== undefined ? `, for at most t = ${formatNumber(b.horizon, 4)}` : "") + ".",
+  ];
 }
 
 /** Everything the templates print, formatted; user text stays plain (the template escapes it). */
 export function buildDossierView(spec: NormalizedSpec, results: Results, figures: FigureView[], options: RenderOptions) {
-  const unitOf = Object.fromEntries(spec.states.map((s) => [s.name, s.unit]));
+  const unitOf = Object.fromEntries(spec.states.map((s) => [s.name, formatUnit(s.unit)]));
+  const snap = (point: Record<string, number>) =>
+    Object.fromEntries(Object.entries(point).map(([k, v]) => {
+      const w = spec.window[k];
+      return [k, w && Math.abs(v) < SNAP_TO_ZERO * Math.abs(w[1] - w[0]) ? 0 : v];
+    }));
+  const numbered = numberFiguresInReadingOrder(figures, results);
   const stateTex = spec.states.map((s) => nameToTex(s.name));
   const equilibria = results.equilibria.map((e) => ({
     id: e.id,
@@ -62,7 +101,7 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
     trace: formatNumberHtml(e.trace),
     determinant: formatNumberHtml(e.determinant),
     discriminant: formatNumberHtml(e.discriminant),
-    eigenvalues: e.eigenvalues.map((v) => formatComplex(v.re, v.im, 5)).join("; "),
+    eigenvalues: formatEigenvalues(e.eigenvalues, 5),
     type: TYPE_WORDS[e.type],
     hyperbolic: e.hyperbolic ? "yes" : "no",
     boundary: e.onBoundary ? `on the boundary (${e.boundaryStates.join(", ")} at a bound)` : "interior",
@@ -80,7 +119,7 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
     symbol: m(nameToTex(p.name)),
     name: p.name,
     value: formatNumberHtml(p.value),
-    unit: p.unit,
+    unit: formatUnit(p.unit),
     label: p.label,
     source: p.source,
     range: p.range ? `${formatNumber(p.range[0])} to ${formatNumber(p.range[1])}` : "—",
@@ -108,11 +147,11 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
     manifold: x.manifold === "stable" ? "stable (backward in time)" : "unstable (forward in time)",
     branch: x.branch > 0 ? "+" : "−",
     end: x.end.kind === "equilibrium" || x.end.kind === "cycle" ? `reaches ${x.end.target}`
-      : x.end.kind === "left-window" ? `leaves the window through ${x.end.edge} at ${pointWords(x.end.point)}`
+      : x.end.kind === "left-window" ? `leaves the window through ${x.end.edge} at ${pointWords(snap(x.end.point))}`
       : x.end.kind === "outside-window" ? "points out of the window (not drawn)"
       : `undecided: ${x.end.reason}`,
   }));
-  const figure = (id: string) => figures.find((f) => f.id === id) ?? null;
+  const figure = (id: string) => numbered.find((f) => f.id === id) ?? null;
   const growth = (sign: string) => (sign === "+" ? "grows" : "declines");
   const regions = results.regions.map((r) => ({
     id: r.id,
@@ -126,8 +165,8 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
     math: m(`\\frac{d${nameToTex(n.state)}}{dt} = 0`),
     pieces: n.pieces.map((piece) => ({
       kind: piece.onAxis && piece.axis ? `the line ${piece.axis.state} = ${formatNumber(piece.axis.value)}` : "curve",
-      from: pointWords({ [spec.states[0].name]: piece.points[0][0], [spec.states[1].name]: piece.points[0][1] }, 4),
-      to: pointWords({ [spec.states[0].name]: piece.points[piece.points.length - 1][0], [spec.states[1].name]: piece.points[piece.points.length - 1][1] }, 4),
+      from: pointWords(snap({ [spec.states[0].name]: piece.points[0][0], [spec.states[1].name]: piece.points[0][1] }), 4),
+      to: pointWords(snap({ [spec.states[0].name]: piece.points[piece.points.length - 1][0], [spec.states[1].name]: piece.points[piece.points.length - 1][1] }), 4),
       direction: `${piece.otherState} ${directionWords[piece.otherDirection]}`,
       vertices: piece.points.length,
     })),
@@ -140,7 +179,7 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
       equilibrium: q.equilibrium,
       absent: q.absent,
       resident: q.resident ? (q.resident.closedForm ? m(`${nameToTex(q.resident.state)} = ${q.resident.tex}`) : `${q.resident.state} = ${formatNumber(Number(q.resident.text))} (numerical)`) : "—",
-      rate: m(`\lambda = ${q.rate.tex}`),
+      rate: m(`\\lambda = ${q.rate.tex}`),
       value: formatNumberHtml(q.value),
       check: formatNumberHtml(Math.abs(q.value - q.numericEigenvalue), 2),
       invades: q.invades ? `${q.absent} can invade` : `${q.absent} cannot invade`,
@@ -153,7 +192,7 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
         symbol: m(nameToTex(st.parameter)),
         label: param.label,
         nominal: formatQuantity(st.nominal, param.unit),
-        range: `${formatNumber(st.range[0])} to ${formatNumber(st.range[1])}${param.unit ? " " + param.unit : ""}`,
+        range: `${formatNumber(st.range[0])} to ${formatNumber(st.range[1])}${param.unit ? " " + formatUnit(param.unit) : ""}`,
         branches: st.continuation.branches.length,
         thresholds: st.thresholds.map((t) => ({
           kind: kindWords[t.kind] ?? t.kind,
@@ -162,7 +201,9 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
           criticality: t.criticality ?? "",
           decisive: t.decisive ? "yes" : "no",
           symbolic: t.symbolic ? m(`${t.symbolic.tex}`) : "",
-          agreement: t.symbolic ? formatNumberHtml(t.symbolic.relativeDifference, 2) : "",
+          agreement: !t.symbolic ? ""
+            : t.symbolic.relativeDifference === 0 ? "matches the located value exactly"
+            : `matches the located value to ${formatNumberHtml(t.symbolic.relativeDifference, 2)}, relative`,
         })),
         intervals: st.intervals.map((iv) => ({ math: m(iv.statement.tex), words: iv.outcome.words, now: iv.containsNominal })),
         margin: st.margin?.statement ?? "",
@@ -174,14 +215,37 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
   const margins = c.studies
     .filter((st) => st.margin)
     .sort((x, y) => Math.abs(x.margin!.relative) - Math.abs(y.margin!.relative))
-    .map((st) => ({ parameter: st.parameter, statement: st.margin!.statement, percent: formatNumber(100 * Math.abs(st.margin!.relative), 3) + "%", side: st.margin!.side }));
+    .map((st) => {
+      const margin = st.margin!;
+      const unit = spec.parameters.find((q) => q.name === st.parameter)?.unit ?? "";
+      const current = st.intervals.find((iv) => iv.containsNominal);
+      return {
+        parameter: st.parameter,
+        symbol: m(nameToTex(st.parameter)),
+        statement: margin.statement,
+        // the interval of this parameter over which the current outcome holds, the others fixed
+        holds: current ? m(current.statement.tex) : "",
+        now: formatQuantity(st.nominal, unit),
+        threshold: `${kindWords[margin.kind] ?? margin.kind} at ${formatNumberHtml(margin.threshold)}`,
+        percent: formatNumber(100 * Math.abs(margin.relative), 3) + "%",
+        side: margin.side,
+      };
+    });
+  // at the current values every study sees the same outcome; it is printed once, above the margins
+  const currentOutcome = c.studies.flatMap((st) => st.intervals.filter((iv) => iv.containsNominal))[0]?.outcome.words ?? "";
   const b = results.basins;
+  const attractorWords = (id: string) => {
+    const e = results.equilibria.find((q) => q.id === id);
+    if (e) return `${id} (${TYPE_WORDS[e.type]})`;
+    const cyc = results.cycles.find((q) => q.id === id);
+    return cyc ? `${id} (${cyc.stability} periodic orbit)` : id;
+  };
   const basins = {
     show: b.attractors.length > 0,
-    rows: Object.entries(b.fractions).map(([k, v]) => ({ outcome: k, fraction: formatNumber(100 * v, 4) + "%" })),
+    rows: Object.entries(b.fractions).map(([k, v]) => ({ outcome: attractorWords(k), fraction: formatNumber(100 * v, 4) + "%" })),
     errorBound: formatNumber(100 * b.errorBound, 3) + "%",
     resolution: `${b.resolution} × ${b.resolution}`,
-    trajectories: `${b.trajectories} of ${b.uniformTrajectories} (${formatNumber((100 * b.trajectories) / b.uniformTrajectories, 3)}%)`,
+    trajectories: `${b.trajectories} trajectories were integrated instead of the ${b.uniformTrajectories} a uniform grid would need (${formatNumber((100 * b.trajectories) / b.uniformTrajectories, 3)}%)`,
     scenarios: results.scenarios.map((s) => ({
       name: s.name,
       reaches: s.fate.kind === "equilibrium" || s.fate.kind === "cycle" ? s.fate.target : s.fate.kind,
@@ -209,6 +273,7 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
       equilibria: equilibria.map((e) => ({ id: e.id, type: e.type, at: pointWords(results.equilibria.find((q) => q.id === e.id)!.point, 4) })),
       assumptionsFailing: assumptions.filter((a) => a.holds === false).length,
       margins,
+      currentOutcome,
       claims: results.claims.map((c) => ({ id: c.id, text: c.text, verdict: c.verdict, evidence: c.evidence, where: c.where })),
       claimCounts: {
         supported: results.claims.filter((c) => c.verdict === "supported").length,
@@ -218,14 +283,14 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
     },
     model: {
       equations: results.model.equations.map((e) => m(`${dotted(e.state)} = ${e.tex}`, true)),
-      states: spec.states.map((s, i) => ({ symbol: m(stateTex[i]), name: s.name, label: s.label, unit: s.unit, bounds: `${formatNumber(s.min)} to ${formatNumber(s.max)}`, window: `${formatNumber(spec.window[s.name][0])} to ${formatNumber(spec.window[s.name][1])}` })),
+      states: spec.states.map((s, i) => ({ symbol: m(stateTex[i]), name: s.name, label: s.label, unit: formatUnit(s.unit), bounds: `${formatNumber(s.min)} to ${formatNumber(s.max)}`, window: `${formatNumber(spec.window[s.name][0])} to ${formatNumber(spec.window[s.name][1])}` })),
       parameters,
       assumptions,
       defaulted: spec.defaulted,
       jacobianMath: m(`J = ${matrixTex(results.model.jacobian.map((row) => row.map((e) => e.tex)))}`, true),
     },
     equilibria,
-    stateHeaders: spec.states.map((s) => (s.unit ? `${s.name} (${s.unit})` : s.name)),
+    stateHeaders: spec.states.map((s) => (s.unit ? `${s.name} (${formatUnit(s.unit)})` : s.name)),
     scenarios: results.scenarios.map((s) => ({ name: s.name, figure: figure(`timeseries-${s.name}`) })),
     cycles,
     separatrices,
@@ -240,11 +305,12 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
     diagnostics: results.diagnostics,
     methods: {
       tolerances: [
-        "Equilibria: damped Newton from a deterministic multistart set (a grid, cell centres, window edges and axes, roots of each component along each edge); a root is accepted when every residual is below 1e-9 of that component's scale over the window; roots closer than 1e-6 of the window are merged.",
-        "Classification: trace, determinant and discriminant are called zero within 1e-8 relative to the matching power of the Jacobian's norm; such borderline cases are reported as non-hyperbolic or center.",
-        "Trajectories: Hairer's GBS extrapolation method (odex) with dense output; relative tolerance 1e-9, absolute tolerance 1e-11 of each state's window width. A trajectory counts as converged once it enters a neighbourhood of a stable equilibrium on which the linearisation's quadratic Lyapunov function was checked to decrease.",
-        "Periodic orbits: recurrence through a ray section from an equilibrium, then shooting (secant iteration on the return map) at relative tolerance 1e-12; the Floquet multiplier is exp of the integral of the Jacobian's trace over one period.",
-        "Separatrices: each saddle's manifolds integrated from points 1e-6 of the window along its eigenvectors (stable manifolds backward in time).",
+        "Equilibria: damped Newton from a deterministic multistart set (a grid, cell centres, window edges and axes, roots of each component along each edge); a root is accepted when every residual is below 10⁻⁹ of that component's scale over the window; roots closer than 10⁻⁶ of the window are merged.",
+        "Classification: trace, determinant and discriminant are called zero within 10⁻⁸ relative to the matching power of the Jacobian's norm; such borderline cases are reported as non-hyperbolic or center.",
+        "Trajectories: Hairer's GBS extrapolation method (odex) with dense output; relative tolerance 10⁻⁹, absolute tolerance 10⁻¹¹ of each state's window width. A trajectory counts as converged once it enters a neighbourhood of a stable equilibrium on which the linearisation's quadratic Lyapunov function was checked to decrease.",
+        "Periodic orbits: recurrence through a ray section from an equilibrium, then shooting (secant iteration on the return map) at relative tolerance 10⁻¹²; the Floquet multiplier is exp of the integral of the Jacobian's trace over one period.",
+        "Separatrices: each saddle's manifolds integrated from points 10⁻⁶ of the window along its eigenvectors (stable manifolds backward in time).",
+        ...basinMethod(results.settings),
       ],
       settings: JSON.stringify(results.settings, null, 1),
       versions: Object.entries({ keel: results.keel, node: options.nodeVersion, ...options.libraries }).map(([k, v]) => `${k} ${v}`).join(", "),

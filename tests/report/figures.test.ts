@@ -58,7 +58,9 @@ describe("buildFigures on the example specs", () => {
   it("buildFigures(example) gives the trace–determinant diagram, the portrait and one time series per scenario", () => {
     for (const id of EXAMPLES) {
       const ex = examples.get(id)!;
-      expect(ex.figures.map((f) => f.id)).toEqual(["trace-determinant", "portrait", ...ex.run.results.scenarios.map((s) => `timeseries-${s.name}`)]);
+      const ids = ex.figures.map((f) => f.id);
+      expect(ids.slice(0, 2)).toEqual(["trace-determinant", "portrait"]);
+      expect(ids.slice(-ex.run.results.scenarios.length)).toEqual(ex.run.results.scenarios.map((s) => `timeseries-${s.name}`));
       for (const f of ex.figures) {
         expect(f.title.length).toBeGreaterThan(0);
         expect(f.caption.length).toBeGreaterThan(40);
@@ -103,7 +105,11 @@ describe("buildFigures on the example specs", () => {
 
   it("buildFigures(results with nothing to draw) still gives figures that compile and render", async () => {
     const ex = examples.get("reservoir-competition")!;
-    const empty: Results = { ...ex.run.results, equilibria: [], scenarios: [], trajectories: [], separatrices: [], cycles: [] };
+    const empty: Results = {
+      ...ex.run.results, equilibria: [], scenarios: [], trajectories: [], separatrices: [], cycles: [],
+      basins: { ...ex.run.results.basins, attractors: [] },
+      conditions: { invasion: [], studies: [], maps: [] },
+    };
     const figures = buildFigures(empty, ex.run.spec, { nullclines: null, field: null });
     expect(figures.map((f) => f.id)).toEqual(["trace-determinant", "portrait"]);
     for (const f of figures) {
@@ -313,6 +319,7 @@ describe("labels from the spec", () => {
     raw.states[0].label = 'perch <script>alert("x")</script> & co';
     raw.states[1].unit = "fish & fry";
     raw.scenarios[0].name = "survey<b>&1";
+    delete raw.claims; // they name the scenario by its old name
     const ex = runExample(JSON.stringify(raw));
     const portrait = await renderSvg(ex.figures.find((f) => f.id === "portrait")!.spec);
     const series = await renderSvg(ex.figures.find((f) => f.id === "timeseries-survey<b>&1")!.spec);

@@ -64,11 +64,8 @@ export function branchPieces(branch: BranchResult, state: string): { stability: 
 
 /** Labels in a plot carry this many significant digits; the tables carry the full values. */
 const LABEL_DIGITS = 4;
-/**
- * A number rounded to LABEL_DIGITS for a label. Rounded first, then formatted with room to
- * spare: formatNumber(30000, 4) would write 3.000e+4 (toPrecision's exponent form).
- */
-export const labelNumber = (v: number) => formatNumber(Number(v.toPrecision(LABEL_DIGITS)), 6);
+/** A number for a label in the plot, to LABEL_DIGITS significant digits. */
+export const labelNumber = (v: number) => formatNumber(v, LABEL_DIGITS);
 
 const KIND_SHORT: Record<string, string> = { "saddle-node": "saddle-node", transcritical: "transcritical", hopf: "Hopf", "boundary-crossing": "boundary" };
 

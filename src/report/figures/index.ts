@@ -87,8 +87,11 @@ function basinCaption(results: Results, spec: NormalizedSpec): string {
   ].filter(Boolean);
   return `Basins of attraction over the window ${a.name} in ${range(spec.window[a.name], a.unit)}, ${c.name} in ${range(spec.window[c.name], c.unit)}: ` +
     `each cell is filled by the outcome its centre's trajectory reaches, ${computed}, ${drawing}. ` +
-    `Shares of the window: ${shares}; each share is within ±${formatPercent(b.errorBound)} of the window ` +
-    "(the finest cells that border another label could belong to either side), and a basin narrower than a coarse cell can be missed." +
+    `Shares of the window: ${shares}; ` +
+    (b.errorBound > 0
+      ? `each share is within ±${formatPercent(b.errorBound)} of the window (the finest cells that border another label could belong to either side)`
+      : "no cell borders another label, so the shares are exact at this resolution") +
+    ", and a basin narrower than a coarse cell can be missed." +
     (over.length ? ` Drawn over the fills: ${over.join("; ")}.` : "");
 }
 
@@ -117,7 +120,7 @@ function outcomeMapCaption(spec: NormalizedSpec, map: OutcomeMapResult): string 
     return `${KIND_WORDS[c.kind] ?? c.kind} from ${name} = ${formatNumber(Number(value))}`;
   });
   return `Outcome across ${p1.name} in ${range(map.ranges[0], p1.unit)} and ${p2.name} in ${range(map.ranges[1], p2.unit)}, the other parameters at their current values: ` +
-    `each of the ${map.nx} × ${map.ny} cells is filled by the outcome (the set of attractors) at its centre and lettered in the key. Outcomes: ${outcomes}. ` +
+    `each of the ${map.nx} × ${map.ny} cells is filled by the outcome (the set of attractors) at its centre, and lettered in the key and in the largest clear part of each region. Outcomes: ${outcomes}. ` +
     (curves.length ? `Lines: the threshold curves continued in the second parameter from the thresholds located one parameter at a time (${curves.join("; ")}), dashed by kind. ` : "No threshold curve was traced. ") +
     `Star: the current values, ${p1.name} = ${formatNumber(map.nominal[0])}, ${p2.name} = ${formatNumber(map.nominal[1])}.`;
 }

@@ -43,6 +43,8 @@ export const messages = {
   unknownParameter: (name: string) => `'${name}' is not a declared parameter`,
   parameterWithoutRange: (name: string) => `parameter '${name}' has no range, so its thresholds cannot be searched: add parameters[].range`,
   pairRepeats: (name: string) => `a parameter pair needs two different parameters, got '${name}' twice`,
+  pointMissing: (state: string) => `the point gives no value for state '${state}'`,
+  unknownAttractor: (given: string, allowed: string[]) => `'${given}' is not an attractor keel can name; use one of: ${allowed.map((a) => `'${a}'`).join(", ")}`,
   unknownScenario: (name: string) => `'${name}' is not the name of a scenario in the spec`,
   claimNearWithCycle: () => `'near' applies to an equilibrium; a claim that a scenario reaches a cycle takes no point`,
   planarOnly: (n: number) => `keel analyses planar models: exactly 2 states are needed, found ${n}`,
@@ -66,7 +68,7 @@ export const messages = {
   syntax: (detail: string) => `cannot read the expression: ${detail}`,
   emptyExpression: () => `the expression is empty`,
   stateInCondition: (name: string) =>
-    `'${name}' is a state; an assumption's condition relates parameters only`,
+    `'${name}' is a state; a condition relates parameters only`,
   conditionNeedsComparison: () =>
     `a condition must compare two expressions with one of < <= > >=, e.g. 'K2 < r1/a12'`,
   // CLI

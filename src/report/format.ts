@@ -38,8 +38,12 @@ function numberParts(value: number | null | undefined, digits: number): NumberPa
 export function formatNumber(value: number | null | undefined, digits = 6): string {
   const p = numberParts(value, digits);
   if (p.special !== null) return p.special;
-  return p.exponent === null ? p.sign + p.mantissa : `${p.sign}${p.mantissa} × 10${superscript(String(p.exponent))}`;
+  if (p.exponent === null) return p.sign + p.mantissa;
+  return `${p.sign}${timesTen(p.mantissa)}10${superscript(String(p.exponent))}`;
 }
+
+/** "2.5 × " before a power of ten; nothing for a mantissa of 1, so 1e-7 prints as 10⁻⁷. */
+const timesTen = (mantissa: string) => (mantissa === "1" ? "" : `${mantissa} × `);
 
 function trimZeros(s: string): string {
   if (!s.includes(".") || s.includes("e")) return s;
@@ -50,7 +54,8 @@ function trimZeros(s: string): string {
 export function formatNumberHtml(value: number | null | undefined, digits = 6): string {
   const p = numberParts(value, digits);
   if (p.special !== null) return p.special;
-  return p.exponent === null ? p.sign + p.mantissa : `${p.sign}${p.mantissa} × 10<sup>${String(p.exponent).replace("-", MINUS)}</sup>`;
+  if (p.exponent === null) return p.sign + p.mantissa;
+  return `${p.sign}${timesTen(p.mantissa)}10<sup>${String(p.exponent).replace("-", MINUS)}</sup>`;
 }
 
 /** The same number as TeX source, for matrices and formulas. */
@@ -58,7 +63,8 @@ export function formatNumberTex(value: number | null | undefined, digits = 6): s
   const p = numberParts(value, digits);
   if (p.special !== null) return p.special === "0" ? "0" : `\\text{${p.special}}`;
   const sign = p.sign ? "-" : "";
-  return p.exponent === null ? sign + p.mantissa : `${sign}${p.mantissa} \\times 10^{${p.exponent}}`;
+  if (p.exponent === null) return sign + p.mantissa;
+  return `${sign}${p.mantissa === "1" ? "" : `${p.mantissa} \\times `}10^{${p.exponent}}`;
 }
 
 /**

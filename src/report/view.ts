@@ -72,16 +72,19 @@ function numberFiguresInReadingOrder(figures: FigureView[], results: Results): F
   return [...printed, ...rest].map((f, k) => ({ ...f, number: k + 1 }));
 }
 
+/** "64 × 64", kept on one line. */
+const gridSize = (n: number) => `${n}\u00a0×\u00a0${n}`;
+
 /** The basin pass's method in words, from the settings it recorded (none when it did not run). */
-function basinMethod(settings: Record<string, unknown>): string[] {
+function basinMethod(settings: Record<string, unknown>, timeUnit: string): string[] {
   const b = settings.basins as { resolution?: number; coarse?: number; integrator?: string; relativeTolerance?: number; absoluteToleranceOfWindow?: number; horizon?: number } | undefined;
   if (!b || b.resolution === undefined || b.coarse === undefined) return [];
   return [
-    `Basins: a first pass over ${b.coarse} × ${b.coarse} cells, then cells subdivided near basin boundaries up to ${b.resolution} × ${b.resolution}; ` +
+    `Basins: a first pass over ${gridSize(b.coarse)} cells, then cells subdivided near basin boundaries up to ${gridSize(b.resolution)}; ` +
       `each cell's trajectory integrated${b.integrator ? ` by ${b.integrator}` : ""}` +
       (b.relativeTolerance !== undefined ? ` at relative tolerance ${formatNumber(b.relativeTolerance)}` : "") +
       (b.absoluteToleranceOfWindow !== undefined ? `, absolute tolerance ${formatNumber(b.absoluteToleranceOfWindow)} of the window` : "") +
-      (b.horizon !== undefined ? `, for at most t = ${formatNumber(b.horizon, 4)}` : "") + ".",
+      (b.horizon !== undefined ? `, for at most t = ${formatNumber(b.horizon, 4)} ${timeUnit}` : "") + ".",
   ];
 }
 
@@ -244,7 +247,7 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
     show: b.attractors.length > 0,
     rows: Object.entries(b.fractions).map(([k, v]) => ({ outcome: attractorWords(k), fraction: formatNumber(100 * v, 4) + "%" })),
     errorBound: formatNumber(100 * b.errorBound, 3) + "%",
-    resolution: `${b.resolution} × ${b.resolution}`,
+    resolution: gridSize(b.resolution),
     trajectories: `${b.trajectories} trajectories were integrated instead of the ${b.uniformTrajectories} a uniform grid would need (${formatNumber((100 * b.trajectories) / b.uniformTrajectories, 3)}%)`,
     scenarios: results.scenarios.map((s) => ({
       name: s.name,
@@ -310,7 +313,7 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
         "Trajectories: Hairer's GBS extrapolation method (odex) with dense output; relative tolerance 10⁻⁹, absolute tolerance 10⁻¹¹ of each state's window width. A trajectory counts as converged once it enters a neighbourhood of a stable equilibrium on which the linearisation's quadratic Lyapunov function was checked to decrease.",
         "Periodic orbits: recurrence through a ray section from an equilibrium, then shooting (secant iteration on the return map) at relative tolerance 10⁻¹²; the Floquet multiplier is exp of the integral of the Jacobian's trace over one period.",
         "Separatrices: each saddle's manifolds integrated from points 10⁻⁶ of the window along its eigenvectors (stable manifolds backward in time).",
-        ...basinMethod(results.settings),
+        ...basinMethod(results.settings, spec.timeUnit),
       ],
       settings: JSON.stringify(results.settings, null, 1),
       versions: Object.entries({ keel: results.keel, node: options.nodeVersion, ...options.libraries }).map(([k, v]) => `${k} ${v}`).join(", "),

@@ -104,7 +104,7 @@ export function validateSpecRules(spec: KeelSpecInput): SpecIssue[] {
     else claimIds.set(c.id, i);
     const checkPoint = (point: Record<string, number> | undefined, key: string) => {
       if (!point) return;
-      for (const s of stateNames) if (!own(point, s)) add("missing_state", ["claims", i, key], messages.initialMissing(s));
+      for (const s of stateNames) if (!own(point, s)) add("missing_state", ["claims", i, key], messages.pointMissing(s));
       for (const k of Object.keys(point)) if (!stateSet.has(k)) add("unknown_state", ["claims", i, key, k], messages.initialUnknown(k));
     };
     if (c.kind === "equilibrium-type") checkPoint(c.near, "near");
@@ -114,6 +114,10 @@ export function validateSpecRules(spec: KeelSpecInput): SpecIssue[] {
       if (c.reaches === "cycle" && c.near) add("claim_form", ["claims", i, "near"], messages.claimNearWithCycle());
     }
     if (c.kind === "parameter-side" || c.kind === "threshold-value") checkStudied(c.parameter, ["claims", i, "parameter"]);
+    if (c.kind === "condition-decides") {
+      const allowed = ["coexistence", "all absent", ...subsetsOnly(stateNames)];
+      if (!allowed.includes(c.attractor)) add("unknown_attractor", ["claims", i, "attractor"], messages.unknownAttractor(c.attractor, allowed));
+    }
   });
 
   const scenarioNames = new Map<string, number>();
@@ -124,4 +128,13 @@ export function validateSpecRules(spec: KeelSpecInput): SpecIssue[] {
     else scenarioNames.set(sc.name, i);
   }
   return issues;
+}
+
+/** '<state> only' phrases for every proper, non-empty subset of the states, in state order. */
+function subsetsOnly(states: string[]): string[] {
+  const out: string[] = [];
+  for (let mask = 1; mask < (1 << states.length) - 1; mask++) {
+    out.push(`${states.filter((_, k) => mask & (1 << k)).join(" and ")} only`);
+  }
+  return out;
 }

@@ -350,7 +350,7 @@ const expressionFaults: BadSpec[] = [
   {
     name: "a state in a condition",
     text: specWith((s) => (s.assumptions[0].condition = "a*x > m")),
-    faults: [{ path: "assumptions[0].condition", message: /'x' is a state; an assumption's condition relates parameters only/, caret: { line: "a*x > m", column: 3 } }],
+    faults: [{ path: "assumptions[0].condition", message: /'x' is a state; a condition relates parameters only/, caret: { line: "a*x > m", column: 3 } }],
   },
 ];
 

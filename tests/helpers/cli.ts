@@ -27,6 +27,8 @@ export interface RunOptions {
   cwd?: string;
   /** Files to write (relative path → content) into the working directory before the run. */
   files?: Record<string, string | Uint8Array>;
+  /** Variables to set for this run on top of the test's own environment; undefined removes one. */
+  env?: Record<string, string | undefined>;
 }
 
 /** A safety net so a hung CLI fails its test instead of stalling the run; not a timing assertion. */
@@ -55,6 +57,10 @@ export function runKeel(args: string[], options: RunOptions = {}): CliResult {
   // KEEL_DEBUG would add stack traces on internal faults, which the suites check are absent
   const env: NodeJS.ProcessEnv = { ...process.env, NO_COLOR: "1" };
   delete env.KEEL_DEBUG;
+  for (const [name, value] of Object.entries(options.env ?? {})) {
+    if (value === undefined) delete env[name];
+    else env[name] = value;
+  }
   const run = spawnSync(process.execPath, [CLI_ENTRY, ...args], { cwd, env, encoding: "utf8", timeout: HANG_GUARD_MS });
   if (run.error) throw run.error;
   return { status: run.status, signal: run.signal, stdout: run.stdout, stderr: run.stderr, cwd };

@@ -94,7 +94,7 @@ function decodeEntities(text: string): string {
 
 /** The page's text as a reader sees it: markup, <style> and <title> dropped, references decoded. */
 function visibleText(html: string): string {
-  const body = html.slice(html.indexOf("<body"));
+  const body = html.includes("<body") ? html.slice(html.indexOf("<body")) : html;
   return decodeEntities(body.replace(/<style[\s\S]*?<\/style>/gi, "").replace(/<[^>]+>/g, ""));
 }
 
@@ -155,12 +155,19 @@ function withoutRunningHeader(page: string, id: string): string[] {
 
 afterAll(removeWorkDirs);
 
-describe.each(exampleSpecs.map((spec) => ({ id: spec.id, spec })))("keel build specs/$id.json: the dossier", ({ spec }) => {
+/** Each example is built once per file; later suites reuse the build. */
+const builtExamples = new Map<string, Built>();
+function buildExample(spec: Record<string, unknown> & { id: string }): Built {
+  if (!builtExamples.has(spec.id)) builtExamples.set(spec.id, buildSpec(spec));
+  return builtExamples.get(spec.id)!;
+}
+
+for (const spec of exampleSpecs) describe(`keel build specs/${spec.id}.json: the dossier`, () => {
   let built: Built;
   let text: string[] = []; // PDF text, one entry per page
 
   beforeAll(() => {
-    built = buildSpec(spec);
+    built = buildExample(spec);
     if (canPrint && built.pdf) text = pdftotext(built.pdf).split("\f");
   });
 
@@ -223,6 +230,18 @@ describe.each(exampleSpecs.map((spec) => ({ id: spec.id, spec })))("keel build s
       for (const cell of negatives) expect(table).toContain(squeeze(cell));
     });
 
+    it("keel build(example) PDF numbers the section headings 1, 2, 3… in document order", () => {
+      const lines = text.join("\n").split("\n").map((l) => l.trim());
+      let at = -1;
+      for (const [k, section] of expectedOutline(built.results).slice(1).entries()) {
+        const found = lines.indexOf(`${k + 1}\u2002${section.heading}`, at + 1);
+        const plain = lines.indexOf(`${k + 1} ${section.heading}`, at + 1);
+        const where = found >= 0 ? found : plain;
+        expect(where, `"${k + 1} ${section.heading}" after line ${at}`).toBeGreaterThan(at);
+        at = where;
+      }
+    });
+
     it("keel build(example) fits the Summary of findings on page 2; page 3 starts the Model section", () => {
       const summary = /<section class="summary"[\s\S]*?<\/section>/.exec(built.html)![0];
       const headings = [...summary.matchAll(/<h3>([\s\S]*?)<\/h3>/g)].map((h) => decodeEntities(h[1]));
@@ -241,7 +260,7 @@ describe.skipIf(!canPrint)("renderPdf(dossier HTML with an injected remote image
   const REMOTE = "http://example.invalid/x.png";
 
   it("renderPdf(dossier + <img src=http://…>) blocks the request and lists it in blockedRequests", async () => {
-    const built = buildSpec(exampleSpecs[0]);
+    const built = buildExample(exampleSpecs[0]);
     const html = built.html.replace("</body>", `<img src="${REMOTE}" alt="">\n</body>`);
     expect(html).toContain(REMOTE);
     const printed = await renderPdf(html, { chromiumPath: chromium!, paper: "a4", headerLeft: built.id, headerRight: "spec test" });

@@ -28,10 +28,14 @@ export function runCheck(file: string): string {
 
 /** `keel check --claims SPEC`: run the analysis and print each claim's verdict; exit 3 when any is contradicted. */
 export async function runCheckClaims(file: string, options: { quiet: boolean; jobs?: number }): Promise<{ text: string; code: number }> {
-  const output = await runAnalysis(readSpecFile(file), options.jobs, makeProgress(options.quiet));
+  const text = readSpecFile(file);
+  // refuse a spec without claims before the analysis runs, not after
+  const prepared = prepareModel(text);
+  if (!prepared.ok) throw inputError(prepared.issues, file);
+  if (prepared.value.spec.claims.length === 0) throw new CliExit(EXIT.input, `error: ${file} states no claims (add a "claims" list to the spec)`);
+  const output = await runAnalysis(text, options.jobs, makeProgress(options.quiet));
   if (!output.ok) throw inputError(output.issues, file);
   const claims = output.value.results.claims;
-  if (claims.length === 0) throw new CliExit(EXIT.input, `error: ${file} states no claims (add a "claims" list to the spec)`);
   const lines = claims.map((c) => `${c.verdict.padEnd(12)} ${c.id}: ${c.evidence} (see ${c.where})`);
   const contradicted = claims.filter((c) => c.verdict === "contradicted").length;
   const undecided = claims.filter((c) => c.verdict === "undecided").length;

@@ -1,6 +1,6 @@
 import { existsSync, readFileSync, statSync } from "node:fs";
 import { join } from "node:path";
-import { EMBEDDED, readEmbedded, sha256, type Manifest } from "../../report/archive.js";
+import { EMBEDDED, manifestText, readEmbedded, sha256, type Manifest } from "../../report/archive.js";
 import { compareResults, VERIFY_ABS_TOL, VERIFY_REL_TOL } from "../../report/compare.js";
 import { serializeResults } from "../../analysis/serialize.js";
 import { hashSpec } from "../../spec/hash.js";
@@ -35,9 +35,14 @@ export async function runVerify(target: string, options: { quiet: boolean; jobs?
   if (isDir) {
     const manifestPath = join(target, "manifest.json");
     if (!existsSync(manifestPath)) throw new CliExit(EXIT.input, `error: ${target} holds no manifest.json; is it a folder written by keel build?`);
-    const manifest = parseJson(readFileSync(manifestPath, "utf8"), "manifest.json");
-    if (manifest instanceof Error) throw new CliExit(EXIT.input, `error: ${manifest.message}`);
-    const files = (manifest as Manifest).files ?? {};
+    const manifestOnDisk = readFileSync(manifestPath, "utf8");
+    const parsed = parseJson(manifestOnDisk, "manifest.json");
+    // a manifest altered into invalid JSON is a tampered archive (exit 3), not bad usage
+    if (parsed instanceof Error) problems.push(`tampered: manifest.json (${parsed.message})`);
+    const manifest = (parsed instanceof Error ? { files: {} } : parsed) as Manifest;
+    // the manifest cannot hash itself; keel writes it in one canonical form, so any other bytes were changed
+    if (!(parsed instanceof Error) && manifestOnDisk !== manifestText(manifest)) problems.push("tampered: manifest.json (its bytes differ from the form keel writes)");
+    const files = manifest.files ?? {};
     for (const [name, expected] of Object.entries(files)) {
       const path = join(target, name);
       if (!existsSync(path)) { problems.push(`missing: ${name}`); continue; }
@@ -55,10 +60,9 @@ export async function runVerify(target: string, options: { quiet: boolean; jobs?
         const onDisk = join(target, name);
         if (name === "manifest.json") {
           // the embedded manifest is the one on disk without the PDF's own hash
-          const inner = parseJson(decoder.decode(copy), "the manifest inside dossier.pdf") as Manifest;
-          const outer = { ...(manifest as Manifest), files: { ...files } };
+          const outer = { ...manifest, files: { ...files } };
           delete outer.files["dossier.pdf"];
-          if (inner instanceof Error || JSON.stringify(sortFiles(inner)) !== JSON.stringify(sortFiles(outer))) problems.push("tampered: manifest.json inside dossier.pdf (differs from manifest.json)");
+          if (decoder.decode(copy) !== manifestText(outer)) problems.push("tampered: manifest.json inside dossier.pdf (differs from manifest.json)");
           else lines.push("ok: manifest.json inside dossier.pdf");
         } else if (!existsSync(onDisk) || sha256(copy) !== sha256(readFileSync(onDisk))) {
           problems.push(`tampered: ${name} inside dossier.pdf (differs from ${name})`);
@@ -71,7 +75,8 @@ export async function runVerify(target: string, options: { quiet: boolean; jobs?
     if (!manifestBytes) throw new CliExit(EXIT.input, `error: ${target} carries no keel archive (no embedded manifest.json)`);
     const manifest = parseJson(decoder.decode(manifestBytes), "the embedded manifest.json");
     if (manifest instanceof Error) problems.push("tampered: manifest.json inside the PDF (not valid JSON)");
-    const files = manifest instanceof Error ? {} : (manifest as Manifest).files;
+    else if (decoder.decode(manifestBytes) !== manifestText(manifest as Manifest)) problems.push("tampered: manifest.json inside the PDF (its bytes differ from the form keel writes)");
+    const files = manifest instanceof Error ? {} : (manifest as Manifest).files ?? {};
     for (const name of ["spec.json", "results.json"]) {
       const copy = embedded[name];
       if (!copy) { problems.push(`missing inside the PDF: ${name}`); continue; }
@@ -99,10 +104,6 @@ export async function runVerify(target: string, options: { quiet: boolean; jobs?
   } else problems.push("the archive lacks spec.json or results.json, so the analysis cannot be re-run");
 
   return { ok: problems.length === 0, lines: [...lines, ...problems.map((p) => `FAIL ${p}`), problems.length ? `verify: ${problems.length} problem(s)` : "verify: all checks hold"] };
-}
-
-function sortFiles(m: Manifest): Manifest {
-  return { ...m, files: Object.fromEntries(Object.keys(m.files).sort().map((k) => [k, m.files[k]])) };
 }
 
 async function readEmbeddedSafe(path: string, problems: string[]): Promise<Record<string, Uint8Array>> {

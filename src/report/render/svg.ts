@@ -26,7 +26,7 @@ const NUMERIC_ATTRIBUTES = new Set([
 ]);
 
 /** Markup that would make the page reach out, or run code. */
-const FORBIDDEN = [/url\(/i, /\bhref\s*=/i, /<script/i, /<foreignObject/i, /<image/i, /\son[a-z]+\s*=/i];
+const FORBIDDEN = [/\bhref\s*=/i, /<script/i, /<foreignObject/i, /<image/i, /\son[a-z]+\s*=/i];
 
 export interface RenderDiagnostics {
   /** Warnings from vega-lite's compiler and from vega, as text. */
@@ -118,7 +118,11 @@ export async function renderSvg(spec: Record<string, unknown>, diagnostics: Rend
     if (errors.length) throw new Error(`figure did not render cleanly: ${errors.join("; ")}`);
     const svg = normalizeSvgNumbers(stripNamespaces(raw));
     // only markup is checked: text content is escaped, and a label may mention anything
-    const tags = svg.match(/<[^>]+>/g)?.join("\n") ?? "";
+    const rawTags = svg.match(/<[^>]+>/g)?.join("\n") ?? "";
+    // a url() reference would sit in an attribute value; the other patterns are markup, so
+    // values are left out for them: vega copies label text (escaped, inert) into aria-label
+    if (/url\(/i.test(rawTags)) throw new Error("rendered SVG contains forbidden markup url(");
+    const tags = rawTags.replace(/"[^"]*"/g, '""');
     for (const pattern of FORBIDDEN) {
       // our figures never ask for these; reaching here is a bug in a figure builder
       if (pattern.test(tags)) throw new Error(`rendered SVG contains forbidden markup ${pattern}`);

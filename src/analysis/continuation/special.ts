@@ -210,5 +210,15 @@ export function buildSpecialPoints(
     };
     return result;
   });
-  return results.sort((a, b) => a.value - b.value || KIND_ORDER.indexOf(a.kind) - KIND_ORDER.indexOf(b.kind) || a.branch - b.branch);
+  // near a branch crossing the corrector stalls, so a bound crossing seen from the crossing branch
+  // may fail to verify; when a verified transcritical on the same bound lies close, it is that one
+  const verified = (r: SpecialPointResult) => r.residual <= ROOT_RESIDUAL_TOL && r.testResidual <= TEST_FUNCTION_TOL;
+  const width = sys.range[1] - sys.range[0];
+  const kept = results.filter((r) => {
+    if (r.kind !== "boundary-crossing" || verified(r)) return true;
+    const twin = results.find((q) => q.kind === "transcritical" && verified(q) && q.bound?.state === r.bound?.state && Math.abs(q.value - r.value) <= CROSSING_NEIGHBOURHOOD * width);
+    if (twin) diagnostics.push({ severity: "info", stage: "continuation", message: `the unverified bound crossing at ${parameter} = ${r.value} is the transcritical at ${twin.value}, seen from the crossing branch` });
+    return !twin;
+  });
+  return kept.sort((a, b) => a.value - b.value || KIND_ORDER.indexOf(a.kind) - KIND_ORDER.indexOf(b.kind) || a.branch - b.branch);
 }

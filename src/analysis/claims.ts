@@ -41,6 +41,8 @@ interface ClaimContext {
 }
 
 const fmt = (v: number) => String(Number(v.toPrecision(6)));
+/** Types in words for evidence text: "stable node", not "stable-node". */
+const words = (type: string) => type.replace(/-/g, " ");
 const at = (p: Record<string, number>) => Object.entries(p).map(([k, v]) => `${k} = ${fmt(v)}`).join(", ");
 
 function nearest(ctx: ClaimContext, point: Record<string, number>): { e: EquilibriumResult; distance: number } | null {
@@ -78,9 +80,9 @@ function checkClaim(ctx: ClaimContext, claim: ClaimSpec, index: number): Omit<Cl
         return { verdict: "contradicted", evidence: `no equilibrium within ${fmt(100 * tol)}% of the window of ${at(claim.near)}${hit ? `; the nearest is ${hit.e.id} at ${at(hit.e.point)}` : ""}`, where: "Equilibria table", numbers: { distance: hit?.distance ?? null } };
       const e = hit.e;
       const matches = claim.type === "stable" ? e.stable === true : claim.type === "unstable" ? e.stable === false : e.type === claim.type;
-      if (matches) return { verdict: "supported", evidence: `${e.id} at ${at(e.point)} is a ${e.type} (trace ${fmt(e.trace)}, determinant ${fmt(e.determinant)})`, where: `Equilibria table, ${e.id}`, numbers: { equilibrium: e.id, trace: e.trace, determinant: e.determinant } };
-      if (!e.hyperbolic) return { verdict: "undecided", evidence: `${e.id} at ${at(e.point)} is ${e.type}: its linearisation does not decide whether it is a ${claim.type}`, where: `Equilibria table, ${e.id}`, numbers: { equilibrium: e.id, trace: e.trace, determinant: e.determinant } };
-      return { verdict: "contradicted", evidence: `${e.id} at ${at(e.point)} is a ${e.type}, not a ${claim.type} (trace ${fmt(e.trace)}, determinant ${fmt(e.determinant)})`, where: `Equilibria table, ${e.id}`, numbers: { equilibrium: e.id, trace: e.trace, determinant: e.determinant } };
+      if (matches) return { verdict: "supported", evidence: `${e.id} at ${at(e.point)} is a ${words(e.type)} (trace ${fmt(e.trace)}, determinant ${fmt(e.determinant)})`, where: `Equilibria table, ${e.id}`, numbers: { equilibrium: e.id, trace: e.trace, determinant: e.determinant } };
+      if (!e.hyperbolic) return { verdict: "undecided", evidence: `${e.id} at ${at(e.point)} is ${words(e.type)}: its linearisation does not decide whether it is a ${words(claim.type)}`, where: `Equilibria table, ${e.id}`, numbers: { equilibrium: e.id, trace: e.trace, determinant: e.determinant } };
+      return { verdict: "contradicted", evidence: `${e.id} at ${at(e.point)} is a ${words(e.type)}, not a ${words(claim.type)} (trace ${fmt(e.trace)}, determinant ${fmt(e.determinant)})`, where: `Equilibria table, ${e.id}`, numbers: { equilibrium: e.id, trace: e.trace, determinant: e.determinant } };
     }
     case "scenario-fate": {
       const sc = ctx.scenarios.find((s) => s.name === claim.scenario)!;

@@ -69,7 +69,8 @@ function numberFiguresInReadingOrder(figures: FigureView[], results: Results): F
   ];
   const printed = order.map((id) => figures.find((f) => f.id === id)).filter((f): f is FigureView => f !== undefined);
   const rest = figures.filter((f) => !printed.includes(f));
-  return [...printed, ...rest].map((f, k) => ({ ...f, number: k + 1 }));
+  // captions name units as the spec writes them (g/m^2); print their powers as superscripts
+  return [...printed, ...rest].map((f, k) => ({ ...f, number: k + 1, caption: formatUnit(f.caption) }));
 }
 
 /** "64 × 64", kept on one line. */
@@ -229,7 +230,8 @@ export function buildDossierView(spec: NormalizedSpec, results: Results, figures
         // the interval of this parameter over which the current outcome holds, the others fixed
         holds: current ? m(current.statement.tex) : "",
         now: formatQuantity(st.nominal, unit),
-        threshold: `${kindWords[margin.kind] ?? margin.kind} at ${formatNumberHtml(margin.threshold)}`,
+        // the table has no room for the long "(no local bifurcation)" gloss the threshold tables give
+        threshold: `${margin.kind === "outcome change" ? "outcome change" : kindWords[margin.kind] ?? margin.kind} at ${formatNumberHtml(margin.threshold)}`,
         percent: formatNumber(100 * Math.abs(margin.relative), 3) + "%",
         side: margin.side,
       };

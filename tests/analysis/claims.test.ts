@@ -85,7 +85,7 @@ describe("checkClaims on the competition model (Strogatz 6.4)", () => {
     expect(saddle.numbers.determinant as number).toBeCloseTo(-1, 9);
     const node = verdictOf(claims, "node-at-1-1");
     expect(node.verdict).toBe("contradicted");
-    expect(node.evidence).toMatch(/saddle, not a stable-node/);
+    expect(node.evidence).toMatch(/saddle, not a stable node/);
   });
 
   it("checkClaims(competition) supports that (2.5, 0.5) reaches (3,0) and contradicts that it reaches (0,2)", () => {

@@ -27,10 +27,18 @@ function libraryVersions(): Record<string, string> {
   const require = createRequire(import.meta.url);
   const out: Record<string, string> = {};
   for (const name of REPORTED_LIBRARIES) {
+    // packages with an exports map hide package.json from require: walk up from their entry
+    out[name] = "unknown";
     try {
-      out[name] = (require(`${name}/package.json`) as { version: string }).version;
+      let dir = dirname(require.resolve(name));
+      for (let up = 0; up < 6; up++, dir = dirname(dir)) {
+        const file = join(dir, "package.json");
+        if (!existsSync(file)) continue;
+        const pkg = JSON.parse(readFileSync(file, "utf8")) as { name?: string; version?: string };
+        if (pkg.name === name && pkg.version) { out[name] = pkg.version; break; }
+      }
     } catch {
-      out[name] = "unknown";
+      // stays "unknown"
     }
   }
   return out;

@@ -1,3 +1,4 @@
+import { formatUnit } from "../format.js";
 import type { ParameterStudyResult, Results } from "../../analysis/types.js";
 import type { BranchResult } from "../../analysis/continuation/index.js";
 import type { NormalizedParameter, NormalizedSpec } from "../../spec/types.js";
@@ -30,7 +31,7 @@ const stabilityOf = (stable: boolean | null): BranchStability => (stable === tru
 /** Axis title for a parameter: its label and name, then its unit. */
 export function parameterAxisTitle(p: Pick<NormalizedParameter, "name" | "label" | "unit">): string {
   const head = p.label && p.label !== p.name ? `${p.label}, ${p.name}` : p.name;
-  return p.unit ? `${head} (${p.unit})` : head;
+  return p.unit ? `${head} (${formatUnit(p.unit)})` : head;
 }
 
 /**

@@ -1,3 +1,4 @@
+import { formatUnit } from "../format.js";
 import type { NormalizedState } from "../../spec/types.js";
 import { drawablePieces, roundData, type PlacedLabel, type PlotFrame, type Polyline } from "./geometry.js";
 import { FONT_SIZE, INK, PAPER, type LineStyle, type MarkerStyle } from "./palette.js";
@@ -23,7 +24,7 @@ export interface TextRow { x: number; y: number; text: string }
 /** Axis title for a state: its label and name, then its unit. */
 export function stateAxisTitle(state: NormalizedState): string {
   const head = state.label && state.label !== state.name ? `${state.label}, ${state.name}` : state.name;
-  return state.unit ? `${head} (${state.unit})` : head;
+  return state.unit ? `${head} (${formatUnit(state.unit)})` : head;
 }
 
 export function positionEncoding(field: "x" | "y", domain: [number, number], title: string | null, axis: Record<string, unknown> | null = {}) {

@@ -95,6 +95,8 @@ async function launchChromium(chromiumPath: string, profile: string): Promise<Br
 
 async function printPage(browser: Browser, html: string, options: PdfRenderOptions): Promise<PdfRenderResult> {
   const page = await browser.newPage();
+  // a dialog (alert, confirm) would stall printing until a protocol timeout
+  page.on("dialog", (dialog) => { void dialog.dismiss(); });
   const blocked = new Set<string>();
   await refuseNetwork(page, blocked);
   await page.setContent(html, { waitUntil: "load", timeout: PRINT_TIMEOUT_MS });

@@ -1,7 +1,7 @@
 import type { Model } from "../model/types.js";
 import type { Diagnostic } from "../diagnostics/issue.js";
 import { classifyEquilibrium, type StabilityResult } from "./stability.js";
-import { windowOf, type Box } from "./window.js";
+import { componentScales, windowOf, type Box } from "./window.js";
 
 export interface EquilibriumResult extends StabilityResult {
   id: string;
@@ -156,19 +156,6 @@ function boundaryStarts(model: Model, box: Box, fScale: number[], options: Equil
   return starts;
 }
 
-function componentScales(model: Model, box: Box): number[] {
-  const y = new Float64Array(2);
-  const f = new Float64Array(2);
-  const scale = [0, 0];
-  const n = 24;
-  for (let a = 0; a <= n; a++) for (let b = 0; b <= n; b++) {
-    y[0] = box.lo[0] + (box.width[0] * a) / n;
-    y[1] = box.lo[1] + (box.width[1] * b) / n;
-    model.rhs(y, f);
-    for (let k = 0; k < 2; k++) if (Number.isFinite(f[k])) scale[k] = Math.max(scale[k], Math.abs(f[k]));
-  }
-  return scale.map((s) => (s > 0 ? s : 1));
-}
 
 /** Snap coordinates that sit at a bound to the bound exactly, when the residual allows. */
 function snapToBounds(model: Model, x: [number, number], box: Box, fScale: number[], ws: Workspace): [number, number] {

@@ -1,6 +1,6 @@
 import type { Model, ParametricRhsFunction } from "../../model/types.js";
 import { compileParameterDerivative } from "../../model/higher.js";
-import { windowOf, type Box } from "../window.js";
+import { componentScales, windowOf, type Box } from "../window.js";
 
 /**
  * The curve F(x, p) = 0 in (x0, x1, p) space. Points are kept in the model's own units (so a seed
@@ -53,20 +53,6 @@ export function buildSystem(model: Model, parameterIndex: number, range: [number
   return sys;
 }
 
-/** max |f_i| over a 25 × 25 grid of the window at the nominal values; 1 where f_i vanishes there. */
-function componentScales(model: Model, box: Box): number[] {
-  const y = new Float64Array(2);
-  const f = new Float64Array(2);
-  const scale = [0, 0];
-  const n = 24;
-  for (let a = 0; a <= n; a++) for (let b = 0; b <= n; b++) {
-    y[0] = box.lo[0] + (box.width[0] * a) / n;
-    y[1] = box.lo[1] + (box.width[1] * b) / n;
-    model.rhs(y, f);
-    for (let k = 0; k < 2; k++) if (Number.isFinite(f[k])) scale[k] = Math.max(scale[k], Math.abs(f[k]));
-  }
-  return scale.map((s) => (s > 0 ? s : 1));
-}
 
 /** Fills sys.f, sys.j (natural units), sys.fp and the scaled continuation Jacobian sys.a at z. */
 export function evaluate(sys: ContinuationSystem, z: ArrayLike<number>): void {

@@ -8,7 +8,7 @@
  */
 import { spawn } from "node:child_process";
 import { readFileSync } from "node:fs";
-import { fileURLToPath } from "node:url";
+import { COMPETITION_SPEC, specPath } from "./common.mjs";
 import { analyze, prepareModel } from "../dist/index.js";
 import { planBasins } from "../dist/analysis/basins/index.js";
 import { BASIN_ABSOLUTE_TOL_OF_WIDTH, BASIN_MAX_STEP_OF_HORIZON, BASIN_RELATIVE_TOL, instantiateBasinKernel } from "../dist/analysis/basins/kernel.js";
@@ -43,7 +43,6 @@ const MAX_STEPS = 200_000;
 const MAX_STEPS_OUTSIDE = 2_000;
 const LABEL_LEFT_WINDOW = -1, LABEL_BLOW_UP = -2, LABEL_UNDECIDED = -3, CONTINUE = -100;
 
-const specPath = (name) => fileURLToPath(new URL(`../specs/${name}.json`, import.meta.url));
 
 // ---------------------------------------------------------------- the hand-written reference
 
@@ -330,18 +329,12 @@ async function benchParallel(name) {
 
 // ---------------------------------------------------------------- c. adaptive refinement
 
-/** Competition model, Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., section 6.4 (as in rhs.bench.mjs). */
-const COMPETITION_SPEC = JSON.stringify({
-  keel: 1, id: "bench-competition", title: "Competition model x' = x(3 - x - 2y), y' = y(2 - x - y)", time: { unit: "time" },
-  states: [{ name: "x", min: 0, max: 3 }, { name: "y", min: 0, max: 3 }],
-  equations: { x: "x*(3 - x - 2*y)", y: "y*(2 - x - y)" },
-});
 
 function benchRefinement() {
   const cases = [
     ["reservoir-competition", readFileSync(specPath("reservoir-competition"), "utf8")],
     ["grazer-forage", readFileSync(specPath("grazer-forage"), "utf8")],
-    ["competition (Strogatz 6.4)", COMPETITION_SPEC],
+    ["competition (Strogatz 6.4)", JSON.stringify(COMPETITION_SPEC)],
   ];
   return cases.map(([name, text]) => {
     const { basins } = analyze(prepare(name, text));

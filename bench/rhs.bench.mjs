@@ -4,7 +4,7 @@
  * Run after a build: `npm run bench` (or `npx tsc -p tsconfig.json && node bench/rhs.bench.mjs`).
  */
 import { readFileSync } from "node:fs";
-import { fileURLToPath } from "node:url";
+import { COMPETITION_SPEC, specPath } from "./common.mjs";
 import { prepareModel } from "../dist/index.js";
 
 /** Target for compiled / hand-written per-call time; the bench reports, it never fails on speed. */
@@ -19,23 +19,7 @@ const POINT_COUNT = 1024;
 /** Compiled and hand-written outputs must agree to this, relative (both are double arithmetic). */
 const AGREEMENT_TOLERANCE = 1e-12;
 
-const specPath = (name) => fileURLToPath(new URL(`../specs/${name}.json`, import.meta.url));
 
-/**
- * The competition model of Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., §6.4 (rabbits vs
- * sheep), from memory. Written here as a keel spec so the bench compiles it like any other.
- */
-const COMPETITION_SPEC = {
-  keel: 1,
-  id: "bench-competition",
-  title: "Competition model x' = x(3 - x - 2y), y' = y(2 - x - y)",
-  time: { unit: "time" },
-  states: [
-    { name: "x", min: 0, max: 3 },
-    { name: "y", min: 0, max: 3 },
-  ],
-  equations: { x: "x*(3 - x - 2*y)", y: "y*(2 - x - y)" },
-};
 
 /** Hand-written versions: parameters as closure constants, as someone would write them by hand. */
 function handReservoir() {

@@ -5,7 +5,7 @@
  * Run after a build: `npm run bench` (or `npx tsc -p tsconfig.json && node bench/trajectories.bench.mjs`).
  */
 import { readFileSync } from "node:fs";
-import { fileURLToPath } from "node:url";
+import { COMPETITION_SPEC, specPath } from "./common.mjs";
 import { Solver } from "odex";
 import { prepareModel, findEquilibria } from "../dist/index.js";
 import { buildFlowContext, followTrajectory } from "../dist/analysis/flow.js";
@@ -24,23 +24,7 @@ const GRID = 20;
  */
 const AGREEMENT_OF_WINDOW = 1e-6;
 
-const specPath = (name) => fileURLToPath(new URL(`../specs/${name}.json`, import.meta.url));
 
-/**
- * The competition model of Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., §6.4 (rabbits vs
- * sheep), from memory, written as a keel spec so the bench compiles it like any other.
- */
-const COMPETITION_SPEC = {
-  keel: 1,
-  id: "bench-competition",
-  title: "Competition model x' = x(3 - x - 2y), y' = y(2 - x - y)",
-  time: { unit: "time" },
-  states: [
-    { name: "x", min: 0, max: 3 },
-    { name: "y", min: 0, max: 3 },
-  ],
-  equations: { x: "x*(3 - x - 2*y)", y: "y*(2 - x - y)" },
-};
 
 const CASES = [
   // the spec's own scenario horizon (years)

@@ -1,7 +1,6 @@
 import { describe, expect, it } from "vitest";
 import type { CycleResult, Results } from "../../src/analysis/types.js";
-import { runPipeline } from "../../src/pipeline.js";
-import { fixtureSpec, type ModelFixture } from "../fixtures/models.js";
+import { analyzeFixture, type FixtureScenario as Scenario, type ModelFixture } from "../fixtures/models.js";
 
 /** Scenario paths hold about nine digits (1e-9 relative steps); 1e-7 leaves two for drift over a few periods. */
 const FIRST_INTEGRAL_REL_TOL = 1e-7;
@@ -10,16 +9,6 @@ const PERIOD_REL_TOL = 1e-6;
 /** The Floquet multiplier (trace quadrature) and the return-map slope (central differences, h = 1e-6) are independent estimates. */
 const MULTIPLIER_REL_TOL = 1e-5;
 
-interface Scenario { name: string; initial: Record<string, number>; horizon: number }
-
-/** The basin map is not under test here: a coarse one (16 cells a side) keeps these runs fast. */
-const COARSE_BASINS = { basins: { resolution: 16, coarse: 8 } };
-
-function analyzeFixture(fixture: ModelFixture, scenarios: Scenario[]): Results {
-  const out = runPipeline(JSON.stringify({ ...fixtureSpec(fixture), scenarios, analysis: COARSE_BASINS }));
-  if (!out.ok) throw new Error(JSON.stringify(out.issues));
-  return out.value.results;
-}
 
 function cycleOf(results: Results, scenario: number): CycleResult {
   const fate = results.scenarios[scenario].fate;

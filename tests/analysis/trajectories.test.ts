@@ -4,7 +4,7 @@ import { expm, matrix, multiply } from "mathjs";
 import { describe, expect, it } from "vitest";
 import type { Results, ScenarioResult } from "../../src/analysis/types.js";
 import { runPipeline } from "../../src/pipeline.js";
-import { fixtureSpec, type ModelFixture } from "../fixtures/models.js";
+import { analyzeFixture, COARSE_BASINS, type FixtureScenario as Scenario, type ModelFixture } from "../fixtures/models.js";
 
 /** Step points of a 1e-9 relative integration (keel's default) hold about nine digits; 1e-7 leaves two. */
 const CLOSED_FORM_REL_TOL = 1e-7;
@@ -16,16 +16,6 @@ const BLOWUP_TIME_TOL = 1e-6;
 /** A window exit is located by bisection on the dense output, past a slack of 1e-9 of the width. */
 const EXIT_TIME_TOL = 1e-7;
 
-interface Scenario { name: string; initial: Record<string, number>; horizon: number }
-
-/** The basin map is not under test here: a coarse one (16 cells a side) keeps these runs fast. */
-const COARSE_BASINS = { basins: { resolution: 16, coarse: 8 } };
-
-function analyzeFixture(fixture: ModelFixture, scenarios: Scenario[]): Results {
-  const out = runPipeline(JSON.stringify({ ...fixtureSpec(fixture), scenarios, analysis: COARSE_BASINS }));
-  if (!out.ok) throw new Error(JSON.stringify(out.issues));
-  return out.value.results;
-}
 
 function analyzeExample(file: string, extraScenarios: Scenario[] = []): Results {
   const spec = JSON.parse(readFileSync(join(import.meta.dirname, "../../specs", file), "utf8"));

@@ -299,7 +299,7 @@ export function followTrajectory(ctx: FlowContext, start: readonly [number, numb
     }
   }
   if (recurrence && !fate) fate = { kind: "undecided", t: (recurrence as Recurrence).t, reason: "recurrent: periodic-orbit candidate" };
-  return { fate: fate!, recurrence, path: thin(path, options.maxPathPoints), exit, steps, evaluations };
+  return { fate: fate!, recurrence, path: thinPath(path, options.maxPathPoints), exit, steps, evaluations };
 }
 
 /** At the horizon: crossings whose gaps shrink steadily point at a slowly attracting cycle. */
@@ -318,10 +318,10 @@ function findSlowRecurrence(crossings: Map<string, { t: number; r: number; x: [n
   return null;
 }
 
-function thin(path: TrajectoryPath, maxPoints: number): TrajectoryPath {
+/** At most maxPoints of a path, evenly by index, first and last kept. */
+export function thinPath(path: TrajectoryPath, maxPoints: number): TrajectoryPath {
   const n = path.t.length;
   if (n <= maxPoints) return path;
-  const keep: number[] = [];
-  for (let k = 0; k < maxPoints; k++) keep.push(Math.round((k * (n - 1)) / (maxPoints - 1)));
+  const keep = Array.from({ length: maxPoints }, (_, k) => Math.round((k * (n - 1)) / (maxPoints - 1)));
   return { t: keep.map((i) => path.t[i]), x: keep.map((i) => path.x[i]), y: keep.map((i) => path.y[i]) };
 }

@@ -1,7 +1,7 @@
 import type { Model } from "../model/types.js";
 import type { Diagnostic } from "../diagnostics/issue.js";
 import type { EquilibriumResult } from "./equilibria.js";
-import { buildFlowContext, followTrajectory, type Fate, type FlowContext, type FollowResult, type TrajectoryPath } from "./flow.js";
+import { buildFlowContext, followTrajectory, thinPath, type Fate, type FlowContext, type FollowResult, type TrajectoryPath } from "./flow.js";
 import { integrateFlow } from "./integrate.js";
 import { sameCycle, solvePeriodicOrbit, type CycleResult } from "./cycles.js";
 import type { Box } from "./window.js";
@@ -169,13 +169,6 @@ function extendToHorizon(model: Model, ctx: FlowContext, path: TrajectoryPath, h
       path.t.push(t0 + t1); path.x.push(y[0]); path.y.push(y[1]);
     },
   });
-}
-
-function thinPath(path: TrajectoryPath, maxPoints: number): TrajectoryPath {
-  const n = path.t.length;
-  if (n <= maxPoints) return path;
-  const idx = Array.from({ length: maxPoints }, (_, k) => Math.round((k * (n - 1)) / (maxPoints - 1)));
-  return { t: idx.map((i) => path.t[i]), x: idx.map((i) => path.x[i]), y: idx.map((i) => path.y[i]) };
 }
 
 /** A time scale of the flow: the inverse of the slowest non-zero eigenvalue real part. */

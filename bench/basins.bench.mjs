@@ -13,10 +13,10 @@ import { analyze, prepareModel } from "../dist/index.js";
 import { planBasins } from "../dist/analysis/basins/index.js";
 import { BASIN_ABSOLUTE_TOL_OF_WIDTH, BASIN_MAX_STEP_OF_HORIZON, BASIN_RELATIVE_TOL, instantiateBasinKernel } from "../dist/analysis/basins/kernel.js";
 import { labelName } from "../dist/analysis/basins/labels.js";
-import { BLOWUP_EFOLDING_FRACTION, BLOWUP_WINDOWS, WINDOW_EXIT_SLACK, buildFlowContext, followTrajectory } from "../dist/analysis/flow.js";
-import { tolerancesFor } from "../dist/analysis/integrate.js";
-import { flowTimeScale } from "../dist/analysis/trajectories.js";
-import { windowOf } from "../dist/analysis/window.js";
+import { BLOWUP_EFOLDING_FRACTION, BLOWUP_WINDOWS, WINDOW_EXIT_SLACK, buildFlowContext, followTrajectory } from "../dist/analysis/flow/follow.js";
+import { tolerancesFor } from "../dist/analysis/numeric/integrate.js";
+import { flowTimeScale } from "../dist/analysis/flow/trajectories.js";
+import { windowOf } from "../dist/analysis/numeric/window.js";
 import { createBasinPool } from "../dist/cli/pool.js";
 
 const TARGET_KERNEL_SPEEDUP = 1.2;

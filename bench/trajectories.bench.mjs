@@ -8,9 +8,9 @@ import { readFileSync } from "node:fs";
 import { COMPETITION_SPEC, specPath } from "./common.mjs";
 import { Solver } from "odex";
 import { prepareModel, findEquilibria } from "../dist/index.js";
-import { buildFlowContext, followTrajectory } from "../dist/analysis/flow.js";
-import { integrateFlow } from "../dist/analysis/integrate.js";
-import { windowOf } from "../dist/analysis/window.js";
+import { buildFlowContext, followTrajectory } from "../dist/analysis/flow/follow.js";
+import { integrateFlow } from "../dist/analysis/numeric/integrate.js";
+import { windowOf } from "../dist/analysis/numeric/window.js";
 
 /** Rounds per subject; the median of per-trajectory times shrugs off a round hit by GC or a context switch. */
 const ROUNDS = 7;

@@ -1,30 +1,30 @@
 import type { Diagnostic } from "../diagnostics/issue.js";
-import type { EquilibriumResult } from "./equilibria.js";
-import type { PortraitTrajectory, ScenarioResult } from "./trajectories.js";
-import type { CycleResult } from "./cycles.js";
-import type { SeparatrixResult } from "./manifolds.js";
+import type { EquilibriumResult } from "./phase/equilibria.js";
+import type { PortraitTrajectory, ScenarioResult } from "./flow/trajectories.js";
+import type { CycleResult } from "./flow/cycles.js";
+import type { SeparatrixResult } from "./flow/manifolds.js";
 import type { BasinResult } from "./basins/index.js";
-import type { NullclineResult } from "./nullclines.js";
-import type { RegionResult } from "./regions.js";
-import type { DirectionFieldResult } from "./field.js";
-import type { ParameterStudyResult, ThresholdResult } from "./thresholds.js";
-import type { InvasionConditionResult } from "./conditions.js";
-import type { OutcomeMapResult } from "./maps.js";
+import type { NullclineResult } from "./phase/nullclines.js";
+import type { RegionResult } from "./phase/regions.js";
+import type { DirectionFieldResult } from "./phase/field.js";
+import type { ParameterStudyResult, ThresholdResult } from "./parameters/study.js";
+import type { InvasionConditionResult } from "./parameters/invasion.js";
+import type { OutcomeMapResult } from "./parameters/maps.js";
 
-export type { EquilibriumResult } from "./equilibria.js";
-export type { PortraitTrajectory, ScenarioResult } from "./trajectories.js";
-export type { CycleResult } from "./cycles.js";
-export type { SeparatrixResult, ManifoldEnd } from "./manifolds.js";
+export type { EquilibriumResult } from "./phase/equilibria.js";
+export type { PortraitTrajectory, ScenarioResult } from "./flow/trajectories.js";
+export type { CycleResult } from "./flow/cycles.js";
+export type { SeparatrixResult, ManifoldEnd } from "./flow/manifolds.js";
 export type { BasinResult } from "./basins/index.js";
-export type { NullclineResult, NullclinePiece } from "./nullclines.js";
-export type { RegionResult } from "./regions.js";
-export type { DirectionFieldResult } from "./field.js";
-export type { ParameterStudyResult, ThresholdResult, OutcomeIntervalResult, MarginResult } from "./thresholds.js";
-export type { InvasionConditionResult } from "./conditions.js";
-export type { ClaimResult } from "./claims.js";
-export type { OutcomeMapResult } from "./maps.js";
-export type { Fate, TrajectoryPath } from "./flow.js";
-export type { StabilityResult, EquilibriumType, Complex } from "./stability.js";
+export type { NullclineResult, NullclinePiece } from "./phase/nullclines.js";
+export type { RegionResult } from "./phase/regions.js";
+export type { DirectionFieldResult } from "./phase/field.js";
+export type { ParameterStudyResult, ThresholdResult, OutcomeIntervalResult, MarginResult } from "./parameters/study.js";
+export type { InvasionConditionResult } from "./parameters/invasion.js";
+export type { ClaimResult } from "./checks/claims.js";
+export type { OutcomeMapResult } from "./parameters/maps.js";
+export type { Fate, TrajectoryPath } from "./flow/follow.js";
+export type { StabilityResult, EquilibriumType, Complex } from "./phase/stability.js";
 
 export interface AssumptionResult {
   index: number;
@@ -36,7 +36,7 @@ export interface AssumptionResult {
   rhs: number | null;
   holds: boolean | null;
   /** Where the condition changes truth across each studied parameter range, and the located threshold nearest to it. */
-  flips: import("./assumptions.js").AssumptionFlip[];
+  flips: import("./checks/assumptions.js").AssumptionFlip[];
 }
 
 /** Everything keel computes from one spec; serialised as results.json. */
@@ -61,7 +61,7 @@ export interface Results {
   basins: BasinResult;
   /** Every located threshold of every studied parameter (the flat list; details under conditions). */
   thresholds: ThresholdResult[];
-  claims: import("./claims.js").ClaimResult[];
+  claims: import("./checks/claims.js").ClaimResult[];
   conditions: {
     invasion: InvasionConditionResult[];
     studies: ParameterStudyResult[];

@@ -1,5 +1,5 @@
-import type { EquilibriumType } from "../analysis/stability.js";
-import type { Fate } from "../analysis/flow.js";
+import type { EquilibriumType } from "../analysis/phase/stability.js";
+import type { Fate } from "../analysis/flow/follow.js";
 import type { Results } from "../analysis/types.js";
 import { formatNumber } from "./format.js";
 

@@ -10,7 +10,7 @@ import { join } from "node:path";
 import { PDFArray, PDFDict, PDFDocument, PDFHexString, PDFName, PDFRawStream, PDFString } from "pdf-lib";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { findChromium } from "../../src/report/render/chromium.js";
-import { manifestText, type Manifest } from "../../src/report/archive.js";
+import { manifestText, type Manifest } from "../../src/report/archive/manifest.js";
 import { listFiles, makeWorkDir, PROJECT_ROOT, removeWorkDirs, runKeel, type CliResult } from "../helpers/cli.js";
 
 const chromium = findChromium(process.env);

@@ -2,7 +2,7 @@ import { readFileSync } from "node:fs";
 import { beforeAll, describe, expect, it } from "vitest";
 import { runPipeline, type PipelineOutput } from "../../src/pipeline.js";
 import { encodeRuns } from "../../src/analysis/basins/refine.js";
-import type { BranchResult } from "../../src/analysis/continuation/index.js";
+import type { BranchResult } from "../../src/analysis/parameters/continuation/index.js";
 import type { Results } from "../../src/analysis/types.js";
 import { buildFigures, type Figure } from "../../src/report/figures/index.js";
 import { BASIN_DRAW_MAX, buildBasinFigure, downsampleBasinGrid } from "../../src/report/figures/basins.js";

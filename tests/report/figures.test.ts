@@ -1,7 +1,7 @@
 import { existsSync, readFileSync } from "node:fs";
 import { beforeAll, describe, expect, it } from "vitest";
 import { runPipeline, type PipelineOutput } from "../../src/pipeline.js";
-import { classifyEquilibrium } from "../../src/analysis/stability.js";
+import { classifyEquilibrium } from "../../src/analysis/phase/stability.js";
 import type { EquilibriumResult, Results } from "../../src/analysis/types.js";
 import { buildFigures, type Figure, type PortraitExtras } from "../../src/report/figures/index.js";
 import { clipPolyline, type PlotFrame } from "../../src/report/figures/geometry.js";

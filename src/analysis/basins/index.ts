@@ -1,9 +1,9 @@
 import type { Model } from "../../model/types.js";
 import type { Diagnostic } from "../../diagnostics/issue.js";
-import type { EquilibriumResult } from "../equilibria.js";
-import type { CycleResult } from "../cycles.js";
-import type { Box } from "../window.js";
-import { findCaptureRegions } from "../capture.js";
+import type { EquilibriumResult } from "../phase/equilibria.js";
+import type { CycleResult } from "../flow/cycles.js";
+import type { Box } from "../numeric/window.js";
+import { findCaptureRegions } from "../flow/capture.js";
 import { BASIN_ABSOLUTE_TOL_OF_WIDTH, BASIN_RELATIVE_TOL, generateBasinKernel, type BasinTargets, type KernelSettings } from "./kernel.js";
 import { basinRefinement, encodeRuns, labelFractions, type BasinGrid, type BasinGridOptions } from "./refine.js";
 import { labelName, LABEL_BLOW_UP, LABEL_LEFT_WINDOW, LABEL_UNDECIDED } from "./labels.js";

@@ -1,9 +1,9 @@
 import type { Model } from "../../model/types.js";
 import { emitExpression, literal, PRELUDE } from "../../model/codegen.js";
-import type { Box } from "../window.js";
-import type { CaptureRegion } from "../capture.js";
+import type { Box } from "../numeric/window.js";
+import type { CaptureRegion } from "../flow/capture.js";
 import { LABEL_BLOW_UP, LABEL_LEFT_WINDOW, LABEL_UNDECIDED } from "./labels.js";
-import { ALGEBRAIC_HEADING, ALGEBRAIC_NEAR, ALGEBRAIC_STEPS, BLOWUP_EFOLDING_FRACTION, BLOWUP_WINDOWS, WINDOW_EXIT_SLACK } from "../flow.js";
+import { ALGEBRAIC_HEADING, ALGEBRAIC_NEAR, ALGEBRAIC_STEPS, BLOWUP_EFOLDING_FRACTION, BLOWUP_WINDOWS, WINDOW_EXIT_SLACK } from "../flow/follow.js";
 
 /**
  * The basin kernel: a Dormand–Prince 5(4) integrator generated for this model, with the

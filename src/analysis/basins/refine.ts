@@ -1,4 +1,4 @@
-import type { Box } from "../window.js";
+import type { Box } from "../numeric/window.js";
 import { labelName } from "./labels.js";
 
 /** Labels a batch of starts (x0, y0, x1, y1, ...). Implementations may fan out to workers; labels depend only on each start. */

@@ -1,6 +1,6 @@
 import { join } from "node:path";
 import { runAnalysis } from "./run.js";
-import { serializeResults } from "../../analysis/serialize.js";
+import { serializeResults } from "../../report/archive/serialize.js";
 import { inputError, makeProgress, readSpecFile, writeFileAtomic } from "../io.js";
 
 export interface AnalyzeOptions {

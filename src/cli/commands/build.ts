@@ -1,12 +1,12 @@
 import { join } from "node:path";
 import { createRequire } from "node:module";
 import { runAnalysis } from "./run.js";
-import { serializeResults } from "../../analysis/serialize.js";
+import { serializeResults } from "../../report/archive/serialize.js";
 import { buildDossier } from "../../report/dossier.js";
 import { findChromium } from "../../report/render/chromium.js";
 import { renderPdf } from "../../report/render/pdf.js";
 import { toStandaloneSvg } from "../../report/render/svg.js";
-import { embedArchive, manifestText, sha256, type Manifest } from "../../report/archive.js";
+import { embedArchive, manifestText, sha256, type Manifest } from "../../report/archive/manifest.js";
 import { existsSync, readFileSync } from "node:fs";
 import { dirname } from "node:path";
 import { fileURLToPath } from "node:url";

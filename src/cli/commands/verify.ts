@@ -1,8 +1,8 @@
 import { existsSync, readFileSync, statSync } from "node:fs";
 import { join } from "node:path";
-import { EMBEDDED, manifestText, readEmbedded, sha256, type Manifest } from "../../report/archive.js";
-import { compareResults, VERIFY_ABS_TOL, VERIFY_REL_TOL } from "../../report/compare.js";
-import { serializeResults } from "../../analysis/serialize.js";
+import { EMBEDDED, manifestText, readEmbedded, sha256, type Manifest } from "../../report/archive/manifest.js";
+import { compareResults, VERIFY_ABS_TOL, VERIFY_REL_TOL } from "../../report/archive/compare.js";
+import { serializeResults } from "../../report/archive/serialize.js";
 import { hashSpec } from "../../spec/hash.js";
 import { CliExit, EXIT, makeProgress } from "../io.js";
 import { runAnalysis } from "./run.js";

@@ -1,6 +1,6 @@
 import { formatUnit } from "../format.js";
 import type { ParameterStudyResult, Results } from "../../analysis/types.js";
-import type { BranchResult } from "../../analysis/continuation/index.js";
+import type { BranchResult } from "../../analysis/parameters/continuation/index.js";
 import type { NormalizedParameter, NormalizedSpec } from "../../spec/types.js";
 import { formatNumber } from "../format.js";
 import { textWidthPx } from "../render/textWidth.js";

@@ -1,6 +1,6 @@
 import type { Results } from "../../analysis/types.js";
-import type { DirectionFieldResult } from "../../analysis/field.js";
-import type { NullclinePiece, NullclineResult } from "../../analysis/nullclines.js";
+import type { DirectionFieldResult } from "../../analysis/phase/field.js";
+import type { NullclinePiece, NullclineResult } from "../../analysis/phase/nullclines.js";
 import type { NormalizedSpec } from "../../spec/types.js";
 import { drawablePieces, headingOf, markerBox, placeLabels, plotLength, pointAlong, type PlotFrame, type Polyline } from "./geometry.js";
 import { textWidthPx } from "../render/textWidth.js";

@@ -1,0 +1,82 @@
+import type { Model } from "../../model/types.js";
+import type { AssumptionResult } from "../types.js";
+
+/** Each assumption, with its machine-checkable condition evaluated at the nominal values. */
+export function evaluateAssumptions(model: Model): AssumptionResult[] {
+  return model.spec.assumptions.map((a, index) => {
+    const condition = model.conditions.find((c) => c.assumption === index);
+    if (!condition) return { index, text: a.text, condition: null, tex: null, lhs: null, rhs: null, holds: null, flips: [] };
+    const { lhs, rhs, holds } = condition.evaluate(model.parameterValues);
+    const finite = Number.isFinite(lhs) && Number.isFinite(rhs);
+    return {
+      index,
+      text: a.text,
+      condition: condition.text,
+      tex: condition.tex,
+      lhs: Number.isFinite(lhs) ? lhs : null,
+      rhs: Number.isFinite(rhs) ? rhs : null,
+      holds: finite ? holds : null,
+      flips: [],
+    };
+  });
+}
+
+export interface AssumptionFlip {
+  parameter: string;
+  /** Where the condition changes truth, the other parameters at their nominal values. */
+  value: number;
+  nearestThreshold: { value: number; kind: string; decisive: boolean } | null;
+  relativeDifference: number | null;
+  /** The condition flips where a located threshold lies (to ASSUMPTION_MATCH_TOL). */
+  coincides: boolean;
+}
+
+/** Samples per range in the search for where a condition flips. */
+const FLIP_SAMPLES = 400;
+/** A condition's flip coincides with a located threshold when they agree to this, relatively. */
+export const ASSUMPTION_MATCH_TOL = 1e-6;
+
+/** Where each machine-checkable assumption flips across each studied range, beside the located thresholds. */
+export function findAssumptionFlips(
+  model: Model,
+  studies: { parameter: string; range: [number, number]; thresholds: { value: number; kind: string; decisive: boolean }[] }[],
+): AssumptionFlip[][] {
+  return model.spec.assumptions.map((_, index) => {
+    const condition = model.conditions.find((c) => c.assumption === index);
+    if (!condition) return [];
+    const flips: AssumptionFlip[] = [];
+    for (const study of studies) {
+      const j = model.parameterNames.indexOf(study.parameter);
+      const p = Float64Array.from(model.parameterValues);
+      const g = (v: number) => { p[j] = v; const r = condition.evaluate(p); return r.lhs - r.rhs; };
+      const [lo, hi] = study.range;
+      let prevV = lo, prevG = g(lo);
+      for (let k = 1; k <= FLIP_SAMPLES; k++) {
+        const v = lo + ((hi - lo) * k) / FLIP_SAMPLES;
+        const gv = g(v);
+        if (Number.isFinite(prevG) && Number.isFinite(gv) && prevG * gv < 0) {
+          let a = prevV, b = v, ga = prevG;
+          for (let it = 0; it < 200; it++) {
+            const m = 0.5 * (a + b);
+            if (m === a || m === b) break;
+            const gm = g(m);
+            if (gm * ga > 0) { a = m; ga = gm; } else b = m;
+          }
+          const value = 0.5 * (a + b);
+          const nearest = [...study.thresholds].sort((x, y) => Math.abs(x.value - value) - Math.abs(y.value - value))[0] ?? null;
+          const relativeDifference = nearest ? Math.abs(nearest.value - value) / Math.max(Math.abs(value), 1e-300) : null;
+          flips.push({
+            parameter: study.parameter,
+            value,
+            nearestThreshold: nearest ? { value: nearest.value, kind: nearest.kind, decisive: nearest.decisive } : null,
+            relativeDifference,
+            coincides: relativeDifference !== null && relativeDifference <= ASSUMPTION_MATCH_TOL,
+          });
+        }
+        // a sample exactly on the flip (g = 0) is stepped over: the sign change is seen from the next sample
+        if (gv !== 0) { prevV = v; prevG = gv; }
+      }
+    }
+    return flips;
+  });
+}

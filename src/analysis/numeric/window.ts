@@ -1,0 +1,29 @@
+import type { Model } from "../../model/types.js";
+
+/** The analysis window as arrays in state order. */
+export interface Box {
+  lo: number[];
+  hi: number[];
+  width: number[];
+}
+
+export function windowOf(model: Model): Box {
+  const lo = model.stateNames.map((n) => model.spec.window[n][0]);
+  const hi = model.stateNames.map((n) => model.spec.window[n][1]);
+  return { lo, hi, width: lo.map((l, k) => hi[k] - l) };
+}
+
+/** max |f_i| over a 25 × 25 grid of the window: the scale residuals are measured against; 1 where f_i vanishes there. */
+export function componentScales(model: Model, box: Box): number[] {
+  const y = new Float64Array(2);
+  const f = new Float64Array(2);
+  const scale = [0, 0];
+  const n = 24;
+  for (let a = 0; a <= n; a++) for (let b = 0; b <= n; b++) {
+    y[0] = box.lo[0] + (box.width[0] * a) / n;
+    y[1] = box.lo[1] + (box.width[1] * b) / n;
+    model.rhs(y, f);
+    for (let k = 0; k < 2; k++) if (Number.isFinite(f[k])) scale[k] = Math.max(scale[k], Math.abs(f[k]));
+  }
+  return scale.map((s) => (s > 0 ? s : 1));
+}

@@ -1,0 +1,149 @@
+import type { Diagnostic } from "../../../diagnostics/issue.js";
+import { classifyEquilibrium, CLASSIFY_REL_TOL, type EquilibriumType, type StabilityResult } from "../../phase/stability.js";
+import type { TracedBranch, TracedPoint } from "./branch.js";
+import { locateBetween, pointAlong } from "./locate.js";
+import { currentResidual, determinantAt, evaluate, jacobianRows, traceAt, type ContinuationSystem, type CurvePoint } from "./system.js";
+
+/**
+ * Test functions along a branch and the events where they change sign between consecutive points:
+ *   det J: a fold when the tangent's p-component turns there too, else a branch point;
+ *   trace J with det J > 0 on both sides: a Hopf point;
+ *   x_k − bound, for each finite state bound: the branch crosses a bound of the feasible region.
+ */
+export type EventKind = "fold" | "branch-point" | "hopf" | "bound";
+
+export interface LocatedEvent {
+  kind: EventKind;
+  branch: number;
+  z: CurvePoint;
+  /** Tangent at z, oriented along the branch. */
+  t: Float64Array;
+  /** Scaled residual max |f_i| / fScale_i at z. */
+  residual: number;
+  /** |test function| at z relative to its own scale (see testScale). */
+  testResidual: number;
+  /** Equilibrium types just before and just after z along the branch. */
+  before: EquilibriumType;
+  after: EquilibriumType;
+  /** For "bound": the state index and the bound value it crosses. */
+  bound: { state: number; value: number } | null;
+}
+
+/** Along-branch offset (scaled arclength) at which the types on either side are read: far above the location error (1e-13), far below the spacing of distinct events. */
+const SIDE_OFFSET = 1e-5;
+
+interface Bracket {
+  kind: EventKind;
+  /** Consecutive points with nonzero test values of opposite sign (other points between them are exact zeros). */
+  a: number;
+  b: number;
+  /** A point between a and b where the test function is zero (or within rounding noise of it). */
+  exact: number | null;
+  bound: { state: number; value: number } | null;
+}
+
+type SignChange = Pick<Bracket, "a" | "b" | "exact">;
+
+/** Where values change sign along the branch, skipping exact zeros (and non-finite values). */
+function signChanges(values: number[]): SignChange[] {
+  const out: SignChange[] = [];
+  let last = -1;
+  values.forEach((v, k) => {
+    if (v === 0 || !Number.isFinite(v)) return;
+    if (last >= 0 && Math.sign(v) !== Math.sign(values[last])) {
+      const zero = values.findIndex((w, i) => i > last && i < k && w === 0);
+      out.push({ a: last, b: k, exact: zero >= 0 ? zero : null });
+    }
+    last = k;
+  });
+  return out;
+}
+
+/**
+ * A test value within CLASSIFY_REL_TOL of its scale is rounding noise (stability.ts calls it zero):
+ * a branch of centres (trace ≡ 0, as in a conservative model) must not show a Hopf point at every
+ * sign flip of the noise. Such values count as exact zeros, which signChanges steps over.
+ */
+const quiet = (value: number, scale: number) => (Math.abs(value) <= CLASSIFY_REL_TOL * scale ? 0 : value);
+
+function findBrackets(sys: ContinuationSystem, branch: TracedBranch): Bracket[] {
+  const pts = branch.points;
+  const brackets: Bracket[] = [];
+  for (const change of signChanges(pts.map((p) => quiet(p.determinant, p.determinantScale)))) {
+    const turning = pts[change.a].t[2] * pts[change.b].t[2] < 0;
+    brackets.push({ kind: turning ? "fold" : "branch-point", ...change, bound: null });
+  }
+  for (const change of signChanges(pts.map((p) => quiet(p.trace, p.traceScale)))) {
+    if (pts[change.a].determinant > 0 && pts[change.b].determinant > 0) brackets.push({ kind: "hopf", ...change, bound: null });
+  }
+  sys.model.spec.states.forEach((state, k) => {
+    for (const value of [state.min, state.max]) {
+      if (!Number.isFinite(value)) continue;
+      for (const change of signChanges(pts.map((p) => p.z[k] - value))) brackets.push({ kind: "bound", ...change, bound: { state: k, value } });
+    }
+  });
+  return brackets;
+}
+
+function spectralRadius(s: StabilityResult): number {
+  return Math.max(...s.eigenvalues.map((e) => Math.hypot(e.re, e.im)));
+}
+
+/** The test function of a bracket, and a scale for it that a change of units leaves fair. */
+function testFunction(sys: ContinuationSystem, bracket: Bracket): { g: (z: CurvePoint) => number; scale: (z: CurvePoint) => number } {
+  if (bracket.kind === "hopf") {
+    return {
+      g: (z) => traceAt(sys, z),
+      scale: (z) => { const s = classifyEquilibrium(jacobianRows(sys, z)); const [[a], [, d]] = s.jacobian; return Math.max(Math.abs(a), Math.abs(d), spectralRadius(s)) || 1; },
+    };
+  }
+  if (bracket.kind === "bound") {
+    const { state, value } = bracket.bound!;
+    return { g: (z) => (z[state] - value) / sys.scale[state], scale: () => 1 };
+  }
+  return {
+    g: (z) => determinantAt(sys, z),
+    scale: (z) => { const s = classifyEquilibrium(jacobianRows(sys, z)); const [[a, b], [c, d]] = s.jacobian; return Math.max(Math.abs(a * d), Math.abs(b * c), spectralRadius(s) ** 2) || 1; },
+  };
+}
+
+function typeAt(sys: ContinuationSystem, z: ArrayLike<number>): EquilibriumType {
+  return classifyEquilibrium(jacobianRows(sys, z)).type;
+}
+
+/** Types on either side of z along t; falls back to the bracket's end points. */
+function sides(sys: ContinuationSystem, z: CurvePoint, t: Float64Array, a: TracedPoint, b: TracedPoint): [EquilibriumType, EquilibriumType] {
+  const chart = { z, t };
+  const before = pointAlong(sys, chart, -SIDE_OFFSET);
+  const after = pointAlong(sys, chart, SIDE_OFFSET);
+  return [typeAt(sys, before ?? a.z), typeAt(sys, after ?? b.z)];
+}
+
+/** Every event of one branch, located (see locate.ts) and described. */
+export function locateEvents(sys: ContinuationSystem, branch: TracedBranch, branchIndex: number, diagnostics: Diagnostic[]): LocatedEvent[] {
+  const pts = branch.points;
+  const events: LocatedEvent[] = [];
+  for (const bracket of findBrackets(sys, branch)) {
+    const { g, scale } = testFunction(sys, bracket);
+    const a = pts[bracket.a];
+    const b = pts[bracket.b];
+    const exact = bracket.exact === null ? null : pts[bracket.exact];
+    // a point whose test value was only quieted to zero is no event: locate across it
+    const located = exact && g(exact.z) === 0 ? { z: exact.z, t: exact.t, value: 0 } : locateBetween(sys, a, b, g);
+    if (!located) {
+      const name = sys.model.parameterNames[sys.parameterIndex];
+      diagnostics.push({
+        severity: "warning", stage: "continuation",
+        message: `a sign change of the ${bracket.kind} test function on branch ${branchIndex} between ${name} = ${a.z[2]} and ${b.z[2]} could not be located`,
+      });
+      continue;
+    }
+    if (bracket.kind === "hopf" && !(determinantAt(sys, located.z) > 0)) continue;
+    evaluate(sys, located.z);
+    const residual = currentResidual(sys);
+    const testResidual = Math.abs(g(located.z)) / scale(located.z);
+    const [before, after] = sides(sys, located.z, located.t, a, b);
+    events.push({ kind: bracket.kind, branch: branchIndex, z: located.z, t: located.t, residual, testResidual, before, after, bound: bracket.bound });
+  }
+  return events;
+}

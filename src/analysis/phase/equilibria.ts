@@ -1,0 +1,246 @@
+import type { Model } from "../../model/types.js";
+import type { Diagnostic } from "../../diagnostics/issue.js";
+import { classifyEquilibrium, type StabilityResult } from "./stability.js";
+import { componentScales, windowOf, type Box } from "../numeric/window.js";
+
+export interface EquilibriumResult extends StabilityResult {
+  id: string;
+  point: Record<string, number>;
+  /** True when some state sits at a bound of the feasible region (e.g. a population at 0). */
+  onBoundary: boolean;
+  /** States that sit at a bound. */
+  boundaryStates: string[];
+  /** max_i |f_i(x*)| / (scale of f_i over the window), after polishing. */
+  residual: number;
+}
+
+export interface EquilibriumOptions {
+  /** Interior multistart grid is gridSize × gridSize. */
+  gridSize: number;
+  /** Samples per window edge for the one-dimensional boundary searches. */
+  edgeSamples: number;
+}
+
+export const DEFAULT_EQUILIBRIUM_OPTIONS: EquilibriumOptions = { gridSize: 16, edgeSamples: 400 };
+
+/** Accept a root when every residual, relative to that component's scale over the window, is below this. */
+export const ROOT_RESIDUAL_TOL = 1e-9;
+/** Two roots are one when they differ by less than this fraction of the window in every state. */
+export const DEDUP_REL_TOL = 1e-6;
+/** A root may lie this fraction of the window outside it and still count (then it is clipped). */
+export const WINDOW_SLACK = 1e-9;
+/** A coordinate this close to a bound (fraction of the window) is put exactly on it, if the residual stays small. */
+export const SNAP_REL_TOL = 1e-10;
+/** An edge is invariant for a state when its own derivative there stays below this fraction of its scale. */
+export const INVARIANT_EDGE_TOL = 1e-13;
+/** Newton may wander this far outside the window (fraction of its width) before the start is dropped. */
+const NEWTON_ROAM = 0.5;
+const NEWTON_MAX_ITERATIONS = 80;
+/** Beyond this count we report a suspected continuum of equilibria instead of listing more. */
+const MAX_EQUILIBRIA = 50;
+
+interface Workspace {
+  f: Float64Array;
+  j: Float64Array;
+  y: Float64Array;
+}
+
+function scaledResidual(model: Model, x: ArrayLike<number>, fScale: number[], ws: Workspace): number {
+  ws.y[0] = x[0]; ws.y[1] = x[1];
+  model.rhs(ws.y, ws.f);
+  const r0 = Math.abs(ws.f[0]) / fScale[0];
+  const r1 = Math.abs(ws.f[1]) / fScale[1];
+  return Number.isFinite(r0) && Number.isFinite(r1) ? Math.max(r0, r1) : Infinity;
+}
+
+/** Damped Newton with backtracking on the scaled residual; returns the root or null. */
+function dampedNewton(model: Model, start: [number, number], box: Box, fScale: number[], ws: Workspace): [number, number] | null {
+  let x: [number, number] = [start[0], start[1]];
+  let r = scaledResidual(model, x, fScale, ws);
+  if (!Number.isFinite(r)) return null;
+  let stalled = 0;
+  for (let it = 0; it < NEWTON_MAX_ITERATIONS; it++) {
+    ws.y[0] = x[0]; ws.y[1] = x[1];
+    model.rhs(ws.y, ws.f);
+    model.jacobianAt(ws.y, ws.j);
+    const [f0, f1] = [ws.f[0], ws.f[1]];
+    const [a, b, c, d] = [ws.j[0], ws.j[1], ws.j[2], ws.j[3]];
+    const det = a * d - b * c;
+    // 2 × 2 solve by Cramer's rule: allocation-free in the inner loop
+    if (!Number.isFinite(det) || det === 0) return r < ROOT_RESIDUAL_TOL ? x : null;
+    const dx0 = -(d * f0 - b * f1) / det;
+    const dx1 = -(-c * f0 + a * f1) / det;
+    let lambda = 1;
+    let accepted = false;
+    while (lambda >= 1 / 4096) {
+      const trial: [number, number] = [x[0] + lambda * dx0, x[1] + lambda * dx1];
+      const rt = scaledResidual(model, trial, fScale, ws);
+      if (rt < r * (1 - 1e-4 * lambda) || (r < ROOT_RESIDUAL_TOL * 1e-3 && rt <= r)) {
+        x = trial;
+        const improved = rt < r;
+        r = rt;
+        accepted = improved;
+        break;
+      }
+      lambda /= 2;
+    }
+    for (let k = 0; k < 2; k++) {
+      const lo = box.lo[k] - NEWTON_ROAM * box.width[k];
+      const hi = box.hi[k] + NEWTON_ROAM * box.width[k];
+      if (!(x[k] >= lo && x[k] <= hi)) return null;
+    }
+    const step = Math.max(Math.abs(dx0) / box.width[0], Math.abs(dx1) / box.width[1]);
+    if (r < ROOT_RESIDUAL_TOL && (step < 1e-15 || !accepted)) {
+      // converged; keep polishing while it still helps, to reach full precision
+      if (++stalled >= 2) return x;
+    } else if (!accepted) return r < ROOT_RESIDUAL_TOL ? x : null;
+  }
+  return r < ROOT_RESIDUAL_TOL ? x : null;
+}
+
+/** Roots of a sampled function of one variable: sign changes bisected, near-touching minima kept as starts. */
+function rootsAlong(g: (t: number) => number, lo: number, hi: number, samples: number): number[] {
+  const ts: number[] = [];
+  const gs: number[] = [];
+  for (let k = 0; k <= samples; k++) {
+    const t = lo + ((hi - lo) * k) / samples;
+    ts.push(t);
+    gs.push(g(t));
+  }
+  const roots: number[] = [];
+  for (let k = 0; k <= samples; k++) {
+    if (gs[k] === 0) roots.push(ts[k]);
+    if (k < samples && Number.isFinite(gs[k]) && Number.isFinite(gs[k + 1]) && gs[k] * gs[k + 1] < 0) {
+      let a = ts[k], b = ts[k + 1], ga = gs[k];
+      for (let it = 0; it < 200 && b - a > 0; it++) {
+        const m = 0.5 * (a + b);
+        if (m === a || m === b) break;
+        const gm = g(m);
+        if (gm === 0) { a = b = m; break; }
+        if (gm * ga < 0) b = m; else { a = m; ga = gm; }
+      }
+      roots.push(0.5 * (a + b));
+    }
+    // a local minimum of |g| that nearly touches zero: a double root bisection cannot see
+    if (k > 0 && k < samples && Math.abs(gs[k]) < Math.abs(gs[k - 1]) && Math.abs(gs[k]) < Math.abs(gs[k + 1])) roots.push(ts[k]);
+  }
+  return roots;
+}
+
+function boundaryStarts(model: Model, box: Box, fScale: number[], options: EquilibriumOptions): [number, number][] {
+  const starts: [number, number][] = [];
+  const y = new Float64Array(2);
+  const f = new Float64Array(2);
+  const lines: { fixed: number; value: number }[] = [];
+  for (let i = 0; i < 2; i++) {
+    lines.push({ fixed: i, value: box.lo[i] }, { fixed: i, value: box.hi[i] });
+    if (box.lo[i] < 0 && box.hi[i] > 0) lines.push({ fixed: i, value: 0 });
+  }
+  for (const { fixed, value } of lines) {
+    const free = 1 - fixed;
+    const at = (t: number) => {
+      y[fixed] = value;
+      y[free] = t;
+      model.rhs(y, f);
+    };
+    for (const component of [0, 1]) {
+      const g = (t: number) => { at(t); return f[component] / fScale[component]; };
+      for (const t of rootsAlong(g, box.lo[free], box.hi[free], options.edgeSamples)) {
+        const p: [number, number] = [0, 0];
+        p[fixed] = value;
+        p[free] = t;
+        starts.push(p);
+      }
+    }
+  }
+  return starts;
+}
+
+
+/** Snap coordinates that sit at a bound to the bound exactly, when the residual allows. */
+function snapToBounds(model: Model, x: [number, number], box: Box, fScale: number[], ws: Workspace): [number, number] {
+  const out: [number, number] = [x[0], x[1]];
+  for (let k = 0; k < 2; k++) {
+    for (const bound of [box.lo[k], box.hi[k], 0]) {
+      if (Math.abs(out[k] - bound) <= SNAP_REL_TOL * box.width[k] && out[k] !== bound) {
+        const trial: [number, number] = [out[0], out[1]];
+        trial[k] = bound;
+        if (scaledResidual(model, trial, fScale, ws) <= Math.max(scaledResidual(model, out, fScale, ws), ROOT_RESIDUAL_TOL * 1e-3)) out[k] = bound;
+      }
+    }
+    out[k] = Math.min(box.hi[k], Math.max(box.lo[k], out[k]));
+  }
+  return out;
+}
+
+/**
+ * Every equilibrium in the window: damped Newton from a deterministic multistart set (interior
+ * grid, window corners, points on each edge and axis, and the roots of each component along each
+ * edge), deduplicated in window-scaled coordinates, polished, snapped to bounds.
+ * Sorted by the first state ascending, then the second (each compared to DEDUP_REL_TOL of the
+ * window), and numbered E1, E2, ... in that order.
+ */
+export function findEquilibria(
+  model: Model,
+  options: EquilibriumOptions = DEFAULT_EQUILIBRIUM_OPTIONS,
+  diagnostics: Diagnostic[] = [],
+): EquilibriumResult[] {
+  const box = windowOf(model);
+  const fScale = componentScales(model, box);
+  const ws: Workspace = { f: new Float64Array(2), j: new Float64Array(4), y: new Float64Array(2) };
+  const starts: [number, number][] = [];
+  const g = options.gridSize;
+  for (let a = 0; a <= g; a++) for (let b = 0; b <= g; b++) {
+    starts.push([box.lo[0] + (box.width[0] * a) / g, box.lo[1] + (box.width[1] * b) / g]);
+  }
+  // offset grid: cell centres, so symmetric models do not put every start on a nullcline
+  for (let a = 0; a < g; a++) for (let b = 0; b < g; b++) {
+    starts.push([box.lo[0] + (box.width[0] * (a + 0.5)) / g, box.lo[1] + (box.width[1] * (b + 0.5)) / g]);
+  }
+  starts.push(...boundaryStarts(model, box, fScale, options));
+
+  const found: { x: [number, number]; residual: number }[] = [];
+  for (const start of starts) {
+    const root = dampedNewton(model, start, box, fScale, ws);
+    if (!root) continue;
+    const inside = [0, 1].every((k) => root[k] >= box.lo[k] - WINDOW_SLACK * box.width[k] && root[k] <= box.hi[k] + WINDOW_SLACK * box.width[k]);
+    if (!inside) continue;
+    const x = snapToBounds(model, root, box, fScale, ws);
+    const residual = scaledResidual(model, x, fScale, ws);
+    if (!(residual < ROOT_RESIDUAL_TOL)) continue;
+    const same = found.find((e) => Math.abs(e.x[0] - x[0]) <= DEDUP_REL_TOL * box.width[0] && Math.abs(e.x[1] - x[1]) <= DEDUP_REL_TOL * box.width[1]);
+    if (same) {
+      if (residual < same.residual) { same.x = x; same.residual = residual; }
+      continue;
+    }
+    found.push({ x, residual });
+  }
+
+  found.sort((p, q) => {
+    for (let k = 0; k < 2; k++) {
+      const diff = p.x[k] - q.x[k];
+      if (Math.abs(diff) > DEDUP_REL_TOL * box.width[k]) return diff;
+    }
+    return 0;
+  });
+  if (found.length > MAX_EQUILIBRIA) {
+    diagnostics.push({ severity: "warning", stage: "equilibria", message: `more than ${MAX_EQUILIBRIA} equilibria found: the model may have a curve of equilibria; only the first ${MAX_EQUILIBRIA} are listed` });
+    found.length = MAX_EQUILIBRIA;
+  }
+
+  const states = model.spec.states;
+  return found.map((e, k) => {
+    ws.y[0] = e.x[0]; ws.y[1] = e.x[1];
+    model.jacobianAt(ws.y, ws.j);
+    const jacobian = [[ws.j[0], ws.j[1]], [ws.j[2], ws.j[3]]];
+    const boundaryStates = states.filter((s, i) => e.x[i] === s.min || e.x[i] === s.max).map((s) => s.name);
+    return {
+      id: `E${k + 1}`,
+      point: Object.fromEntries(model.stateNames.map((n, i) => [n, e.x[i] + 0])),
+      onBoundary: boundaryStates.length > 0,
+      boundaryStates,
+      residual: e.residual,
+      ...classifyEquilibrium(jacobian),
+    };
+  });
+}

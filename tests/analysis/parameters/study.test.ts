@@ -1,0 +1,274 @@
+import { evaluate } from "mathjs";
+import { describe, expect, it } from "vitest";
+import type { ParameterStudyResult, Results } from "../../../src/analysis/types.js";
+import { runPipeline } from "../../../src/pipeline.js";
+
+/** The issue's requirement: thresholds located to 1e-10 relative in the parameter. */
+const THRESHOLD_REL_TOL = 1e-10;
+/** ... and symbolic conditions equal to the numerical thresholds to 1e-9 relative. */
+const SYMBOLIC_REL_TOL = 1e-9;
+/** Equilibria against closed forms, relative to the window: Newton converges to ~1e-14. */
+const POINT_REL_TOL = 1e-9;
+
+const relative = (value: number, reference: number) => Math.abs(value - reference) / Math.abs(reference);
+
+function pipeline(specText: string): Results {
+  const out = runPipeline(specText);
+  if (!out.ok) throw new Error(JSON.stringify(out.issues));
+  return out.value.results;
+}
+
+function study(results: Results, parameter: string): ParameterStudyResult {
+  const s = results.conditions.studies.find((q) => q.parameter === parameter);
+  expect(s, `study of ${parameter}`).toBeDefined();
+  return s!;
+}
+
+const decisive = (s: ParameterStudyResult) => s.thresholds.filter((t) => t.decisive);
+
+// ---------------------------------------------------------------- competition
+
+// Two-species Lotka–Volterra competition (Murray, Mathematical Biology I, 3rd ed., section 3.5;
+// Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., section 6.4; from memory):
+// N' = r1 N (1 − (N + a12 S)/K1), S' = r2 S (1 − (S + a21 N)/K2). The four cases:
+//  a12 < K1/K2 and a21 < K2/K1: the coexistence point ((K1 − a12 K2)/(1 − a12 a21), (K2 − a21 K1)/(1 − a12 a21))
+//    is the one stable equilibrium;
+//  a12 < K1/K2, a21 > K2/K1: N wins, (K1, 0);  a12 > K1/K2, a21 < K2/K1: S wins, (0, K2);
+//  both above: (K1, 0) and (0, K2) are both stable, and the coexistence point is a saddle between them.
+// Values are invented for the tests: K1/K2 = 1.25, K2/K1 = 0.8.
+const BASE = { r1: 1.1, r2: 0.7, K1: 100, K2: 80 };
+const A12_THRESHOLD = BASE.K1 / BASE.K2;
+const A21_THRESHOLD = BASE.K2 / BASE.K1;
+const SIZE = 120;
+/**
+ * Of the study's 12 outcome samples lo + (hi − lo)(k + 1/2)/12, the tenth is 0.5 + 2 · 3/8 = 1.25 = K1/K2
+ * exactly: there (0, K2) is non-hyperbolic and nothing is stable, a degenerate point that must not
+ * become an outcome interval of its own.
+ */
+const A12_RANGE: [number, number] = [0.5, 2.5];
+
+function competitionSpec(a12: number, a21: number): string {
+  return JSON.stringify({
+    keel: 1,
+    id: "competition-thresholds",
+    title: "Lotka–Volterra competition (invented values)",
+    time: { unit: "year" },
+    states: [{ name: "N", min: 0, max: SIZE }, { name: "S", min: 0, max: SIZE }],
+    parameters: [
+      ...Object.entries(BASE).map(([name, value]) => ({ name, value })),
+      { name: "a12", value: a12, range: A12_RANGE },
+      { name: "a21", value: a21, range: [0.4, 1.3] },
+    ],
+    equations: { N: "r1*N*(1 - (N + a12*S)/K1)", S: "r2*S*(1 - (S + a21*N)/K2)" },
+    window: { N: [0, SIZE], S: [0, SIZE] },
+    scenarios: [
+      { name: "n-heavy", initial: { N: 110, S: 5 }, horizon: 200 },
+      { name: "s-heavy", initial: { N: 5, S: 110 }, horizon: 200 },
+    ],
+    analysis: { basins: { resolution: 64, coarse: 16 }, parameters: ["a12"] },
+  });
+}
+
+interface CompetitionCase {
+  name: string;
+  a12: number;
+  a21: number;
+  /** The textbook's stable equilibria at these values. */
+  stable: (a12: number, a21: number) => [number, number][];
+  /** Outcome of the a12 study below and above K1/K2 (a21 fixed): attractors, and the two scenarios' fates. */
+  below: { attractors: string[]; fates: [string, string] };
+  above: { attractors: string[]; fates: [string, string] };
+}
+
+const coexistencePoint = (a12: number, a21: number): [number, number] =>
+  [(BASE.K1 - a12 * BASE.K2) / (1 - a12 * a21), (BASE.K2 - a21 * BASE.K1) / (1 - a12 * a21)];
+
+// a21 below K2/K1: coexistence turns into "S wins" as a12 passes K1/K2; above it, "N wins" turns into bistability
+const WEAK_A21 = {
+  below: { attractors: ["coexistence"], fates: ["reaches coexistence", "reaches coexistence"] as [string, string] },
+  above: { attractors: ["S only"], fates: ["reaches S only", "reaches S only"] as [string, string] },
+};
+const STRONG_A21 = {
+  below: { attractors: ["N only"], fates: ["reaches N only", "reaches N only"] as [string, string] },
+  above: { attractors: ["N only", "S only"], fates: ["reaches N only", "reaches S only"] as [string, string] },
+};
+
+const CASES: CompetitionCase[] = [
+  { name: "coexistence", a12: 0.6, a21: 0.5, stable: (u, v) => [coexistencePoint(u, v)], ...WEAK_A21 },
+  { name: "N wins", a12: 0.6, a21: 1.2, stable: () => [[BASE.K1, 0]], ...STRONG_A21 },
+  { name: "S wins", a12: 1.6, a21: 0.5, stable: () => [[0, BASE.K2]], ...WEAK_A21 },
+  { name: "bistable", a12: 1.6, a21: 1.2, stable: () => [[0, BASE.K2], [BASE.K1, 0]], ...STRONG_A21 },
+];
+
+describe("studyParameter(competition, a12): the four textbook outcomes", () => {
+  for (const c of CASES) {
+    const side = c.a12 < A12_THRESHOLD ? "below" : "above";
+    it(`analyze(competition, ${c.name}: a12 = ${c.a12}, a21 = ${c.a21}) has the textbook's stable equilibria and the transcritical at a12 = K1/K2 with the outcome on each side`, () => {
+      expect(c.a12 < A12_THRESHOLD).toBe(c.name === "coexistence" || c.name === "N wins");
+      expect(c.a21 < A21_THRESHOLD).toBe(c.name === "coexistence" || c.name === "S wins");
+      const results = pipeline(competitionSpec(c.a12, c.a21));
+
+      // stable equilibria: exactly the textbook's, in (N, S) order
+      const stable = results.equilibria.filter((e) => e.stable === true).map((e) => [e.point.N, e.point.S]);
+      const expected = c.stable(c.a12, c.a21);
+      expect(stable, JSON.stringify(stable)).toHaveLength(expected.length);
+      for (const [N, S] of expected) {
+        expect(stable.some(([n, s]) => Math.abs(n - N) / SIZE <= POINT_REL_TOL && Math.abs(s - S) / SIZE <= POINT_REL_TOL), `stable (${N}, ${S})`).toBe(true);
+      }
+      if (c.name === "bistable") {
+        const [N, S] = coexistencePoint(c.a12, c.a21);
+        const interior = results.equilibria.filter((e) => e.point.N > 0 && e.point.S > 0);
+        expect(interior).toHaveLength(1);
+        expect(interior[0].type).toBe("saddle");
+        expect(Math.abs(interior[0].point.N - N) / SIZE).toBeLessThanOrEqual(POINT_REL_TOL);
+        expect(Math.abs(interior[0].point.S - S) / SIZE).toBeLessThanOrEqual(POINT_REL_TOL);
+      }
+
+      // the a12 study: one decisive transcritical, at K1/K2, where N's invasion rate at (0, K2) vanishes
+      const s = study(results, "a12");
+      expect(decisive(s).map((t) => t.kind)).toEqual(["transcritical"]);
+      const t = decisive(s)[0];
+      expect(relative(t.value, A12_THRESHOLD)).toBeLessThanOrEqual(THRESHOLD_REL_TOL);
+      expect(t.bound).toEqual({ state: "N", value: 0 });
+      expect(Math.abs(t.point.S - BASE.K2) / SIZE).toBeLessThanOrEqual(POINT_REL_TOL);
+
+      // two intervals split at the threshold, each stated as an inequality
+      expect(s.intervals).toHaveLength(2);
+      const [lo, hi] = s.intervals;
+      expect([lo.from, lo.fromKind, lo.toKind, hi.toKind, hi.to]).toEqual([A12_RANGE[0], "range", "transcritical", "range", A12_RANGE[1]]);
+      expect(lo.to).toBe(t.value);
+      expect(hi.from).toBe(t.value);
+      expect(lo.outcome.attractors).toEqual(c.below.attractors);
+      expect(hi.outcome.attractors).toEqual(c.above.attractors);
+      expect(lo.outcome.scenarios.map((q) => q.fate)).toEqual(c.below.fates);
+      expect(hi.outcome.scenarios.map((q) => q.fate)).toEqual(c.above.fates);
+      expect(lo.statement.text).toMatch(/ when a12 < K1 \/ K2 = 1\.25$/);
+      expect(hi.statement.text).toMatch(/ when a12 > K1 \/ K2 = 1\.25$/);
+      expect(lo.statement.tex).toBe("a_{12} < \\frac{{K_{1}}}{{K_{2}}} = 1.25");
+      expect(hi.statement.tex).toBe("a_{12} > \\frac{{K_{1}}}{{K_{2}}} = 1.25");
+      expect([lo.containsNominal, hi.containsNominal]).toEqual([side === "below", side === "above"]);
+
+      // the margin: (threshold − value)/|threshold|, positive below; percent worked by hand (52% or 28%)
+      const margin = s.margin!;
+      expect(margin.kind).toBe("transcritical");
+      expect(margin.side).toBe(side);
+      expect(relative(margin.relative, (A12_THRESHOLD - c.a12) / A12_THRESHOLD)).toBeLessThanOrEqual(SYMBOLIC_REL_TOL);
+      expect(margin.statement).toContain(`(now a12 = ${c.a12}: ${side === "below" ? 52 : 28}% ${side} the threshold)`);
+      expect(margin.statement.startsWith((side === "below" ? lo : hi).statement.text)).toBe(true);
+    });
+  }
+});
+
+describe("studyParameter: symbolic conditions beside the located thresholds", () => {
+  // The same model with the carrying capacities studied too, in a window wide enough for (0, K1/a12).
+  // Each transcritical is where one invasion rate vanishes (Murray, 3rd ed., section 3.5, from memory):
+  // N's r1 (1 − a12 K2/K1) at (0, K2), S's r2 (1 − a21 K1/K2) at (K1, 0).
+  const values = { ...BASE, a12: 0.6, a21: 0.5 };
+  const size = 250;
+  const text = JSON.stringify({
+    keel: 1,
+    id: "competition-symbolic",
+    title: "Lotka–Volterra competition (invented values)",
+    time: { unit: "year" },
+    states: [{ name: "N", min: 0, max: size }, { name: "S", min: 0, max: size }],
+    parameters: [
+      { name: "r1", value: values.r1 }, { name: "r2", value: values.r2 },
+      { name: "K1", value: values.K1, range: [30, 200] }, { name: "K2", value: values.K2, range: [40, 200] },
+      { name: "a12", value: values.a12, range: [0.5, 2] }, { name: "a21", value: values.a21, range: [0.4, 1.3] },
+    ],
+    equations: { N: "r1*N*(1 - (N + a12*S)/K1)", S: "r2*S*(1 - (S + a21*N)/K2)" },
+    window: { N: [0, size], S: [0, size] },
+    analysis: { basins: { resolution: 64, coarse: 16 } },
+  });
+  const references: Record<string, { value: number; absent: string }[]> = {
+    a12: [{ value: values.K1 / values.K2, absent: "N" }],
+    a21: [{ value: values.K2 / values.K1, absent: "S" }],
+    K1: [{ value: values.a12 * values.K2, absent: "N" }, { value: values.K2 / values.a21, absent: "S" }],
+    K2: [{ value: values.a21 * values.K1, absent: "S" }, { value: values.K1 / values.a12, absent: "N" }],
+  };
+
+  it("analyze(competition, a12, a21, K1, K2) locates each decisive threshold at its closed form, each with a symbolic condition equal to it", () => {
+    const results = pipeline(text);
+    for (const [parameter, expected] of Object.entries(references)) {
+      const found = decisive(study(results, parameter));
+      expect(found.map((t) => t.kind), parameter).toEqual(expected.map(() => "transcritical"));
+      found.forEach((t, k) => {
+        const where = `${parameter} threshold ${k + 1}`;
+        expect(relative(t.value, expected[k].value), where).toBeLessThanOrEqual(THRESHOLD_REL_TOL);
+        expect(t.symbolic, where).not.toBeNull();
+        expect(t.symbolic!.relativeDifference, where).toBeLessThanOrEqual(SYMBOLIC_REL_TOL);
+        expect(t.symbolic!.absent, where).toBe(expected[k].absent);
+        expect(relative(evaluate(t.symbolic!.text, values), expected[k].value), where).toBeLessThanOrEqual(SYMBOLIC_REL_TOL);
+      });
+    }
+  });
+
+  it("studyParameter(competition, K2) states three intervals, bounded by a21 K1 and K1/a12", () => {
+    // one outcome sample, 40 + 160 · 9.5/12, lies within rounding of K1/a12 = 166.67: no sliver there either
+    const s = study(pipeline(text), "K2");
+    expect(s.intervals.map((iv) => [iv.fromKind, iv.toKind])).toEqual([["range", "transcritical"], ["transcritical", "transcritical"], ["transcritical", "range"]]);
+    expect(s.intervals.map((iv) => iv.outcome.attractors)).toEqual([["N only"], ["coexistence"], ["S only"]]);
+    expect(s.intervals[1].statement.text).toBe("one attractor (coexistence) when a21 * K1 = 50 < K2 < K1 / a12 = 166.667");
+  });
+});
+
+// ---------------------------------------------------------------- harvesting
+
+// Logistic growth with constant harvesting, x' = r x (1 − x/K) − H, and y' = −y to make it planar.
+// Equilibria x± = (K/2)(1 ± √(1 − 4H/(rK))) meet in a saddle-node at H = rK/4; x+ is stable, x− a
+// saddle; above rK/4 every population is harvested to extinction (common textbook fact; e.g.
+// Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., section 3.7, from memory). Invented values.
+describe("studyParameter(harvesting, H)", () => {
+  const [r, K] = [1.5, 40];
+  const nominal = 0.2 * r * K;
+  const text = JSON.stringify({
+    keel: 1,
+    id: "harvesting",
+    title: "Logistic growth with constant harvesting (invented values)",
+    time: { unit: "year" },
+    states: [{ name: "x", min: 0, max: 50 }, { name: "y", min: 0, max: 1 }],
+    parameters: [{ name: "r", value: r }, { name: "K", value: K }, { name: "H", value: nominal, range: [0, (r * K) / 2] }],
+    equations: { x: "r*x*(1 - x/K) - H", y: "-y" },
+    window: { x: [0, 50], y: [0, 1] },
+    scenarios: [{ name: "stocked", initial: { x: 30, y: 0.5 }, horizon: 100 }],
+    analysis: { basins: { resolution: 64, coarse: 16 } },
+  });
+  const upperRoot = (h: number) => (K / 2) * (1 + Math.sqrt(1 - (4 * h) / (r * K)));
+
+  it("studyParameter(harvesting, H) splits [0, rK/2] at the fold H = rK/4: a stable x+ below, collapse above, and a 20% margin", () => {
+    const results = pipeline(text);
+    const s = study(results, "H");
+    expect(decisive(s).map((t) => t.kind)).toEqual(["saddle-node"]);
+    const fold = decisive(s)[0];
+    expect(relative(fold.value, (r * K) / 4)).toBeLessThanOrEqual(THRESHOLD_REL_TOL);
+    expect(Math.abs(fold.point.x - K / 2) / 50).toBeLessThanOrEqual(POINT_REL_TOL);
+
+    expect(s.intervals).toHaveLength(2);
+    const [below, above] = s.intervals;
+    expect([below.from, below.to, above.from, above.to]).toEqual([0, fold.value, fold.value, (r * K) / 2]);
+    expect(below.outcome.attractors).toEqual(["x only"]);
+    expect(below.outcome.scenarios).toEqual([{ name: "stocked", fate: "reaches x only" }]);
+    expect(below.statement.text).toBe("one attractor (x only); stocked reaches x only when H < 15");
+    expect(above.outcome.attractors).toEqual([]);
+    expect(above.outcome.scenarios[0].fate).toMatch(/^(leaves the window through x\b|is undecided)/);
+
+    // the stable equilibrium below the fold is the larger root, along every branch and at the nominal value
+    let checked = 0;
+    for (const b of s.continuation.branches) {
+      for (const pt of b.points) {
+        if (pt.value >= fold.value * (1 - 1e-6) || pt.stable !== true) continue;
+        expect(Math.abs(pt.point.x - upperRoot(pt.value)) / 50, `stable point at H = ${pt.value}`).toBeLessThanOrEqual(POINT_REL_TOL);
+        checked++;
+      }
+    }
+    expect(checked).toBeGreaterThan(5);
+    const stableNow = results.equilibria.filter((e) => e.stable === true);
+    expect(stableNow).toHaveLength(1);
+    expect(Math.abs(stableNow[0].point.x - upperRoot(nominal)) / 50).toBeLessThanOrEqual(POINT_REL_TOL);
+
+    // margin: (rK/4 − 0.2 rK)/(rK/4) = 1 − 0.8 = 0.2, below
+    expect(s.margin).toMatchObject({ kind: "saddle-node", side: "below" });
+    expect(Math.abs(s.margin!.relative - 0.2)).toBeLessThanOrEqual(SYMBOLIC_REL_TOL);
+    expect(s.margin!.statement).toBe("one attractor (x only); stocked reaches x only when H < 15 (now H = 12: 20% below the threshold)");
+  });
+});

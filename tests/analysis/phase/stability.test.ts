@@ -1,0 +1,288 @@
+import fc from "fast-check";
+import { eigs } from "mathjs";
+import { describe, expect, it } from "vitest";
+import { classifyEquilibrium, type Complex, type EquilibriumType } from "../../../src/analysis/phase/stability.js";
+import { findEquilibria } from "../../../src/analysis/phase/equilibria.js";
+import { buildModel } from "../../fixtures/models.js";
+
+type Matrix2 = [[number, number], [number, number]];
+
+/** Hand-derived eigenvalues of small integer matrices are exact up to a few rounding steps. */
+const EXACT_TOL = 1e-12;
+/**
+ * Two eigen-solvers agree on well-separated eigenvalues to a few ulps of ‖J‖ (both are backward
+ * stable); 1e-10 leaves a wide margin.
+ */
+const CROSS_CHECK_REL_TOL = 1e-10;
+/**
+ * Near a repeated eigenvalue the eigenvalues move like the square root of a perturbation
+ * (Golub and Van Loan, Matrix Computations, 4th ed., section 7.2, eigenvalue sensitivity; from
+ * memory), so two solvers may differ by ~sqrt(eps)·‖J‖ ≈ 1.5e-8 ‖J‖ there.
+ */
+const NEAR_REPEATED_REL_TOL = 1e-7;
+/** Eigenvalues closer than this fraction of ‖J‖ count as near-repeated for the bound above. */
+const NEAR_REPEATED_SEPARATION = 1e-3;
+/** Invariants (trace, determinant, A·v = λv) hold to rounding of a 2 × 2 solve; ‖J‖-relative. */
+const INVARIANT_REL_TOL = 1e-10;
+/** fast-check seeds, fixed so every run checks the same matrices (common practice). */
+const SEED = 20240617;
+const RUNS = 400;
+
+const frobenius = (J: Matrix2) => Math.hypot(J[0][0], J[0][1], J[1][0], J[1][1]);
+
+function expectEigenvalues(actual: Complex[], expected: Complex[], tol = EXACT_TOL) {
+  expect(actual).toHaveLength(expected.length);
+  actual.forEach((e, k) => {
+    expect(Math.abs(e.re - expected[k].re)).toBeLessThanOrEqual(tol);
+    expect(Math.abs(e.im - expected[k].im)).toBeLessThanOrEqual(tol);
+  });
+}
+
+function expectEigenvectors(actual: number[][], expected: number[][]) {
+  expect(actual).toHaveLength(expected.length);
+  actual.forEach((v, k) => {
+    expect(Math.abs(v[0] - expected[k][0])).toBeLessThanOrEqual(EXACT_TOL);
+    expect(Math.abs(v[1] - expected[k][1])).toBeLessThanOrEqual(EXACT_TOL);
+  });
+}
+
+const real = (...values: number[]): Complex[] => values.map((re) => ({ re, im: 0 }));
+const pair = (re: number, im: number): Complex[] => [{ re, im: -im }, { re, im }];
+
+/**
+ * One linear system of each type in the trace–determinant classification (Hirsch, Smale and
+ * Devaney, Differential Equations, Dynamical Systems, and an Introduction to Chaos, 3rd ed.,
+ * chapter 3: real distinct, complex and repeated eigenvalues; chapter 4, section 4.1: the
+ * trace–determinant plane). Eigenvalues are roots of λ² − τλ + Δ, worked by hand.
+ */
+interface LinearCase {
+  name: string;
+  J: Matrix2;
+  type: EquilibriumType;
+  hyperbolic: boolean;
+  stable: boolean | null;
+  eigenvalues: Complex[];
+  /** Unit eigenvectors, largest component positive (keel's sign convention); null: not checked. */
+  eigenvectors: number[][] | null;
+}
+
+const s5 = Math.sqrt(5);
+const s10 = Math.sqrt(10);
+const LINEAR_CASES: LinearCase[] = [
+  // λ² − λ − 6 = (λ − 3)(λ + 2); (J + 2I)v = 0 gives v ∝ (−1, 2), (J − 3I)v = 0 gives v ∝ (1, 3)
+  { name: "saddle", J: [[0, 1], [6, 1]], type: "saddle", hyperbolic: true, stable: false,
+    eigenvalues: real(-2, 3), eigenvectors: [[-1 / s5, 2 / s5], [1 / s10, 3 / s10]] },
+  // triangular: λ = −3, −1; (J + I)v = 0 gives v ∝ (1, 2)
+  { name: "stable node", J: [[-3, 1], [0, -1]], type: "stable-node", hyperbolic: true, stable: true,
+    eigenvalues: real(-3, -1), eigenvectors: [[1, 0], [1 / s5, 2 / s5]] },
+  // triangular: λ = 1, 3; (J − 3I)v = 0 gives v ∝ (1, 2)
+  { name: "unstable node", J: [[1, 1], [0, 3]], type: "unstable-node", hyperbolic: true, stable: false,
+    eigenvalues: real(1, 3), eigenvectors: [[1, 0], [1 / s5, 2 / s5]] },
+  // the canonical form [[α, β], [−β, α]] has eigenvalues α ± iβ (HSD 3rd ed., section 3.2)
+  { name: "stable focus", J: [[-1, 2], [-2, -1]], type: "stable-focus", hyperbolic: true, stable: true,
+    eigenvalues: pair(-1, 2), eigenvectors: [] },
+  { name: "unstable focus", J: [[1, 2], [-2, 1]], type: "unstable-focus", hyperbolic: true, stable: false,
+    eigenvalues: pair(1, 2), eigenvectors: [] },
+  // not in canonical form: λ² + 2λ + 5 = 0, λ = −1 ± 2i
+  { name: "stable focus (companion form)", J: [[0, 1], [-5, -2]], type: "stable-focus", hyperbolic: true, stable: true,
+    eigenvalues: pair(-1, 2), eigenvectors: [] },
+  // τ = 0, Δ = 4: λ = ±2i; the linearisation alone does not decide (HSD 3rd ed., section 3.2)
+  { name: "center", J: [[0, 1], [-4, 0]], type: "center", hyperbolic: false, stable: null,
+    eigenvalues: pair(0, 2), eigenvectors: [] },
+  // J = kI: every direction is an eigenvector (HSD 3rd ed., section 3.3)
+  { name: "stable star", J: [[-2, 0], [0, -2]], type: "stable-star", hyperbolic: true, stable: true,
+    eigenvalues: real(-2, -2), eigenvectors: null },
+  { name: "unstable star", J: [[3, 0], [0, 3]], type: "unstable-star", hyperbolic: true, stable: false,
+    eigenvalues: real(3, 3), eigenvectors: null },
+  // a Jordan block: one eigenvector direction only (HSD 3rd ed., section 3.3)
+  { name: "stable degenerate node", J: [[-1, 1], [0, -1]], type: "stable-degenerate-node", hyperbolic: true, stable: true,
+    eigenvalues: real(-1, -1), eigenvectors: [[1, 0], [1, 0]] },
+  { name: "unstable degenerate node", J: [[2, 0], [1, 2]], type: "unstable-degenerate-node", hyperbolic: true, stable: false,
+    eigenvalues: real(2, 2), eigenvectors: [[0, 1], [0, 1]] },
+  // a zero eigenvalue: x' = −x, y' = y² linearised at the origin
+  { name: "zero eigenvalue", J: [[-1, 0], [0, 0]], type: "non-hyperbolic", hyperbolic: false, stable: null,
+    eigenvalues: real(-1, 0), eigenvectors: [[1, 0], [0, 1]] },
+  // singular but not diagonal: λ = 0, 5; (J − 5I)v = 0 gives v ∝ (1, 2), Jv = 0 gives v ∝ (2, −1)
+  { name: "zero eigenvalue (rank one)", J: [[1, 2], [2, 4]], type: "non-hyperbolic", hyperbolic: false, stable: null,
+    eigenvalues: real(0, 5), eigenvectors: [[2 / s5, -1 / s5], [1 / s5, 2 / s5]] },
+  // nilpotent: both eigenvalues zero
+  { name: "nilpotent", J: [[0, 1], [0, 0]], type: "non-hyperbolic", hyperbolic: false, stable: null,
+    eigenvalues: real(0, 0), eigenvectors: null },
+];
+
+describe("classifyEquilibrium on matrices of every type", () => {
+  for (const c of LINEAR_CASES) {
+    it(`classifyEquilibrium(${JSON.stringify(c.J)}) is ${c.type} (${c.name})`, () => {
+      const r = classifyEquilibrium(c.J);
+      const [[a, b], [cc, d]] = c.J;
+      expect(r.type).toBe(c.type);
+      expect(r.hyperbolic).toBe(c.hyperbolic);
+      expect(r.stable).toBe(c.stable);
+      expect(r.trace).toBe(a + d);
+      expect(r.determinant).toBe(a * d - b * cc);
+      expect(r.discriminant).toBe((a + d) ** 2 - 4 * (a * d - b * cc));
+      expect(r.jacobian).toEqual(c.J);
+      expectEigenvalues(r.eigenvalues, c.eigenvalues);
+      if (c.eigenvectors) expectEigenvectors(r.eigenvectors, c.eigenvectors);
+      for (const [k, v] of r.eigenvectors.entries()) {
+        // A·v = λ v for every reported real eigenvector, and v is a unit vector
+        const lambda = r.eigenvalues[k].re;
+        expect(Math.abs(a * v[0] + b * v[1] - lambda * v[0])).toBeLessThanOrEqual(EXACT_TOL);
+        expect(Math.abs(cc * v[0] + d * v[1] - lambda * v[1])).toBeLessThanOrEqual(EXACT_TOL);
+        expect(Math.abs(Math.hypot(v[0], v[1]) - 1)).toBeLessThanOrEqual(EXACT_TOL);
+      }
+    });
+  }
+
+  it("classifyEquilibrium(zero matrix) is non-hyperbolic", () => {
+    const r = classifyEquilibrium([[0, 0], [0, 0]]);
+    expect(r.type).toBe("non-hyperbolic");
+    expect(r.stable).toBeNull();
+    expectEigenvalues(r.eigenvalues, real(0, 0));
+  });
+
+  it("classifyEquilibrium does not mutate its input", () => {
+    const J: Matrix2 = [[0, 1], [6, 1]];
+    const r = classifyEquilibrium(J);
+    r.jacobian[0][0] = 99;
+    expect(J).toEqual([[0, 1], [6, 1]]);
+  });
+});
+
+describe("findEquilibria classifies linear systems at the origin", () => {
+  // the same HSD 3rd ed. chapter 3 cases, through the whole compile → Newton → classify path
+  const systems: { name: string; x: string; y: string; type: EquilibriumType; eigenvalues: Complex[] }[] = [
+    { name: "saddle", x: "y", y: "6*x + y", type: "saddle", eigenvalues: real(-2, 3) },
+    { name: "stable focus", x: "-x + 2*y", y: "-2*x - y", type: "stable-focus", eigenvalues: pair(-1, 2) },
+    { name: "center", x: "y", y: "-4*x", type: "center", eigenvalues: pair(0, 2) },
+    { name: "unstable star", x: "3*x", y: "3*y", type: "unstable-star", eigenvalues: real(3, 3) },
+    { name: "stable degenerate node", x: "-x + y", y: "-y", type: "stable-degenerate-node", eigenvalues: real(-1, -1) },
+    // x' = −x, y' = y²: an isolated equilibrium with a zero eigenvalue (a saddle-node)
+    { name: "non-hyperbolic", x: "-x", y: "y^2", type: "non-hyperbolic", eigenvalues: real(-1, 0) },
+  ];
+  for (const s of systems) {
+    it(`findEquilibria(x' = ${s.x}, y' = ${s.y}) finds one ${s.type} at the origin`, () => {
+      const model = buildModel({ equations: { x: s.x, y: s.y }, window: { x: [-1, 1], y: [-1, 1] } });
+      const found = findEquilibria(model);
+      expect(found).toHaveLength(1);
+      expect(found[0].point).toEqual({ x: 0, y: 0 });
+      expect(found[0].type).toBe(s.type);
+      expectEigenvalues(found[0].eigenvalues, s.eigenvalues);
+    });
+  }
+});
+
+/** Eigenvalues from mathjs, an independent general-purpose implementation. */
+function mathjsEigenvalues(J: Matrix2): Complex[] {
+  return (eigs(J).values as unknown as (number | { re: number; im: number })[]).map((v) =>
+    typeof v === "number" ? { re: v, im: 0 } : { re: v.re, im: v.im },
+  );
+}
+
+/** Largest distance between two eigenvalue pairs under the better of the two pairings. */
+function pairDistance(p: Complex[], q: Complex[]): number {
+  const d = (u: Complex, v: Complex) => Math.hypot(u.re - v.re, u.im - v.im);
+  return Math.min(Math.max(d(p[0], q[0]), d(p[1], q[1])), Math.max(d(p[0], q[1]), d(p[1], q[0])));
+}
+
+/**
+ * Entries on a grid of step 1e-5 in [−10, 10]. fast-check's bias still gives zeros, small values
+ * and exactly repeated eigenvalues; a grid keeps out sub-normal entries like 1e-160, whose
+ * products (b·c) underflow in any 2 × 2 formula and are no Jacobian a model produces.
+ */
+const entry = fc.integer({ min: -1_000_000, max: 1_000_000 }).map((k) => k / 100_000);
+const matrix = fc.tuple(entry, entry, entry, entry).map(([a, b, c, d]): Matrix2 => [[a, b], [c, d]]);
+
+describe("classifyEquilibrium eigenvalues against an independent solver (seeded random matrices)", () => {
+  it("classifyEquilibrium eigenvalues equal mathjs eigs to 1e-10 of ‖J‖", () => {
+    fc.assert(
+      fc.property(matrix, (J) => {
+        const norm = frobenius(J);
+        const ours = classifyEquilibrium(J).eigenvalues;
+        const theirs = mathjsEigenvalues(J);
+        const separation = Math.hypot(ours[0].re - ours[1].re, ours[0].im - ours[1].im);
+        const tol = separation > NEAR_REPEATED_SEPARATION * norm ? CROSS_CHECK_REL_TOL : NEAR_REPEATED_REL_TOL;
+        expect(pairDistance(ours, theirs)).toBeLessThanOrEqual(tol * norm);
+      }),
+      { seed: SEED, numRuns: RUNS },
+    );
+  });
+
+  // eigenvalue invariants of the kind ml-matrix's own tests check (common practice)
+  it("classifyEquilibrium eigenvalues sum to the trace and multiply to the determinant", () => {
+    fc.assert(
+      fc.property(matrix, (J) => {
+        const norm = frobenius(J);
+        const r = classifyEquilibrium(J);
+        const [l1, l2] = r.eigenvalues;
+        expect(Math.abs(l1.re + l2.re - r.trace)).toBeLessThanOrEqual(INVARIANT_REL_TOL * norm);
+        expect(Math.abs(l1.im + l2.im)).toBeLessThanOrEqual(INVARIANT_REL_TOL * norm);
+        const productRe = l1.re * l2.re - l1.im * l2.im;
+        const productIm = l1.re * l2.im + l1.im * l2.re;
+        expect(Math.abs(productRe - r.determinant)).toBeLessThanOrEqual(INVARIANT_REL_TOL * norm * norm);
+        expect(Math.abs(productIm)).toBeLessThanOrEqual(INVARIANT_REL_TOL * norm * norm);
+      }),
+      { seed: SEED + 1, numRuns: RUNS },
+    );
+  });
+
+  it("classifyEquilibrium eigenvectors satisfy A·v = λv and have unit length", () => {
+    fc.assert(
+      fc.property(matrix, (J) => {
+        const norm = frobenius(J);
+        const r = classifyEquilibrium(J);
+        for (const [k, v] of r.eigenvectors.entries()) {
+          const lambda = r.eigenvalues[k].re;
+          const residual = Math.hypot(J[0][0] * v[0] + J[0][1] * v[1] - lambda * v[0], J[1][0] * v[0] + J[1][1] * v[1] - lambda * v[1]);
+          expect(residual).toBeLessThanOrEqual(INVARIANT_REL_TOL * Math.max(norm, Number.MIN_VALUE));
+          if (norm > 0) expect(Math.abs(Math.hypot(v[0], v[1]) - 1)).toBeLessThanOrEqual(INVARIANT_REL_TOL);
+        }
+      }),
+      { seed: SEED + 2, numRuns: RUNS },
+    );
+  });
+
+  // linear stability: asymptotically stable iff every eigenvalue has negative real part, unstable
+  // if one has positive real part (HSD 3rd ed., section 4.1); eigenvalues here from mathjs
+  it("classifyEquilibrium(J).stable follows the signs of mathjs eigenvalue real parts", () => {
+    fc.assert(
+      fc.property(matrix, (J) => {
+        const norm = frobenius(J);
+        const theirs = mathjsEigenvalues(J);
+        const maxRe = Math.max(theirs[0].re, theirs[1].re);
+        const minAbs = Math.min(Math.hypot(theirs[0].re, theirs[0].im), Math.hypot(theirs[1].re, theirs[1].im));
+        // away from the borderline, where the type is decided with margin
+        fc.pre(Math.abs(maxRe) > 1e-6 * norm && minAbs > 1e-6 * norm);
+        const r = classifyEquilibrium(J);
+        expect(r.stable).toBe(maxRe < 0);
+      }),
+      { seed: SEED + 3, numRuns: RUNS },
+    );
+  });
+});
+
+describe("classifyEquilibrium is invariant under a change of units", () => {
+  // rescaling state k by s_k maps J to D J D⁻¹, a similarity, which keeps the eigenvalues and so
+  // the type (HSD 3rd ed., section 3.4, changing coordinates). Star versus degenerate node is left
+  // out: a Jordan block's off-diagonal entry can be scaled as small as one likes.
+  it("classifyEquilibrium(D J D⁻¹) has the type of classifyEquilibrium(J) for D = diag(1, 10^k)", () => {
+    fc.assert(
+      fc.property(matrix, fc.integer({ min: -6, max: 6 }), (J, k) => {
+        const norm = frobenius(J);
+        const r = classifyEquilibrium(J);
+        fc.pre(Math.abs(r.discriminant) > 1e-6 * norm * norm);
+        const s = 10 ** k;
+        const scaled: Matrix2 = [[J[0][0], J[0][1] / s], [J[1][0] * s, J[1][1]]];
+        expect(classifyEquilibrium(scaled).type).toBe(r.type);
+      }),
+      { seed: SEED + 4, numRuns: RUNS },
+    );
+  });
+
+  it("classifyEquilibrium keeps a stable focus when one state is in 1e5 units", () => {
+    // the canonical focus [[−1, 2], [−2, −1]] with its second state rescaled by 1e-5
+    const r = classifyEquilibrium([[-1, 2e5], [-2e-5, -1]]);
+    expect(r.type).toBe("stable-focus");
+    expectEigenvalues(r.eigenvalues, pair(-1, 2));
+  });
+});

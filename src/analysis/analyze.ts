@@ -1,27 +1,29 @@
 import type { Model } from "../model/types.js";
 import type { Diagnostic } from "../diagnostics/issue.js";
-import { KEEL_VERSION } from "../version.js";
-import { DEFAULT_EQUILIBRIUM_OPTIONS, findEquilibria, type EquilibriumOptions } from "./phase/equilibria.js";
+import { KEEL_VERSION, RESULTS_FORMAT } from "../version.js";
+import { findEquilibria, type EquilibriumOptions } from "./phase/equilibria.js";
 import { evaluateAssumptions } from "./checks/assumptions.js";
 import type { Results } from "./types.js";
 import { windowOf } from "./numeric/window.js";
 import { buildFlowContext } from "./flow/follow.js";
-import { CycleRegistry, DEFAULT_TRAJECTORY_OPTIONS, flowTimeScale, integratePortrait, integrateScenarios, type TrajectoryOptions } from "./flow/trajectories.js";
+import { CycleRegistry, flowTimeScale, integratePortrait, integrateScenarios, type TrajectoryOptions } from "./flow/trajectories.js";
 import { findSeparatrices } from "./flow/manifolds.js";
-import { TRAJECTORY_ABSOLUTE_TOL_OF_WIDTH, TRAJECTORY_RELATIVE_TOL } from "./numeric/integrate.js";
-import { assembleBasinResult, DEFAULT_BASIN_OPTIONS, planBasins, startRefinement, type BasinOptions, type BasinPlan } from "./basins/index.js";
+import { assembleBasinResult, planBasins, startRefinement, type BasinOptions, type BasinPlan } from "./basins/index.js";
 import { instantiateBasinKernel } from "./basins/kernel.js";
 import { runRefinementAsync, runRefinementSync, type BatchEvaluator } from "./basins/refine.js";
-import { BASIN_ABSOLUTE_TOL_OF_WIDTH, BASIN_RELATIVE_TOL } from "./basins/kernel.js";
-import { DEFAULT_NULLCLINE_OPTIONS, findNullclines, type NullclineOptions } from "./phase/nullclines.js";
-import { DEFAULT_REGION_OPTIONS, findRegions, type RegionOptions } from "./phase/regions.js";
+import { findNullclines, type NullclineOptions } from "./phase/nullclines.js";
+import { findRegions, type RegionOptions } from "./phase/regions.js";
 import { findInvasionConditions } from "./parameters/invasion.js";
 import { studyParameter } from "./parameters/study.js";
 import { buildOutcomeMap } from "./parameters/maps.js";
 import { findAssumptionFlips } from "./checks/assumptions.js";
-import { nameToTex } from "../model/tex.js";
 import { checkClaims } from "./checks/claims.js";
-import { computeDirectionField, DEFAULT_DIRECTION_FIELD_OPTIONS, type DirectionFieldOptions } from "./phase/field.js";
+import { computeDirectionField, type DirectionFieldOptions } from "./phase/field.js";
+import {
+  BASIN_ABSOLUTE_TOL_OF_WIDTH, BASIN_RELATIVE_TOL, DEFAULT_BASIN_OPTIONS, DEFAULT_DIRECTION_FIELD_OPTIONS, DEFAULT_EQUILIBRIUM_OPTIONS,
+  DEFAULT_NULLCLINE_OPTIONS, DEFAULT_REGION_OPTIONS, DEFAULT_TRAJECTORY_OPTIONS, PORTRAIT_TIME_SCALES, TRAJECTORY_ABSOLUTE_TOL_OF_WIDTH,
+  TRAJECTORY_RELATIVE_TOL,
+} from "./constants.js";
 
 export interface AnalysisOptions {
   equilibria: EquilibriumOptions;
@@ -41,15 +43,47 @@ export const DEFAULT_ANALYSIS_OPTIONS: AnalysisOptions = {
   basins: DEFAULT_BASIN_OPTIONS,
 };
 
-/** Portrait trajectories, separatrices and basin trajectories run this many slowest time scales (or the longest scenario horizon, if longer). */
-const PORTRAIT_TIME_SCALES = 60;
-
 export type ProgressReporter = (stage: string, done: number, total: number) => void;
 
 /** Options as the spec may set them: the spec's `analysis` block over the defaults. */
 export function optionsForModel(model: Model, base: AnalysisOptions = DEFAULT_ANALYSIS_OPTIONS): AnalysisOptions {
   const basins = model.spec.analysis.basins;
   return { ...base, basins: { ...base.basins, ...basins } };
+}
+
+/** The model as results.json records it: states, nominal parameters, window, equations and Jacobian (text and TeX). */
+function modelSummary(model: Model): Results["model"] {
+  return {
+    states: model.stateNames,
+    parameters: Object.fromEntries(model.parameterNames.map((n, i) => [n, model.parameterValues[i]])),
+    window: model.spec.window,
+    equations: model.equations.map((e, i) => ({ state: model.stateNames[i], text: e.text, tex: e.tex })),
+    jacobian: model.jacobian.map((row) => row.map((e) => ({ text: e.text, tex: e.tex }))),
+  };
+}
+
+/** Settings every pass used, for the methods section and `verify`. */
+function settingsOf(options: AnalysisOptions, portraitHorizon: number): Results["settings"] {
+  return {
+    equilibria: options.equilibria,
+    nullclines: options.nullclines,
+    regions: options.regions,
+    field: options.field,
+    trajectories: {
+      ...options.trajectories,
+      integrator: "odex (Hairer's GBS extrapolation, dense output)",
+      relativeTolerance: TRAJECTORY_RELATIVE_TOL,
+      absoluteToleranceOfWindow: TRAJECTORY_ABSOLUTE_TOL_OF_WIDTH,
+      portraitHorizon,
+    },
+    basins: {
+      ...options.basins,
+      integrator: "Dormand–Prince 5(4), generated for the model",
+      relativeTolerance: BASIN_RELATIVE_TOL,
+      absoluteToleranceOfWindow: BASIN_ABSOLUTE_TOL_OF_WIDTH,
+      horizon: portraitHorizon,
+    },
+  };
 }
 
 /** Steps 1–5 of the analysis: everything but the basin map, plus the basin map's plan. */
@@ -87,7 +121,7 @@ function analyzeCore(model: Model, options: AnalysisOptions, progress?: Progress
   const studied = model.spec.analysis.parameters;
   const studies = studied.map((name, k) => {
     const p = model.spec.parameters.find((q) => q.name === name)!;
-    const study = studyParameter(model, name, p.range!, invasion, nameToTex(name), diagnostics);
+    const study = studyParameter(model, name, p.range!, invasion, diagnostics);
     progress?.("thresholds", k + 1, studied.length + model.spec.analysis.parameterPairs.length);
     return study;
   });
@@ -103,14 +137,9 @@ function analyzeCore(model: Model, options: AnalysisOptions, progress?: Progress
   const plan = planBasins(model, equilibria, registry.cycles, box, portraitHorizon, timeScale, options.basins, diagnostics);
   const results: Omit<Results, "basins"> = {
     keel: KEEL_VERSION,
+    format: RESULTS_FORMAT,
     spec: { id: model.spec.id, sha256: model.spec.sha256 },
-    model: {
-      states: model.stateNames,
-      parameters: Object.fromEntries(model.parameterNames.map((n, i) => [n, model.parameterValues[i]])),
-      window: model.spec.window,
-      equations: model.equations.map((e, i) => ({ state: model.stateNames[i], text: e.text, tex: e.tex })),
-      jacobian: model.jacobian.map((row) => row.map((e) => ({ text: e.text, tex: e.tex }))),
-    },
+    model: modelSummary(model),
     equilibria,
     nullclines,
     regions,
@@ -124,26 +153,7 @@ function analyzeCore(model: Model, options: AnalysisOptions, progress?: Progress
     claims,
     assumptions,
     diagnostics,
-    settings: {
-      equilibria: options.equilibria,
-      nullclines: options.nullclines,
-      regions: options.regions,
-      field: options.field,
-      trajectories: {
-        ...options.trajectories,
-        integrator: "odex (Hairer's GBS extrapolation, dense output)",
-        relativeTolerance: TRAJECTORY_RELATIVE_TOL,
-        absoluteToleranceOfWindow: TRAJECTORY_ABSOLUTE_TOL_OF_WIDTH,
-        portraitHorizon,
-      },
-      basins: {
-        ...options.basins,
-        integrator: "Dormand–Prince 5(4), generated for the model",
-        relativeTolerance: BASIN_RELATIVE_TOL,
-        absoluteToleranceOfWindow: BASIN_ABSOLUTE_TOL_OF_WIDTH,
-        horizon: portraitHorizon,
-      },
-    },
+    settings: settingsOf(options, portraitHorizon),
   };
   return { results, plan };
 }

@@ -1,4 +1,5 @@
 import type { Diagnostic } from "../diagnostics/issue.js";
+import type { RESULTS_FORMAT } from "../version.js";
 import type { EquilibriumResult } from "./phase/equilibria.js";
 import type { PortraitTrajectory, ScenarioResult } from "./flow/trajectories.js";
 import type { CycleResult } from "./flow/cycles.js";
@@ -14,14 +15,17 @@ import type { OutcomeMapResult } from "./parameters/maps.js";
 export type { EquilibriumResult } from "./phase/equilibria.js";
 export type { PortraitTrajectory, ScenarioResult } from "./flow/trajectories.js";
 export type { CycleResult } from "./flow/cycles.js";
-export type { SeparatrixResult, ManifoldEnd } from "./flow/manifolds.js";
+export type { SeparatrixResult, SeparatrixFate } from "./flow/manifolds.js";
 export type { BasinResult } from "./basins/index.js";
 export type { NullclineResult, NullclinePiece } from "./phase/nullclines.js";
 export type { RegionResult } from "./phase/regions.js";
 export type { DirectionFieldResult } from "./phase/field.js";
-export type { ParameterStudyResult, ThresholdResult, OutcomeIntervalResult, MarginResult } from "./parameters/study.js";
+export type {
+  ParameterStudyResult, ThresholdResult, OutcomeIntervalResult, MarginResult, BreakResult, IntervalEndResult,
+} from "./parameters/study.js";
+export type { OutcomeResult, AttractorResult, EquilibriumAttractor, OutcomeFateResult } from "./parameters/outcomes.js";
 export type { InvasionConditionResult } from "./parameters/invasion.js";
-export type { ClaimResult } from "./checks/claims.js";
+export type { ClaimResult, ClaimEvidence, ClaimReference } from "./checks/claims.js";
 export type { OutcomeMapResult } from "./parameters/maps.js";
 export type { Fate, TrajectoryPath } from "./flow/follow.js";
 export type { StabilityResult, EquilibriumType, Complex } from "./phase/stability.js";
@@ -41,7 +45,10 @@ export interface AssumptionResult {
 
 /** Everything keel computes from one spec; serialised as results.json. */
 export interface Results {
+  /** The keel version that computed these results. */
   keel: string;
+  /** Version of the results.json format (RESULTS_FORMAT in src/version.ts). */
+  format: typeof RESULTS_FORMAT;
   spec: { id: string; sha256: string };
   model: {
     states: string[];

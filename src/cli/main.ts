@@ -5,6 +5,8 @@ import { messages } from "../diagnostics/messages.js";
 import { CliExit, EXIT, inputError, readSpecFile } from "./io.js";
 import { parseSpecText } from "../spec/parse.js";
 import { availableParallelism } from "node:os";
+import { readFileSync } from "node:fs";
+import { fileURLToPath } from "node:url";
 
 function parseJobs(value: string): number {
   const n = Number(value);
@@ -21,15 +23,12 @@ function prevalidate(file: string): void {
   if (!parsed.ok) throw inputError(parsed.issues, file);
 }
 
-function buildProgram(): Command {
-  const program = new Command("keel")
-    .description("Turn one JSON spec of a planar ODE model into a stability dossier.")
-    .version(KEEL_VERSION, "-V, --version", "print keel's version")
-    .option("-q, --quiet", "no progress output on stderr")
-    .option("-j, --jobs <n>", `worker threads for heavy passes (default: available cores, here ${availableParallelism()})`, parseJobs)
-    .exitOverride()
-    .showHelpAfterError(false);
+/** The program-level options every command passes on. */
+function commonOptions(program: Command): { quiet: boolean; jobs?: number } {
+  return { quiet: Boolean(program.opts().quiet), jobs: program.opts().jobs };
+}
 
+function addCheckCommand(program: Command): void {
   program
     .command("check")
     .description("validate a spec and print a model summary")
@@ -42,11 +41,13 @@ function buildProgram(): Command {
         process.stdout.write(runCheck(spec) + "\n");
         return;
       }
-      const { text, code } = await runCheckClaims(spec, { quiet: Boolean(program.opts().quiet), jobs: program.opts().jobs });
+      const { text, code } = await runCheckClaims(spec, commonOptions(program));
       process.stdout.write(text + "\n");
       if (code !== EXIT.ok) throw new CliExit(code, "");
     });
+}
 
+function addAnalyzeCommand(program: Command): void {
   program
     .command("analyze")
     .description("run every analysis and write DIR/results.json")
@@ -55,10 +56,12 @@ function buildProgram(): Command {
     .action(async (spec: string, opts: { out?: string }) => {
       prevalidate(spec);
       const { runAnalyze } = await import("./commands/analyze.js");
-      const path = await runAnalyze(spec, { out: opts.out, quiet: Boolean(program.opts().quiet), jobs: program.opts().jobs });
-      if (!Boolean(program.opts().quiet)) process.stderr.write(`wrote ${path}\n`);
+      const path = await runAnalyze(spec, { out: opts.out, ...commonOptions(program) });
+      if (!commonOptions(program).quiet) process.stderr.write(`wrote ${path}\n`);
     });
+}
 
+function addBuildCommand(program: Command): void {
   program
     .command("build")
     .description("write results.json, figures/, dossier.html and dossier.pdf into DIR")
@@ -68,34 +71,79 @@ function buildProgram(): Command {
     .option("--pdf", "require the PDF: a missing Chromium is an error")
     .option("--no-pdf", "skip the PDF")
     .action(async (spec: string, opts: { out?: string; paper: string; pdf?: boolean }) => {
-      if (opts.paper !== "a4" && opts.paper !== "letter") throw new CliExit(EXIT.input, `error: --paper must be a4 or letter, got '${opts.paper}'`);
+      if (opts.paper !== "a4" && opts.paper !== "letter")
+        throw new CliExit(EXIT.input, `error: --paper must be a4 or letter, got '${opts.paper}'`);
       // with both --pdf and --no-pdf declared, commander leaves the value undefined unless one is given
       const explicitPdf = opts.pdf;
       prevalidate(spec);
       // loaded on demand: the renderer's dependencies are not needed by check and analyze
       const { runBuild } = await import("./commands/build.js");
-      const written = await runBuild(spec, { out: opts.out, quiet: Boolean(program.opts().quiet), paper: opts.paper, pdf: explicitPdf, jobs: program.opts().jobs });
-      if (!program.opts().quiet) process.stderr.write(`wrote ${written.length} files, including ${written.filter((w) => /dossier\.(html|pdf)$/.test(w)).join(" and ")}\n`);
+      const written = await runBuild(spec, {
+        out: opts.out,
+        paper: opts.paper,
+        pdf: explicitPdf,
+        ...commonOptions(program),
+      });
+      const dossiers = written.filter((w) => /dossier\.(html|pdf)$/.test(w)).join(" and ");
+      if (!commonOptions(program).quiet)
+        process.stderr.write(`wrote ${written.length} files, including ${dossiers}\n`);
     });
+}
 
+function addVerifyCommand(program: Command): void {
   program
     .command("verify")
     .description("check an archived dossier's hashes and re-run its analysis; exit 3 when anything differs")
     .argument("<target>", "a folder written by keel build, or a dossier.pdf")
     .action(async (target: string) => {
       const { runVerify } = await import("./commands/verify.js");
-      const report = await runVerify(target, { quiet: Boolean(program.opts().quiet), jobs: program.opts().jobs });
+      const report = await runVerify(target, commonOptions(program));
       process.stdout.write(report.lines.join("\n") + "\n");
       if (!report.ok) throw new CliExit(EXIT.contradicted, "");
     });
+}
 
+/** The committed results schema, shipped in the package's schema/ folder (package.json "files"). */
+const RESULTS_SCHEMA_URL = new URL("../../schema/keel-results.schema.json", import.meta.url);
+
+function readResultsSchema(): string {
+  try {
+    return readFileSync(RESULTS_SCHEMA_URL, "utf8");
+  } catch (err) {
+    // a broken installation, not bad input
+    const reason = (err as Error).message;
+    throw new CliExit(
+      EXIT.internal,
+      `error: ${messages.resultsSchemaMissing(fileURLToPath(RESULTS_SCHEMA_URL), reason)}`,
+    );
+  }
+}
+
+function addSchemaCommand(program: Command): void {
   program
     .command("schema")
-    .description("print the JSON Schema of the spec format")
-    .action(() => {
-      process.stdout.write(JSON.stringify(buildSpecJsonSchema(), null, 2) + "\n");
+    .description("print the JSON Schema of specs, or of results.json")
+    .option("--results", "print the JSON Schema of results.json instead")
+    .action((opts: { results?: boolean }) => {
+      if (opts.results) process.stdout.write(readResultsSchema());
+      else process.stdout.write(JSON.stringify(buildSpecJsonSchema(), null, 2) + "\n");
     });
+}
 
+function buildProgram(): Command {
+  const program = new Command("keel")
+    .description("Turn one JSON spec of a planar ODE model into a stability dossier.")
+    .version(KEEL_VERSION, "-V, --version", "print keel's version")
+    .option("-q, --quiet", "no progress output on stderr")
+    .option(
+      "-j, --jobs <n>",
+      `worker threads for heavy passes (default: available cores, here ${availableParallelism()})`,
+      parseJobs,
+    )
+    .exitOverride()
+    .showHelpAfterError(false);
+  for (const add of [addCheckCommand, addAnalyzeCommand, addBuildCommand, addVerifyCommand, addSchemaCommand])
+    add(program);
   for (const cmd of program.commands) cmd.exitOverride();
   return program;
 }

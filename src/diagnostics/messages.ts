@@ -73,6 +73,7 @@ export const messages = {
     `a condition must compare two expressions with one of < <= > >=, e.g. 'K2 < r1/a12'`,
   // CLI
   usage: (detail: string) => `usage error: ${detail}`,
+  resultsSchemaMissing: (path: string, reason: string) => `keel's installation lacks its results schema: cannot read ${path} (${reason})`,
   internal: (detail: string) =>
     `internal error (please report it with the spec that caused it): ${detail}`,
 } as const;

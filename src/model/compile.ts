@@ -15,7 +15,7 @@ function body(nodes: MathNode[], options: CodegenOptions): string {
 
 /** Builds a function from generated source. Source comes only from whitelisted trees, never user text. */
 function instantiate<F>(params: string[], source: string): F {
-  // eslint-disable-next-line @typescript-eslint/no-implied-eval
+  // eslint-disable-next-line no-new-func -- the source is generated from whitelisted trees (codegen.ts)
   return new Function(`${PRELUDE}\nreturn function (${params.join(", ")}) {\n${source}\n};`)() as F;
 }
 
@@ -25,6 +25,52 @@ export function instantiateRhs(source: string): RhsFunction {
 
 export function instantiateParametric(source: string): ParametricRhsFunction {
   return instantiate<ParametricRhsFunction>(["y", "p", "out"], source);
+}
+
+type ParsedCondition = { index: number; text: string; result: ReturnType<typeof parseCondition> };
+type NameTable = ReturnType<typeof buildNameTable>;
+type Describe = (node: MathNode) => CompiledExpression;
+
+/** The conditions of assumptions and of condition-decides claims, parsed; their issues go to `issues`. */
+function parseConditions(spec: NormalizedSpec, names: NameTable, issues: SpecIssue[]): { assumptions: ParsedCondition[]; claims: ParsedCondition[] } {
+  const assumptions: ParsedCondition[] = [];
+  spec.assumptions.forEach((a, index) => {
+    if (a.condition === null) return;
+    const result = parseCondition(a.condition, ["assumptions", index, "condition"], names);
+    if (!result.ok) issues.push(result.issue);
+    assumptions.push({ index, text: a.condition, result });
+  });
+  const claims: ParsedCondition[] = [];
+  spec.claims.forEach((c, index) => {
+    if (c.kind !== "condition-decides") return;
+    const result = parseCondition(c.condition, ["claims", index, "condition"], names);
+    if (!result.ok) issues.push(result.issue);
+    claims.push({ index, text: c.condition, result });
+  });
+  return { assumptions, claims };
+}
+
+function compileCondition(describe: Describe, { index, text, result }: ParsedCondition): CompiledCondition {
+  if (!result.ok) throw new Error("unreachable: condition issues returned above");
+  const lhs = describe(result.lhs);
+  const rhs = describe(result.rhs);
+  const evalSide = instantiate<(p: ArrayLike<number>) => number>(["p"], `return ${emitExpression(result.lhs, {})};`);
+  const evalOther = instantiate<(p: ArrayLike<number>) => number>(["p"], `return ${emitExpression(result.rhs, {})};`);
+  const op = result.op;
+  return {
+    assumption: index,
+    text,
+    lhs,
+    rhs,
+    op,
+    tex: `${lhs.tex} ${COMPARISON_TEX[op]} ${rhs.tex}`,
+    evaluate: (p) => {
+      const l = evalSide(p);
+      const r = evalOther(p);
+      const holds = op === "<" ? l < r : op === "<=" ? l <= r : op === ">" ? l > r : l >= r;
+      return { lhs: l, rhs: r, holds };
+    },
+  };
 }
 
 /** Spec → Model: parse, whitelist, differentiate, generate code, typeset. Collects every issue. */
@@ -39,24 +85,10 @@ export function compileModel(spec: NormalizedSpec): Parsed<Model> {
     if (parsed.ok) trees.push(parsed.node);
     else issues.push(parsed.issue);
   }
-  type ParsedCondition = { index: number; text: string; result: ReturnType<typeof parseCondition> };
-  const parsedConditions: ParsedCondition[] = [];
-  spec.assumptions.forEach((a, index) => {
-    if (a.condition === null) return;
-    const result = parseCondition(a.condition, ["assumptions", index, "condition"], names);
-    if (!result.ok) issues.push(result.issue);
-    parsedConditions.push({ index, text: a.condition, result });
-  });
-  const parsedClaimConditions: ParsedCondition[] = [];
-  spec.claims.forEach((c, index) => {
-    if (c.kind !== "condition-decides") return;
-    const result = parseCondition(c.condition, ["claims", index, "condition"], names);
-    if (!result.ok) issues.push(result.issue);
-    parsedClaimConditions.push({ index, text: c.condition, result });
-  });
+  const parsedConditions = parseConditions(spec, names, issues);
   if (issues.length) return { ok: false, issues };
 
-  const describe = (node: MathNode): CompiledExpression => ({
+  const describe: Describe = (node) => ({
     node,
     text: expressionToText(node, names.user),
     tex: expressionToTex(node, names.user),
@@ -74,31 +106,6 @@ export function compileModel(spec: NormalizedSpec): Parsed<Model> {
     jacobianParametric: body(jacobianNodes.flat(), {}),
   };
 
-  const compileCondition = ({ index, text, result }: ParsedCondition): CompiledCondition => {
-    if (!result.ok) throw new Error("unreachable: condition issues returned above");
-    const lhs = describe(result.lhs);
-    const rhs = describe(result.rhs);
-    const evalSide = instantiate<(p: ArrayLike<number>) => number>(["p"], `return ${emitExpression(result.lhs, {})};`);
-    const evalOther = instantiate<(p: ArrayLike<number>) => number>(["p"], `return ${emitExpression(result.rhs, {})};`);
-    const op = result.op;
-    return {
-      assumption: index,
-      text,
-      lhs,
-      rhs,
-      op,
-      tex: `${lhs.tex} ${COMPARISON_TEX[op]} ${rhs.tex}`,
-      evaluate: (p) => {
-        const l = evalSide(p);
-        const r = evalOther(p);
-        const holds = op === "<" ? l < r : op === "<=" ? l <= r : op === ">" ? l > r : l >= r;
-        return { lhs: l, rhs: r, holds };
-      },
-    };
-  };
-  const conditions = parsedConditions.map(compileCondition);
-  const claimConditions = parsedClaimConditions.map(compileCondition);
-
   return {
     ok: true,
     value: {
@@ -109,8 +116,8 @@ export function compileModel(spec: NormalizedSpec): Parsed<Model> {
       parameterValues,
       equations,
       jacobian,
-      conditions,
-      claimConditions,
+      conditions: parsedConditions.assumptions.map((c) => compileCondition(describe, c)),
+      claimConditions: parsedConditions.claims.map((c) => compileCondition(describe, c)),
       rhs: instantiateRhs(source.rhs),
       jacobianAt: instantiateRhs(source.jacobian),
       rhsParametric: instantiateParametric(source.rhsParametric),

@@ -3,7 +3,7 @@ import type { Results } from "../analysis/types.js";
 import { buildFigures } from "./figures/index.js";
 import { renderSvg } from "./render/svg.js";
 import { assembleDossierHtml } from "./assemble.js";
-import type { FigureView, RenderOptions } from "./view.js";
+import type { FigureView, RenderOptions } from "./view/index.js";
 
 export interface RenderedFigure extends FigureView {
   /** The vega-lite spec the SVG was rendered from, for users who restyle the figure. */

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { DEFAULT_BASIN_COARSE, DEFAULT_BASIN_RESOLUTION, DEFAULT_CLAIM_CONDITION_SAMPLES, DEFAULT_CLAIM_NEAR } from "./defaults.js";
 
 /**
  * The spec contract (see DEVELOPERS.md). Each key carries its documentation, which flows into
@@ -55,7 +56,7 @@ export const AssumptionSpecSchema = z
 
 const pointSchema = z.record(z.string(), finite()).describe("A point in state space: a value for every state.");
 const nearTolerance = z.number().positive().max(1).optional()
-  .describe("How near counts as near, as a fraction of the window in each state. Default 0.02.");
+  .describe(`How near counts as near, as a fraction of the window in each state. Default ${DEFAULT_CLAIM_NEAR}.`);
 const presenceSchema = z.string().min(1)
   .describe("Which populations the attractor keeps: 'coexistence' (all present), '<state> only' (e.g. 'S only'), or 'all absent'.");
 const claimBase = {
@@ -101,7 +102,7 @@ export const ClaimSpecSchema = z.discriminatedUnion("kind", [
     kind: z.literal("condition-decides"),
     condition: z.string().describe("An inequality between parameters, e.g. 'a12 < K1/K2'."),
     attractor: presenceSchema,
-    samples: z.number().int().min(8).max(4096).optional().describe("Parameter points sampled across the ranges. Default 64."),
+    samples: z.number().int().min(8).max(4096).optional().describe(`Parameter points sampled across the ranges. Default ${DEFAULT_CLAIM_CONDITION_SAMPLES}.`),
   }).describe("The condition holds exactly when a stable attractor of this kind exists, across the parameter ranges (necessary and sufficient)."),
   z.strictObject({
     ...claimBase,
@@ -154,9 +155,9 @@ export const KeelSpecSchema = z
         basins: z
           .strictObject({
             resolution: z.number().int().min(8).max(4096).optional()
-              .describe("Effective cells per side of the basin map. Default 1024."),
+              .describe(`Effective cells per side of the basin map. Default ${DEFAULT_BASIN_RESOLUTION}.`),
             coarse: z.number().int().min(4).max(1024).optional()
-              .describe("Cells per side of the first uniform pass; resolution/coarse must be a power of two. Default 64."),
+              .describe(`Cells per side of the first uniform pass; resolution/coarse must be a power of two. Default ${DEFAULT_BASIN_COARSE}.`),
           })
           .optional()
           .describe("Basin map settings."),

@@ -1,133 +1,265 @@
 import type { SpecIssue } from "../diagnostics/issue.js";
 import { formatPath } from "../diagnostics/issue.js";
 import { messages } from "../diagnostics/messages.js";
-import type { KeelSpecInput } from "./schema.js";
+import type { ClaimSpec, KeelSpecInput } from "./schema.js";
 import { IDENTIFIER, isReservedName } from "./names.js";
+import { DEFAULT_BASIN_COARSE, DEFAULT_BASIN_RESOLUTION } from "./defaults.js";
+
+/**
+ * Cross-field rules zod's shape check cannot express: a list of small named rules, each from the
+ * spec to the issues it finds, run in a fixed order so the issues print in the order of the file.
+ */
+type Path = (string | number)[];
+type SpecRule = (spec: KeelSpecInput) => SpecIssue[];
 
 const own = (o: object, k: string) => Object.prototype.hasOwnProperty.call(o, k);
+const issue = (code: string, path: Path, message: string): SpecIssue => ({ code, path, message });
+const stateNamesOf = (spec: KeelSpecInput) => spec.states.map((s) => s.name);
 
-/** Cross-field rules zod's shape check cannot express. Returns every issue found. */
-export function validateSpecRules(spec: KeelSpecInput): SpecIssue[] {
+function planarOnly(spec: KeelSpecInput): SpecIssue[] {
+  return spec.states.length === 2
+    ? []
+    : [issue("planar_only", ["states"], messages.planarOnly(spec.states.length))];
+}
+
+/** State and parameter names: valid identifiers, not reserved, each used once. */
+function namesAreUsable(spec: KeelSpecInput): SpecIssue[] {
   const issues: SpecIssue[] = [];
-  const add = (code: string, path: (string | number)[], message: string) => issues.push({ code, path, message });
-
-  if (spec.states.length !== 2) add("planar_only", ["states"], messages.planarOnly(spec.states.length));
-
   const firstUse = new Map<string, string>();
-  const checkName = (name: string, path: (string | number)[]) => {
-    if (!IDENTIFIER.test(name)) return add("invalid_name", path, messages.invalidIdentifier(name));
-    if (isReservedName(name))
-      return add("reserved_name", path, name === "t" ? messages.timeNameReserved() : messages.reservedName(name));
+  const check = (name: string, path: Path) => {
+    if (!IDENTIFIER.test(name))
+      return issues.push(issue("invalid_name", path, messages.invalidIdentifier(name)));
+    if (isReservedName(name)) {
+      const message = name === "t" ? messages.timeNameReserved() : messages.reservedName(name);
+      return issues.push(issue("reserved_name", path, message));
+    }
     const first = firstUse.get(name);
-    if (first) return add("duplicate_name", path, messages.duplicateName(name, first));
+    if (first) return issues.push(issue("duplicate_name", path, messages.duplicateName(name, first)));
     firstUse.set(name, formatPath(path));
   };
-  spec.states.forEach((s, i) => checkName(s.name, ["states", i, "name"]));
-  (spec.parameters ?? []).forEach((p, i) => checkName(p.name, ["parameters", i, "name"]));
+  spec.states.forEach((s, i) => check(s.name, ["states", i, "name"]));
+  (spec.parameters ?? []).forEach((p, i) => check(p.name, ["parameters", i, "name"]));
+  return issues;
+}
 
-  const stateNames = spec.states.map((s) => s.name);
-  for (const [i, s] of spec.states.entries()) {
-    if (!(s.min < s.max)) add("interval_order", ["states", i], messages.intervalOrder(s.min, s.max));
-    if (!own(spec.equations, s.name)) add("missing_equation", ["equations"], messages.missingEquation(s.name));
-  }
-  for (const key of Object.keys(spec.equations)) {
-    if (!stateNames.includes(key)) add("unknown_state", ["equations", key], messages.equationForUnknownState(key));
-  }
+/** Each state: min < max, and an equation. */
+function statesAreComplete(spec: KeelSpecInput): SpecIssue[] {
+  return spec.states.flatMap((s, i) => [
+    ...(s.min < s.max ? [] : [issue("interval_order", ["states", i], messages.intervalOrder(s.min, s.max))]),
+    ...(own(spec.equations, s.name)
+      ? []
+      : [issue("missing_equation", ["equations"], messages.missingEquation(s.name))]),
+  ]);
+}
 
-  for (const [i, p] of (spec.parameters ?? []).entries()) {
-    if (!p.range) continue;
+function equationsAreForStates(spec: KeelSpecInput): SpecIssue[] {
+  const states = stateNamesOf(spec);
+  return Object.keys(spec.equations)
+    .filter((key) => !states.includes(key))
+    .map((key) => issue("unknown_state", ["equations", key], messages.equationForUnknownState(key)));
+}
+
+/** A parameter's range: lo < hi, and it contains the nominal value. */
+function rangesHoldValues(spec: KeelSpecInput): SpecIssue[] {
+  return (spec.parameters ?? []).flatMap((p, i): SpecIssue[] => {
+    if (!p.range) return [];
     const [lo, hi] = p.range;
-    if (!(lo < hi)) add("interval_order", ["parameters", i, "range"], messages.intervalOrder(lo, hi));
-    else if (p.value < lo || p.value > hi)
-      add("range_excludes_value", ["parameters", i, "range"], messages.rangeExcludesValue(p.value, lo, hi));
-  }
+    const path = ["parameters", i, "range"];
+    if (!(lo < hi)) return [issue("interval_order", path, messages.intervalOrder(lo, hi))];
+    if (p.value < lo || p.value > hi)
+      return [issue("range_excludes_value", path, messages.rangeExcludesValue(p.value, lo, hi))];
+    return [];
+  });
+}
 
+/** The window: only declared states, an interval for each, inside the state's bounds. */
+function windowFitsStates(spec: KeelSpecInput): SpecIssue[] {
   const window = spec.window;
-  if (window) {
-    for (const key of Object.keys(window)) {
-      if (!stateNames.includes(key)) add("unknown_state", ["window", key], messages.windowUnknownState(key));
+  if (!window) return [];
+  const states = stateNamesOf(spec);
+  const unknown = Object.keys(window)
+    .filter((key) => !states.includes(key))
+    .map((key) => issue("unknown_state", ["window", key], messages.windowUnknownState(key)));
+  const perState = spec.states.flatMap((s): SpecIssue[] => {
+    if (!own(window, s.name))
+      return [issue("missing_window", ["window"], messages.windowMissingState(s.name))];
+    const [lo, hi] = window[s.name];
+    if (!(lo < hi)) return [issue("interval_order", ["window", s.name], messages.intervalOrder(lo, hi))];
+    if (lo < s.min || hi > s.max) {
+      const message = messages.windowOutsideBounds(s.name, lo, hi, s.min, s.max);
+      return [issue("window_outside_bounds", ["window", s.name], message)];
     }
-    for (const s of spec.states) {
-      if (!own(window, s.name)) {
-        add("missing_window", ["window"], messages.windowMissingState(s.name));
-        continue;
-      }
-      const [lo, hi] = window[s.name];
-      if (!(lo < hi)) add("interval_order", ["window", s.name], messages.intervalOrder(lo, hi));
-      else if (lo < s.min || hi > s.max)
-        add("window_outside_bounds", ["window", s.name], messages.windowOutsideBounds(s.name, lo, hi, s.min, s.max));
-    }
-  }
+    return [];
+  });
+  return [...unknown, ...perState];
+}
 
-  for (const [i, sc] of (spec.scenarios ?? []).entries()) {
-    for (const key of Object.keys(sc.initial)) {
-      if (!stateNames.includes(key)) add("unknown_state", ["scenarios", i, "initial", key], messages.initialUnknown(key));
-    }
-    for (const s of spec.states) {
-      if (!own(sc.initial, s.name)) {
-        add("missing_initial", ["scenarios", i, "initial"], messages.initialMissing(s.name));
-        continue;
-      }
+/** Each scenario's initial state: only declared states, a value for each, inside the window. */
+function initialStatesFit(spec: KeelSpecInput): SpecIssue[] {
+  const states = stateNamesOf(spec);
+  const window = spec.window;
+  return (spec.scenarios ?? []).flatMap((sc, i) => {
+    const path = ["scenarios", i, "initial"];
+    const unknown = Object.keys(sc.initial)
+      .filter((key) => !states.includes(key))
+      .map((key) => issue("unknown_state", [...path, key], messages.initialUnknown(key)));
+    const perState = spec.states.flatMap((s): SpecIssue[] => {
+      if (!own(sc.initial, s.name)) return [issue("missing_initial", path, messages.initialMissing(s.name))];
       const v = sc.initial[s.name];
       const [lo, hi] = window && own(window, s.name) ? window[s.name] : [s.min, s.max];
       if (v < lo || v > hi)
-        add("initial_outside_window", ["scenarios", i, "initial", s.name], messages.initialOutsideWindow(s.name, v, lo, hi));
-    }
-  }
+        return [
+          issue(
+            "initial_outside_window",
+            [...path, s.name],
+            messages.initialOutsideWindow(s.name, v, lo, hi),
+          ),
+        ];
+      return [];
+    });
+    return [...unknown, ...perState];
+  });
+}
+
+/** Adaptive refinement halves cells: the fine grid must be the coarse one times a power of two. */
+function basinGridRefines(spec: KeelSpecInput): SpecIssue[] {
   const basins = spec.analysis?.basins;
-  if (basins) {
-    const resolution = basins.resolution ?? 1024;
-    const coarse = basins.coarse ?? 64;
-    const ratio = resolution / coarse;
-    if (!(Number.isInteger(ratio) && ratio >= 1 && (ratio & (ratio - 1)) === 0))
-      add("basin_grid", ["analysis", "basins"], messages.basinGrid(resolution, coarse));
-  }
+  if (!basins) return [];
+  const resolution = basins.resolution ?? DEFAULT_BASIN_RESOLUTION;
+  const coarse = basins.coarse ?? DEFAULT_BASIN_COARSE;
+  const ratio = resolution / coarse;
+  if (Number.isInteger(ratio) && ratio >= 1 && (ratio & (ratio - 1)) === 0) return [];
+  return [issue("basin_grid", ["analysis", "basins"], messages.basinGrid(resolution, coarse))];
+}
 
-  const ranged = new Set((spec.parameters ?? []).filter((p) => p.range).map((p) => p.name));
-  const declared = new Set((spec.parameters ?? []).map((p) => p.name));
-  const checkStudied = (name: string, path: (string | number)[]) => {
-    if (!declared.has(name)) add("unknown_parameter", path, messages.unknownParameter(name));
-    else if (!ranged.has(name)) add("parameter_without_range", path, messages.parameterWithoutRange(name));
-  };
-  (spec.analysis?.parameters ?? []).forEach((n, i) => checkStudied(n, ["analysis", "parameters", i]));
-  (spec.analysis?.parameterPairs ?? []).forEach(([a, b], i) => {
-    checkStudied(a, ["analysis", "parameterPairs", i, 0]);
-    checkStudied(b, ["analysis", "parameterPairs", i, 1]);
-    if (a === b) add("pair_repeats", ["analysis", "parameterPairs", i], messages.pairRepeats(a));
-  });
+/** A parameter named for a threshold search must be declared and have a range. */
+function studiedParameterIssues(spec: KeelSpecInput, name: string, path: Path): SpecIssue[] {
+  const named = (spec.parameters ?? []).filter((p) => p.name === name);
+  if (!named.length) return [issue("unknown_parameter", path, messages.unknownParameter(name))];
+  if (!named.some((p) => p.range))
+    return [issue("parameter_without_range", path, messages.parameterWithoutRange(name))];
+  return [];
+}
 
-  const stateSet = new Set(stateNames);
-  const claimIds = new Map<string, number>();
-  (spec.claims ?? []).forEach((c, i) => {
-    const first = claimIds.get(c.id);
-    if (first !== undefined) add("duplicate_name", ["claims", i, "id"], messages.duplicateName(c.id, `claims[${first}].id`));
-    else claimIds.set(c.id, i);
-    const checkPoint = (point: Record<string, number> | undefined, key: string) => {
-      if (!point) return;
-      for (const s of stateNames) if (!own(point, s)) add("missing_state", ["claims", i, key], messages.pointMissing(s));
-      for (const k of Object.keys(point)) if (!stateSet.has(k)) add("unknown_state", ["claims", i, key, k], messages.initialUnknown(k));
-    };
-    if (c.kind === "equilibrium-type") checkPoint(c.near, "near");
-    if (c.kind === "scenario-fate") {
-      checkPoint(c.near, "near");
-      if (!(spec.scenarios ?? []).some((sc) => sc.name === c.scenario)) add("unknown_scenario", ["claims", i, "scenario"], messages.unknownScenario(c.scenario));
-      if (c.reaches === "cycle" && c.near) add("claim_form", ["claims", i, "near"], messages.claimNearWithCycle());
+function studiedParametersHaveRanges(spec: KeelSpecInput): SpecIssue[] {
+  const single = (spec.analysis?.parameters ?? []).flatMap((name, i) =>
+    studiedParameterIssues(spec, name, ["analysis", "parameters", i]),
+  );
+  const pairs = (spec.analysis?.parameterPairs ?? []).flatMap(([a, b], i) => [
+    ...studiedParameterIssues(spec, a, ["analysis", "parameterPairs", i, 0]),
+    ...studiedParameterIssues(spec, b, ["analysis", "parameterPairs", i, 1]),
+    ...(a === b ? [issue("pair_repeats", ["analysis", "parameterPairs", i], messages.pairRepeats(a))] : []),
+  ]);
+  return [...single, ...pairs];
+}
+
+/** A point named by a claim gives a value for every state, and only for states. */
+function claimPointIssues(
+  spec: KeelSpecInput,
+  point: Record<string, number> | undefined,
+  path: Path,
+): SpecIssue[] {
+  if (!point) return [];
+  const states = stateNamesOf(spec);
+  return [
+    ...states
+      .filter((s) => !own(point, s))
+      .map((s) => issue("missing_state", path, messages.pointMissing(s))),
+    ...Object.keys(point)
+      .filter((k) => !states.includes(k))
+      .map((k) => issue("unknown_state", [...path, k], messages.initialUnknown(k))),
+  ];
+}
+
+/** What one claim refers to (a point, a scenario, a parameter, an attractor) must exist. */
+function claimReferenceIssues(spec: KeelSpecInput, claim: ClaimSpec, i: number): SpecIssue[] {
+  const at = (...rest: Path): Path => ["claims", i, ...rest];
+  switch (claim.kind) {
+    case "equilibrium-type":
+      return claimPointIssues(spec, claim.near, at("near"));
+    case "scenario-fate": {
+      const known = (spec.scenarios ?? []).some((sc) => sc.name === claim.scenario);
+      return [
+        ...claimPointIssues(spec, claim.near, at("near")),
+        ...(known
+          ? []
+          : [issue("unknown_scenario", at("scenario"), messages.unknownScenario(claim.scenario))]),
+        ...(claim.reaches === "cycle" && claim.near
+          ? [issue("claim_form", at("near"), messages.claimNearWithCycle())]
+          : []),
+      ];
     }
-    if (c.kind === "parameter-side" || c.kind === "threshold-value") checkStudied(c.parameter, ["claims", i, "parameter"]);
-    if (c.kind === "condition-decides") {
-      const allowed = ["coexistence", "all absent", ...subsetsOnly(stateNames)];
-      if (!allowed.includes(c.attractor)) add("unknown_attractor", ["claims", i, "attractor"], messages.unknownAttractor(c.attractor, allowed));
+    case "parameter-side":
+    case "threshold-value":
+      return studiedParameterIssues(spec, claim.parameter, at("parameter"));
+    case "condition-decides": {
+      const allowed = ["coexistence", "all absent", ...subsetsOnly(stateNamesOf(spec))];
+      if (allowed.includes(claim.attractor)) return [];
+      return [
+        issue("unknown_attractor", at("attractor"), messages.unknownAttractor(claim.attractor, allowed)),
+      ];
     }
-  });
-
-  const scenarioNames = new Map<string, number>();
-  for (const [i, sc] of (spec.scenarios ?? []).entries()) {
-    const first = scenarioNames.get(sc.name);
-    if (first !== undefined)
-      add("duplicate_name", ["scenarios", i, "name"], messages.duplicateName(sc.name, `scenarios[${first}].name`));
-    else scenarioNames.set(sc.name, i);
+    default:
+      return [];
   }
-  return issues;
+}
+
+/** Claims: ids used once, and every reference resolves. */
+function claimsAreWellFormed(spec: KeelSpecInput): SpecIssue[] {
+  const firstIndex = new Map<string, number>();
+  return (spec.claims ?? []).flatMap((claim, i) => {
+    const first = firstIndex.get(claim.id);
+    if (first === undefined) firstIndex.set(claim.id, i);
+    const duplicate =
+      first === undefined
+        ? []
+        : [
+            issue(
+              "duplicate_name",
+              ["claims", i, "id"],
+              messages.duplicateName(claim.id, `claims[${first}].id`),
+            ),
+          ];
+    return [...duplicate, ...claimReferenceIssues(spec, claim, i)];
+  });
+}
+
+function scenarioNamesAreUnique(spec: KeelSpecInput): SpecIssue[] {
+  const firstIndex = new Map<string, number>();
+  return (spec.scenarios ?? []).flatMap((sc, i) => {
+    const first = firstIndex.get(sc.name);
+    if (first === undefined) {
+      firstIndex.set(sc.name, i);
+      return [];
+    }
+    return [
+      issue(
+        "duplicate_name",
+        ["scenarios", i, "name"],
+        messages.duplicateName(sc.name, `scenarios[${first}].name`),
+      ),
+    ];
+  });
+}
+
+/** The rules, in the order their issues are reported. */
+const SPEC_RULES: readonly SpecRule[] = [
+  planarOnly,
+  namesAreUsable,
+  statesAreComplete,
+  equationsAreForStates,
+  rangesHoldValues,
+  windowFitsStates,
+  initialStatesFit,
+  basinGridRefines,
+  studiedParametersHaveRanges,
+  claimsAreWellFormed,
+  scenarioNamesAreUnique,
+];
+
+/** Runs every cross-field rule. Returns every issue found. */
+export function validateSpecRules(spec: KeelSpecInput): SpecIssue[] {
+  return SPEC_RULES.flatMap((rule) => rule(spec));
 }
 
 /** '<state> only' phrases for every proper, non-empty subset of the states, in state order. */

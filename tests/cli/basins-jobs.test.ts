@@ -5,21 +5,22 @@ import { analyze, analyzeAsync } from "../../src/analysis/analyze.js";
 import { instantiateBasinKernel } from "../../src/analysis/basins/kernel.js";
 import type { BatchEvaluator } from "../../src/analysis/basins/refine.js";
 import { prepareModel } from "../../src/pipeline.js";
-import { CLI_ENTRY, PROJECT_ROOT, removeWorkDirs, runKeel } from "../helpers/cli.js";
+import { CLI_ENTRY, removeWorkDirs, runKeel } from "../fixtures/cli.js";
+import { EXAMPLE_IDS, examplePath, exampleSpec } from "../fixtures/examples.js";
 
 /**
  * Determinism across worker counts (common practice for parallel numerics: the answer is
  * assembled in a fixed order, so it must not depend on how the work was split). The CLI runs
  * are the built dist/ (npm test builds first).
  */
-const EXAMPLES = ["reservoir-competition", "grazer-forage"];
+const EXAMPLES = EXAMPLE_IDS;
 /** An awkward batch size (prime, and not a divisor of any level's batch) for the odd evaluator. */
 const ODD_CHUNK = 7;
 
 afterAll(() => removeWorkDirs());
 
 function analyzeJobs(example: string, jobs: number): Buffer {
-  const spec = join(PROJECT_ROOT, "specs", `${example}.json`);
+  const spec = examplePath(example);
   const run = runKeel(["analyze", spec, "--out", "out", "--jobs", String(jobs), "--quiet"]);
   expect(run.status, run.stderr).toBe(0);
   return readFileSync(join(run.cwd, "out", "results.json"));
@@ -66,7 +67,7 @@ describe("analyzeAsync with an evaluator that splits batches oddly", () => {
 
   for (const example of EXAMPLES) {
     it(`analyzeAsync(${example}, chunks of 7 in reverse) deep-equals analyze(${example})`, async () => {
-      const spec = JSON.parse(readFileSync(join(PROJECT_ROOT, "specs", `${example}.json`), "utf8"));
+      const spec = exampleSpec(example);
       // a lower resolution keeps the test short; 256/16 still refines over four levels
       spec.analysis = { basins: { resolution: 256, coarse: 16 } };
       const prepared = prepareModel(JSON.stringify(spec));

@@ -1,5 +1,5 @@
 /**
- * `keel build` through the built CLI (issue 4, items 1, 6 and 8): byte-identical rebuilds under
+ * `keel build` through the built CLI: byte-identical rebuilds under
  * SOURCE_DATE_EPOCH, paper sizes, --no-pdf, and what happens when no Chromium can be used.
  * The option checks run on a tiny invented model (a damped spring) so each build takes seconds.
  */
@@ -7,8 +7,9 @@ import { chmodSync, existsSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { CHROMIUM_ENV, findChromium } from "../../src/report/render/chromium.js";
-import { listFiles, makeWorkDir, PROJECT_ROOT, removeWorkDirs, runKeel, STACK_FRAME, type CliResult } from "../helpers/cli.js";
-import { pdfinfo, pdfPageSize, popplerAvailable, popplerMissingMessage } from "../helpers/poppler.js";
+import { listFiles, makeWorkDir, removeWorkDirs, runKeel, STACK_FRAME, type CliResult } from "../fixtures/cli.js";
+import { pdfinfo, pdfPageSize, popplerAvailable, popplerMissingMessage } from "../fixtures/poppler.js";
+import { exampleSpec, SMALL_BASINS } from "../fixtures/examples.js";
 
 const chromium = findChromium(process.env);
 const canPrint = chromium !== null && popplerAvailable;
@@ -63,8 +64,7 @@ function build(spec: object, extra: string[] = [], env: Record<string, string | 
 }
 
 function smallExample(): object {
-  const spec = JSON.parse(readFileSync(join(PROJECT_ROOT, "specs", "reservoir-competition.json"), "utf8")) as Record<string, unknown>;
-  return { ...spec, analysis: { basins: { resolution: 64, coarse: 16 } } };
+  return { ...exampleSpec("reservoir-competition"), analysis: { basins: SMALL_BASINS } };
 }
 
 afterAll(removeWorkDirs);

@@ -4,27 +4,28 @@
  * dossier PDF shows the verdicts on the Summary page, the first page after the cover.
  */
 import { execFileSync } from "node:child_process";
-import { existsSync, readFileSync, writeFileSync } from "node:fs";
+import { existsSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { findChromium } from "../../src/report/render/chromium.js";
-import { popplerAvailable, popplerMissingMessage } from "../helpers/poppler.js";
-import { makeWorkDir, PROJECT_ROOT, removeWorkDirs, runKeel, STACK_FRAME } from "../helpers/cli.js";
+import { popplerAvailable, popplerMissingMessage } from "../fixtures/poppler.js";
+import { makeWorkDir, removeWorkDirs, runKeel, STACK_FRAME } from "../fixtures/cli.js";
+import { exampleSpec, SMALL_BASINS, withBasins } from "../fixtures/examples.js";
+import { competitionCoexistenceStable } from "../fixtures/models.js";
 
 afterAll(removeWorkDirs);
 
 interface ClaimInput { id: string; kind: string; [key: string]: unknown }
 interface ExampleSpec { id: string; title: string; claims?: ClaimInput[]; analysis?: Record<string, unknown>; [key: string]: unknown }
 
-function readExample(file: string): ExampleSpec {
-  return JSON.parse(readFileSync(join(PROJECT_ROOT, "specs", file), "utf8")) as ExampleSpec;
-}
+const readExample = (file: string): ExampleSpec => exampleSpec(file.replace(/\.json$/, "")) as ExampleSpec;
 
-/** The example with a small basin map (claims do not read the basins, and the default map is the slow part). */
+/**
+ * The example with a small basin map (claims do not read the basins, and the default map is the slow part).
+ */
 function fastExample(file: string, edit: (spec: ExampleSpec) => void = () => {}): string {
-  const spec = readExample(file);
+  const spec = withBasins(readExample(file), SMALL_BASINS) as ExampleSpec;
   delete spec.$schema; // the relative path means nothing in a temporary folder
-  spec.analysis = { ...spec.analysis, basins: { resolution: 64, coarse: 16 } };
   edit(spec);
   return JSON.stringify(spec, null, 2) + "\n";
 }
@@ -36,19 +37,8 @@ function verdictLines(stdout: string): Map<string, { verdict: string; evidence: 
   return out;
 }
 
-/**
- * Lotka–Volterra competition (Murray, Mathematical Biology I, 3rd ed., section 3.5), the model of
- * the reservoir example: is there a positive, stable coexistence equilibrium at these values?
- */
-function coexistenceStable(p: Record<string, number>): boolean {
-  const d = 1 - p.a12 * p.a21;
-  const n = (p.K1 - p.a12 * p.K2) / d;
-  const s = (p.K2 - p.a21 * p.K1) / d;
-  if (!(n > 0 && s > 0)) return false;
-  const j11 = -p.r1 * n / p.K1, j12 = -p.r1 * p.a12 * n / p.K1;
-  const j21 = -p.r2 * p.a21 * s / p.K2, j22 = -p.r2 * s / p.K2;
-  return j11 + j22 < 0 && j11 * j22 - j12 * j21 > 0;
-}
+/** The reservoir example's model in closed form: a positive, stable coexistence equilibrium? */
+const coexistenceStable = competitionCoexistenceStable;
 
 describe("keel check --claims", () => {
   it("keel check --claims specs/reservoir-competition.json exits 3 and lists each verdict, a12-decides contradicted", () => {

@@ -4,14 +4,15 @@
  * whose hashes were all fixed is caught by the re-run, number by number; and builds with
  * SOURCE_DATE_EPOCH set are byte-identical across --jobs values.
  */
-import { cpSync, readdirSync, readFileSync, writeFileSync } from "node:fs";
+import { cpSync, readFileSync, writeFileSync } from "node:fs";
 import { createHash } from "node:crypto";
 import { join } from "node:path";
 import { PDFArray, PDFDict, PDFDocument, PDFHexString, PDFName, PDFRawStream, PDFString } from "pdf-lib";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { findChromium } from "../../src/report/render/chromium.js";
 import { manifestText, type Manifest } from "../../src/report/archive/manifest.js";
-import { listFiles, makeWorkDir, PROJECT_ROOT, removeWorkDirs, runKeel, type CliResult } from "../helpers/cli.js";
+import { listFiles, makeWorkDir, PROJECT_ROOT, removeWorkDirs, runKeel, type CliResult } from "../fixtures/cli.js";
+import { EXAMPLE_IDS, exampleSpec, SMALL_BASINS, withBasins } from "../fixtures/examples.js";
 
 const chromium = findChromium(process.env);
 if (!chromium) console.warn("skipping the PDF archive tests: no Chromium found (set KEEL_CHROMIUM or apt-get install chromium)");
@@ -27,9 +28,9 @@ const MAIN_STUDIED = ["a12"];
  * the threshold search (the slowest pass left) to the parameters the spec's claims name.
  */
 function fastSpec(file: string, studied?: string[]): string {
-  const spec = JSON.parse(readFileSync(join(PROJECT_ROOT, "specs", file), "utf8"));
+  const spec = withBasins(exampleSpec(file.replace(/\.json$/, "")), SMALL_BASINS);
   delete spec.$schema; // the relative path means nothing in a temporary folder
-  spec.analysis = { ...spec.analysis, basins: { resolution: 64, coarse: 16 }, ...(studied ? { parameters: studied } : {}) };
+  if (studied) spec.analysis.parameters = studied;
   return JSON.stringify(spec, null, 2) + "\n";
 }
 
@@ -186,7 +187,7 @@ describe.skipIf(!chromium)("keel verify on a build with its PDF", () => {
     (file) => {
       const dir = copyOfBuild();
       changeFileByte(join(dir, file));
-      const escaped = file.replace(/[.\/]/g, "\\$&");
+      const escaped = file.replace(/[./]/g, "\\$&");
       expectFailsNaming(verify(dir), new RegExp(`^FAIL tampered: ${escaped}\\b`, "m"));
     },
   );
@@ -303,7 +304,7 @@ function embeddedManifest(dir: string): string {
   return manifestText(manifest);
 }
 
-const examples = readdirSync(join(PROJECT_ROOT, "specs")).filter((f) => f.endsWith(".json")).sort();
+const examples = EXAMPLE_IDS.map((id) => `${id}.json`);
 
 describe("keel verify round-trips on every example spec (built without a PDF)", () => {
   afterAll(removeWorkDirs);

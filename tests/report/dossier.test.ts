@@ -1,5 +1,5 @@
 /**
- * The dossier end to end (issue 4, item 10): every example spec built once with the built CLI,
+ * The dossier end to end: every example spec built once with the built CLI,
  * then its HTML read as a browser would (sections, no URL, escaped spec text) and its PDF read
  * with poppler as an outside reader (page count, the equilibria table, the summary's page).
  * Basin grids are cut to 64 × 64 so the builds stay quick; nothing checked here depends on them.
@@ -9,8 +9,8 @@ import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { CHROMIUM_ENV, findChromium } from "../../src/report/render/chromium.js";
 import { renderPdf } from "../../src/report/render/pdf.js";
-import { makeWorkDir, PROJECT_ROOT, removeWorkDirs, runKeel, type CliResult } from "../helpers/cli.js";
-import { pdfinfo, pdftotext, popplerAvailable, popplerMissingMessage } from "../helpers/poppler.js";
+import { makeWorkDir, PROJECT_ROOT, removeWorkDirs, runKeel, type CliResult } from "../fixtures/cli.js";
+import { pdfinfo, pdftotext, popplerAvailable, popplerMissingMessage } from "../fixtures/poppler.js";
 
 const chromium = findChromium(process.env);
 const canPrint = chromium !== null && popplerAvailable;
@@ -124,7 +124,7 @@ function sectionOutline(html: string): { id: string; heading: string | null }[] 
   });
 }
 
-/** The sections DESIGN.md ("The dossier") lists, in order; optional ones appear when their analysis has something to say. */
+/** The dossier's sections in their fixed order; optional ones appear when their analysis has something to say. */
 function expectedOutline(results: Results): { id: string; heading: string | null }[] {
   return [
     { id: "cover", heading: null },
@@ -171,7 +171,7 @@ for (const spec of exampleSpecs) describe(`keel build specs/${spec.id}.json: the
     if (canPrint && built.pdf) text = pdftotext(built.pdf).split("\f");
   });
 
-  it("buildDossier(example) prints every DESIGN.md section, in order, under its heading", () => {
+  it("buildDossier(example) prints every section, in order, under its heading", () => {
     expect(sectionOutline(built.html)).toEqual(expectedOutline(built.results));
   });
 

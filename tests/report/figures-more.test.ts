@@ -8,6 +8,7 @@ import { buildFigures, type Figure } from "../../src/report/figures/index.js";
 import { BASIN_DRAW_MAX, buildBasinFigure, downsampleBasinGrid } from "../../src/report/figures/basins.js";
 import { branchPieces, buildBifurcationFigure, labelNumber } from "../../src/report/figures/bifurcation.js";
 import { outcomeLetter } from "../../src/report/figures/outcomeMap.js";
+import { outcomeWords } from "../../src/report/words/index.js";
 import {
   BRANCH_STYLES, EQUILIBRIUM_MARKERS, REGION_FILLS, SPECIAL_POINT_MARKERS, SPECIAL_REGION_FILLS, THRESHOLD_CURVE_STYLES,
 } from "../../src/report/figures/palette.js";
@@ -364,15 +365,14 @@ describe("the outcome map", () => {
     const map = results.conditions.maps[0];
     const f = figure("reservoir-competition", "outcome-map-a12-a21");
     const dx = (map.ranges[0][1] - map.ranges[0][0]) / map.nx, dy = (map.ranges[1][1] - map.ranges[1][0]) / map.ny;
+    // the stable equilibria, each by the states it keeps present
     const expected = (a12: number, a21: number) => {
       const perchInvades = a12 < p.K1 / p.K2, breamInvades = a21 < p.K2 / p.K1;
-      return perchInvades && breamInvades ? "coexistence" : !perchInvades && !breamInvades ? "2 attractors" : perchInvades ? "N only" : "S only";
+      return perchInvades && breamInvades ? ["N,S"] : !perchInvades && !breamInvades ? ["N", "S"] : perchInvades ? ["N"] : ["S"];
     };
     rowsOf(f, "cells").forEach((r, c) => {
-      const words = map.legend[map.cells[c]];
-      const kind = expected(Number(r.x) + dx / 2, Number(r.y) + dy / 2);
-      expect(words).toContain(kind);
-      if (kind !== "2 attractors") expect(words).toMatch(/^one attractor/);
+      const found = map.legend[map.cells[c]].attractors.map((a) => (a.kind === "equilibrium" ? a.present.join() : "cycle")).sort();
+      expect(found).toEqual(expected(Number(r.x) + dx / 2, Number(r.y) + dy / 2));
     });
   });
 
@@ -396,9 +396,9 @@ describe("the outcome map", () => {
     const map = results.conditions.maps[0];
     const f = figure("reservoir-competition", "outcome-map-a12-a21");
     const key = rowsOf(f, "key_text").map((r) => (r.text as string[]).join(" "));
-    map.legend.forEach((words, k) => {
+    map.legend.forEach((outcome, k) => {
       expect(key).toContain(`outcome ${outcomeLetter(k)}`);
-      expect(f.caption).toContain(`${outcomeLetter(k)}, ${words}`);
+      expect(f.caption).toContain(`${outcomeLetter(k)}, ${outcomeWords(outcome, results.model.states)}`);
     });
     expect(rowsOf(f, "letters").map((r) => r.text).sort()).toEqual(map.legend.map((_, k) => outcomeLetter(k)).filter((_, k) => map.cells.includes(k)));
     expect([0, 25, 26, 27].map(outcomeLetter)).toEqual(["A", "Z", "AA", "AB"]);

@@ -8,7 +8,7 @@ import { PDFDict, PDFDocument, PDFHexString, PDFName, PDFString } from "pdf-lib"
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { CHROMIUM_ENV, findChromium } from "../../src/report/render/chromium.js";
 import { PdfRenderError, renderPdf, type PdfRenderResult } from "../../src/report/render/pdf.js";
-import { pdfPageSize, pdfinfo, pdftotext, popplerAvailable, popplerMissingMessage } from "../helpers/poppler.js";
+import { pdfPageSize, pdfinfo, pdftotext, popplerAvailable, popplerMissingMessage } from "../fixtures/poppler.js";
 
 const chromium = findChromium(process.env);
 const canPrint = chromium !== null && popplerAvailable;

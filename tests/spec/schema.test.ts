@@ -1,7 +1,7 @@
 /**
  * The published spec schema (schema/keel-spec.schema.json) against the CLI that prints it, a
  * general JSON Schema validator (ajv, draft 2020-12) and keel's own validator; and every example
- * spec end to end: valid, no warning, input not mutated (the vega-lite habit in STYLE.md).
+ * spec end to end: valid, no warning, input not mutated (common practice for example specs).
  */
 import { existsSync, readdirSync, readFileSync } from "node:fs";
 import { join, resolve } from "node:path";
@@ -10,7 +10,8 @@ import { afterAll, describe, expect, it } from "vitest";
 import { parseSpecValue } from "../../src/spec/parse.js";
 import { compileModel } from "../../src/model/compile.js";
 import { analyze } from "../../src/analysis/analyze.js";
-import { PROJECT_ROOT, removeWorkDirs, runKeel } from "../helpers/cli.js";
+import { PROJECT_ROOT, removeWorkDirs, runKeel } from "../fixtures/cli.js";
+import type { JsonSpec } from "../fixtures/examples.js";
 
 const SCHEMA_PATH = join(PROJECT_ROOT, "schema", "keel-spec.schema.json");
 const SCHEMA_TEXT = readFileSync(SCHEMA_PATH, "utf8");
@@ -42,9 +43,9 @@ describe("keel schema", () => {
     expect(run.stdout).toBe(SCHEMA_TEXT);
   });
 
-  it("the committed schema declares JSON Schema draft 2020-12 and compiles in ajv's strict mode", () => {
+  it("the committed schema declares JSON Schema draft 2020-12", () => {
+    // ajv's strict-mode compile runs when this file loads, and a schema it refuses fails the suite there
     expect(schema.$schema).toBe("https://json-schema.org/draft/2020-12/schema");
-    expect(typeof validateWithAjv).toBe("function");
   });
 });
 
@@ -85,9 +86,9 @@ describe.each(examples)("specs/$file against the schema", ({ file, text }) => {
  * Cross-field rules (lo < hi, names declared) are keel's alone and not expected of the schema.
  */
 describe("the schema and keel's validator agree on shape faults", () => {
-  const base = () => JSON.parse(examples[0].text) as Record<string, any>; // eslint-disable-line @typescript-eslint/no-explicit-any
-  const firstState = (s: Record<string, any>) => s.states[0].name as string; // eslint-disable-line @typescript-eslint/no-explicit-any
-  const faults: [string, (s: Record<string, any>) => void][] = [ // eslint-disable-line @typescript-eslint/no-explicit-any
+  const base = () => JSON.parse(examples[0].text) as JsonSpec;
+  const firstState = (s: JsonSpec) => s.states[0].name as string;
+  const faults: [string, (s: JsonSpec) => void][] = [
     ["an unknown top-level key", (s) => (s.paramters = [])],
     ["a parameter value as a string", (s) => (s.parameters[0].value = String(s.parameters[0].value))],
     ["a missing id", (s) => delete s.id],

@@ -4,13 +4,12 @@ import type { EquilibriumResult } from "../phase/equilibria.js";
 import type { CycleResult } from "../flow/cycles.js";
 import type { Box } from "../numeric/window.js";
 import { findCaptureRegions } from "../flow/capture.js";
-import { BASIN_ABSOLUTE_TOL_OF_WIDTH, BASIN_RELATIVE_TOL, generateBasinKernel, type BasinTargets, type KernelSettings } from "./kernel.js";
+import { generateBasinKernel, type BasinTargets, type KernelSettings } from "./kernel.js";
+import { BASIN_ABSOLUTE_TOL_OF_WIDTH, BASIN_INITIAL_STEP_OF_TIMESCALE, BASIN_MAX_STEPS, BASIN_MAX_STEPS_OUTSIDE, BASIN_RELATIVE_TOL } from "../constants.js";
 import { basinRefinement, encodeRuns, labelFractions, type BasinGrid, type BasinGridOptions } from "./refine.js";
 import { labelName, LABEL_BLOW_UP, LABEL_LEFT_WINDOW, LABEL_UNDECIDED } from "./labels.js";
 
 export interface BasinOptions extends BasinGridOptions {}
-
-export const DEFAULT_BASIN_OPTIONS: BasinOptions = { resolution: 1024, coarse: 64 };
 
 export interface BasinResult {
   attractors: string[];
@@ -66,11 +65,11 @@ export function planBasins(model: Model, equilibria: EquilibriumResult[], cycles
   }
   const settings: KernelSettings = {
     horizon,
-    initialStep: Math.min(horizon, timeScale) * 1e-3,
+    initialStep: Math.min(horizon, timeScale) * BASIN_INITIAL_STEP_OF_TIMESCALE,
     relativeTolerance: BASIN_RELATIVE_TOL,
     absoluteOfWidth: BASIN_ABSOLUTE_TOL_OF_WIDTH,
-    maxSteps: 200_000,
-    maxStepsOutside: 2_000,
+    maxSteps: BASIN_MAX_STEPS,
+    maxStepsOutside: BASIN_MAX_STEPS_OUTSIDE,
   };
   return { kernelSource: generateBasinKernel(model, box, targets, settings), targets, options, box };
 }

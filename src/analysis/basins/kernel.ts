@@ -3,12 +3,17 @@ import { emitExpression, literal, PRELUDE } from "../../model/codegen.js";
 import type { Box } from "../numeric/window.js";
 import type { CaptureRegion } from "../flow/capture.js";
 import { LABEL_BLOW_UP, LABEL_LEFT_WINDOW, LABEL_UNDECIDED } from "./labels.js";
-import { ALGEBRAIC_HEADING, ALGEBRAIC_NEAR, ALGEBRAIC_STEPS, BLOWUP_EFOLDING_FRACTION, BLOWUP_WINDOWS, WINDOW_EXIT_SLACK } from "../flow/follow.js";
+import {
+  KERNEL_MIN_STEP, MAX_STEP_OF_HORIZON, NAN_STEP_SHRINK, STEP_ERROR_EXPONENT, STEP_MAX_GROWTH, STEP_MIN_SHRINK, STEP_SAFETY,
+} from "../constants.js";
+import {
+  emitAlgebraicStep, emitCaptureTest, emitCycleCapture, emitHasLeftWindow, emitIsBlowUp, emitIsFarOutside, emitOutsideBy,
+} from "../flow/rules.js";
 
 /**
  * The basin kernel: a Dormand–Prince 5(4) integrator generated for this model, with the
  * right-hand side inlined as straight-line scalar code (no arrays inside the step) and the
- * attractor tests inlined as constants. Written by hand because the general integrators
+ * attractor tests of the fate rules (flow/rules.ts) inlined with their constants. Written by hand because the general integrators
  * allocate per step and dominate the basin map's cost; it is validated against odex in tests.
  *
  * The generated function has the signature (starts: Float64Array, out: Int32Array) => number,
@@ -33,20 +38,6 @@ export interface KernelSettings {
   maxStepsOutside: number;
 }
 
-/**
- * Basin labels need the attractor reached, not an accurate path: 1e-7 relative and 1e-9 of the
- * window keep every label decided by the verified capture regions.
- */
-export const BASIN_RELATIVE_TOL = 1e-7;
-export const BASIN_ABSOLUTE_TOL_OF_WIDTH = 1e-9;
-/**
- * Longest step, as a fraction of the horizon: followTrajectory caps odex the same way, and the
- * algebraic-approach rule (ALGEBRAIC_STEPS steps in a row closing in) needs that many steps.
- */
-export const BASIN_MAX_STEP_OF_HORIZON = 1 / 64;
-/** A crossing of a stable cycle's section this close (scaled) to its fixed point, twice and closing in, labels the cycle. */
-export const CYCLE_CAPTURE_RADIUS = 1e-3;
-
 // Dormand & Prince (1980), "A family of embedded Runge–Kutta formulae", J. Comput. Appl. Math. 6(1): 19–26.
 const A = [
   [],
@@ -59,6 +50,37 @@ const A = [
 ];
 const E = [71 / 57600, 0, -71 / 16695, 71 / 1920, -17253 / 339200, 22 / 525, -1 / 40];
 
+/** Kernel code testing each attractor of `targets` after a step inside the window (fate rules 4, 6, 7), and the per-start state they keep. */
+function emitAttractorTests(box: Box, targets: BasinTargets): { sinkTests: string; slowTests: string; cycleTests: string; perStart: string } {
+  const L = literal;
+  const sinkTests = targets.sinks.map(({ label, region }) => {
+    const { setup, test } = emitCaptureTest(region, box);
+    return `{ ${setup}
+        if (${test}) { label = ${label}; break; } }`;
+  }).join("\n      ");
+  const slowTests = targets.slowSinks.map(({ label, center }, i) => `{
+        const q0 = (${L(center[0])} - x) * ${L(1 / box.width[0])}, q1 = (${L(center[1])} - y) * ${L(1 / box.width[1])};
+        const d = Math.sqrt(q0 * q0 + q1 * q1);
+        const v0 = k1a * ${L(1 / box.width[0])}, v1 = k1b * ${L(1 / box.width[1])};
+        const heading = (v0 * q0 + v1 * q1) / ((Math.sqrt(v0 * v0 + v1 * v1) * d) || 1);
+        ${emitAlgebraicStep(i, label)} }`).join("\n      ");
+  const cycleTests = targets.cycles.map(({ label, center, sense, radius }, i) => `{
+        const before = yPrev - ${L(center[1])}, after = y - ${L(center[1])};
+        if (${sense === 1 ? "before < 0 && after >= 0" : "before > 0 && after <= 0"}) {
+          const w = before / (before - after);
+          const xc = xPrev + w * (x - xPrev);
+          const r = (xc - ${L(center[0])}) * ${L(1 / box.width[0])};
+          if (r > 0) {
+            ${emitCycleCapture(i, label, radius)}
+          }
+        } }`).join("\n      ");
+  const perStart = [
+    ...targets.slowSinks.map((_, i) => `let slowCount${i} = 0, slowLast${i} = Infinity;`),
+    ...targets.cycles.map((_, i) => `let cycleHits${i} = 0, cycleGap${i} = Infinity;`),
+  ].join(" ");
+  return { sinkTests, slowTests, cycleTests, perStart };
+}
+
 export function generateBasinKernel(model: Model, box: Box, targets: BasinTargets, settings: KernelSettings): string {
   const values = Array.from(model.parameterValues);
   const f0 = emitExpression(model.equations[0].node, { parameterValues: values });
@@ -70,40 +92,11 @@ export function generateBasinKernel(model: Model, box: Box, targets: BasinTarget
       A[k - 1].map((a, j) => (a === 0 ? "" : ` + h * ${L(a)} * k${j + 1}${comp}`)).join("");
     return `{ const s0 = x${terms("a")}, s1 = y${terms("b")}; k${k}a = ${f0}; k${k}b = ${f1}; }`;
   };
-  const sinkTests = targets.sinks.map(({ label, region }) => {
-    const [p00, p01, , p11] = region.p;
-    return `{ const z0 = (x - ${L(region.center[0])}) * ${L(1 / box.width[0])}, z1 = (y - ${L(region.center[1])}) * ${L(1 / box.width[1])};
-        if (${L(p00)} * z0 * z0 + ${L(2 * p01)} * z0 * z1 + ${L(p11)} * z1 * z1 < ${L(region.level)}) { label = ${label}; break; } }`;
-  }).join("\n      ");
-  const slowTests = targets.slowSinks.map(({ label, center }, i) => `{
-        const q0 = (${L(center[0])} - x) * ${L(1 / box.width[0])}, q1 = (${L(center[1])} - y) * ${L(1 / box.width[1])};
-        const d = Math.sqrt(q0 * q0 + q1 * q1);
-        const v0 = k1a * ${L(1 / box.width[0])}, v1 = k1b * ${L(1 / box.width[1])};
-        const heading = (v0 * q0 + v1 * q1) / ((Math.sqrt(v0 * v0 + v1 * v1) * d) || 1);
-        if (d < ${L(ALGEBRAIC_NEAR)} && heading > ${L(ALGEBRAIC_HEADING)} && d < slowLast${i}) { slowCount${i}++; slowLast${i} = d; }
-        else { slowCount${i} = 0; slowLast${i} = Infinity; }
-        if (slowCount${i} >= ${ALGEBRAIC_STEPS} || d < 1e-12) { label = ${label}; break; } }`).join("\n      ");
-  const cycleTests = targets.cycles.map(({ label, center, sense, radius }, i) => `{
-        const before = yPrev - ${L(center[1])}, after = y - ${L(center[1])};
-        if (${sense === 1 ? "before < 0 && after >= 0" : "before > 0 && after <= 0"}) {
-          const w = before / (before - after);
-          const xc = xPrev + w * (x - xPrev);
-          const r = (xc - ${L(center[0])}) * ${L(1 / box.width[0])};
-          if (r > 0) {
-            const gap = Math.abs(r - ${L(radius)});
-            if (gap < ${L(CYCLE_CAPTURE_RADIUS)} && gap < cycleGap${i}) { if (++cycleHits${i} >= 2) { label = ${label}; break; } }
-            else cycleHits${i} = 0;
-            cycleGap${i} = gap;
-          }
-        } }`).join("\n      ");
-  const perStart = [
-    ...targets.slowSinks.map((_, i) => `let slowCount${i} = 0, slowLast${i} = Infinity;`),
-    ...targets.cycles.map((_, i) => `let cycleHits${i} = 0, cycleGap${i} = Infinity;`),
-  ].join(" ");
-  const [lo0, lo1] = box.lo, [hi0, hi1] = box.hi, [w0, w1] = box.width;
+  const { sinkTests, slowTests, cycleTests, perStart } = emitAttractorTests(box, targets);
+  const [w0, w1] = box.width;
   const atol0 = settings.absoluteOfWidth * w0, atol1 = settings.absoluteOfWidth * w1;
   const rtol = settings.relativeTolerance;
-  const maxStep = settings.horizon * BASIN_MAX_STEP_OF_HORIZON;
+  const maxStep = settings.horizon * MAX_STEP_OF_HORIZON;
   return `${PRELUDE}
 return function basinKernel(starts, out) {
   let totalSteps = 0;
@@ -132,26 +125,24 @@ return function basinKernel(starts, out) {
       const sa = ea / (${L(atol0)} + ${L(rtol)} * Math.max(Math.abs(x), Math.abs(xn)));
       const sb = eb / (${L(atol1)} + ${L(rtol)} * Math.max(Math.abs(y), Math.abs(yn)));
       const err = Math.sqrt(0.5 * (sa * sa + sb * sb));
-      if (!(err === err)) { h *= 0.25; if (h < 1e-300) { label = ${LABEL_UNDECIDED}; break; } continue; }
+      if (!(err === err)) { h *= ${L(NAN_STEP_SHRINK)}; if (h < ${L(KERNEL_MIN_STEP)}) { label = ${LABEL_UNDECIDED}; break; } continue; }
       // step factor 0.9 err^(-1/5) through exp and log: V8's Math.pow costs several multiplies
-      const factor = err === 0 ? 5 : Math.min(5, Math.max(0.2, 0.9 * Math.exp(-0.2 * Math.log(err))));
+      const factor = err === 0 ? ${L(STEP_MAX_GROWTH)} : Math.min(${L(STEP_MAX_GROWTH)}, Math.max(${L(STEP_MIN_SHRINK)}, ${L(STEP_SAFETY)} * Math.exp(${L(STEP_ERROR_EXPONENT)} * Math.log(err))));
       if (err > 1) { h *= Math.min(1, factor); continue; }
       xPrev = x; yPrev = y;
       const tPrev = t;
       t += h; x = xn; y = yn; k1a = k7a; k1b = k7b; steps++;
       h = Math.min(h * factor, ${L(maxStep)});
-      const out0 = Math.max((${L(lo0)} - x) * ${L(1 / w0)}, (x - ${L(hi0)}) * ${L(1 / w0)});
-      const out1 = Math.max((${L(lo1)} - y) * ${L(1 / w1)}, (y - ${L(hi1)}) * ${L(1 / w1)});
-      const off = Math.max(out0, out1);
-      if (off > ${L(WINDOW_EXIT_SLACK)} && outside === 0) tExit = tPrev;
-      if (off > ${L(BLOWUP_WINDOWS)}) {
+      ${emitOutsideBy(box)}
+      if (${emitHasLeftWindow("off")} && outside === 0) tExit = tPrev;
+      if (${emitIsFarOutside("off")}) {
         // as followTrajectory: a blow-up only if faster than exponential, else a plain exit
         const zx = x * ${L(1 / w0)}, zy = y * ${L(1 / w1)}, vx = k1a * ${L(1 / w0)}, vy = k1b * ${L(1 / w1)};
         const eFolding = Math.sqrt(zx * zx + zy * zy) / Math.sqrt(vx * vx + vy * vy);
-        label = eFolding < ${L(BLOWUP_EFOLDING_FRACTION)} * (t - tExit) ? ${LABEL_BLOW_UP} : ${LABEL_LEFT_WINDOW};
+        label = ${emitIsBlowUp("eFolding", "t - tExit")} ? ${LABEL_BLOW_UP} : ${LABEL_LEFT_WINDOW};
         break;
       }
-      if (off > ${L(WINDOW_EXIT_SLACK)} || outside > 0) {
+      if (${emitHasLeftWindow("off")} || outside > 0) {
         if (++outside > ${settings.maxStepsOutside}) { label = ${LABEL_LEFT_WINDOW}; break; }
         continue;
       }
@@ -170,5 +161,6 @@ export type BasinKernel = (starts: Float64Array, out: Int32Array) => number;
 
 /** Instantiates kernel source; the source comes only from whitelisted expression trees and numbers. */
 export function instantiateBasinKernel(source: string): BasinKernel {
+  // eslint-disable-next-line no-new-func -- the source is generateBasinKernel's, from whitelisted trees and numbers
   return new Function(source)() as BasinKernel;
 }

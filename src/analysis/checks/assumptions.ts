@@ -1,5 +1,7 @@
 import type { Model } from "../../model/types.js";
 import type { AssumptionResult } from "../types.js";
+import { bisect } from "../numeric/roots.js";
+import { ASSUMPTION_MATCH_TOL, FLIP_BISECTION_MAX_ITERATIONS, FLIP_SAMPLES, RELATIVE_DENOMINATOR_FLOOR } from "../constants.js";
 
 /** Each assumption, with its machine-checkable condition evaluated at the nominal values. */
 export function evaluateAssumptions(model: Model): AssumptionResult[] {
@@ -31,10 +33,6 @@ export interface AssumptionFlip {
   coincides: boolean;
 }
 
-/** Samples per range in the search for where a condition flips. */
-const FLIP_SAMPLES = 400;
-/** A condition's flip coincides with a located threshold when they agree to this, relatively. */
-export const ASSUMPTION_MATCH_TOL = 1e-6;
 
 /** Where each machine-checkable assumption flips across each studied range, beside the located thresholds. */
 export function findAssumptionFlips(
@@ -55,16 +53,16 @@ export function findAssumptionFlips(
         const v = lo + ((hi - lo) * k) / FLIP_SAMPLES;
         const gv = g(v);
         if (Number.isFinite(prevG) && Number.isFinite(gv) && prevG * gv < 0) {
-          let a = prevV, b = v, ga = prevG;
-          for (let it = 0; it < 200; it++) {
-            const m = 0.5 * (a + b);
-            if (m === a || m === b) break;
+          let ga = prevG;
+          const bracket = bisect(prevV, v, (m) => {
             const gm = g(m);
-            if (gm * ga > 0) { a = m; ga = gm; } else b = m;
-          }
-          const value = 0.5 * (a + b);
+            if (!(gm * ga > 0)) return "lower";
+            ga = gm;
+            return "upper";
+          }, FLIP_BISECTION_MAX_ITERATIONS);
+          const value = 0.5 * (bracket.lo + bracket.hi);
           const nearest = [...study.thresholds].sort((x, y) => Math.abs(x.value - value) - Math.abs(y.value - value))[0] ?? null;
-          const relativeDifference = nearest ? Math.abs(nearest.value - value) / Math.max(Math.abs(value), 1e-300) : null;
+          const relativeDifference = nearest ? Math.abs(nearest.value - value) / Math.max(Math.abs(value), RELATIVE_DENOMINATOR_FLOOR) : null;
           flips.push({
             parameter: study.parameter,
             value,

@@ -2,6 +2,7 @@ import { Matrix, solve } from "ml-matrix";
 import type { Model } from "../../model/types.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
 import type { Box } from "../numeric/window.js";
+import { CAPTURE_ANGLES, CAPTURE_FIRST_RADIUS, CAPTURE_MIN_RADIUS, CAPTURE_SAFETY, CAPTURE_SHELLS } from "../constants.js";
 
 /**
  * A neighbourhood of an attracting equilibrium checked to lie in its basin: the sublevel set
@@ -18,15 +19,6 @@ export interface CaptureRegion {
   /** Radius of the largest scaled circle inside the region, for reporting. */
   radius: number;
 }
-
-/** Radii tried, as fractions of the window, halving from the first. */
-const CAPTURE_FIRST_RADIUS = 0.25;
-const CAPTURE_MIN_RADIUS = 1e-7;
-/** Angles sampled on each ellipse, and the interior shells (fractions of the level) also checked. */
-const CAPTURE_ANGLES = 72;
-const CAPTURE_SHELLS = [1, 0.7, 0.45, 0.25, 0.1, 0.03];
-/** Sampling cannot prove dV/dt < 0 between samples: keep only this fraction of the verified level. */
-const CAPTURE_SAFETY = 0.5;
 
 function lyapunovMatrix(a: number, b: number, c: number, d: number): [number, number, number, number] | null {
   // Aᵀ P + P A = −I with P = [[p, q], [q, s]]: three linear equations in (p, q, s)

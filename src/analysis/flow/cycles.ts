@@ -2,6 +2,13 @@ import type { Model } from "../../model/types.js";
 import type { Recurrence, TrajectoryPath } from "./follow.js";
 import { integrateFlow, tolerancesFor } from "../numeric/integrate.js";
 import type { Box } from "../numeric/window.js";
+import { bisectPredicate } from "../numeric/roots.js";
+import {
+  FAMILY_PROBE, MIN_RETURN_FRACTION, NEUTRAL_MULTIPLIER_TOL, ORBIT_SAMPLES, RETURN_SLOPE_OFFSET, SAME_CYCLE_EXTENT_TOL,
+  SAME_CYCLE_PERIOD_TOL, SECTION_BISECTION_STEPS, SHOOT_ABSOLUTE_TOL_OF_WIDTH, SHOOT_ACCEPT_FACTOR, SHOOT_ESCAPE_WINDOWS,
+  SHOOT_MAX_ITERATIONS, SHOOT_MAX_STEP_OF_PERIOD, SHOOT_MAX_STEPS, SHOOT_PERIODS, SHOOT_RELATIVE_TOL, SHOOT_RESIDUAL_TOL,
+  SHOOT_SECANT_OFFSET,
+} from "../constants.js";
 
 export interface CycleResult {
   id: string;
@@ -20,20 +27,6 @@ export interface CycleResult {
   orbit: TrajectoryPath;
 }
 
-/** Shooting integrates tighter than trajectories: the period is reported to ~1e-9 relative. */
-const SHOOT_RELATIVE_TOL = 1e-12;
-const SHOOT_ABSOLUTE_TOL_OF_WIDTH = 1e-13;
-/** Newton (secant) on the return map stops when |P(r) − r| is below this, scaled. */
-const SHOOT_RESIDUAL_TOL = 1e-11;
-const SHOOT_MAX_ITERATIONS = 40;
-/** |m − 1| below this: the multiplier alone cannot tell stable from unstable. */
-export const NEUTRAL_MULTIPLIER_TOL = 1e-6;
-/** Return-map offsets (scaled) used to tell a family of closed orbits from a semi-stable orbit. */
-const FAMILY_PROBE = 1e-3;
-/** Ends of the section ray that count as a genuine return (not the start) after this fraction of the guess period. */
-const MIN_RETURN_FRACTION = 0.2;
-const ORBIT_SAMPLES = 240;
-
 interface Return {
   r: number;
   period: number;
@@ -51,11 +44,11 @@ function returnMap(model: Model, box: Box, center: [number, number], sense: 1 | 
   const samples: TrajectoryPath = { t: [], x: [], y: [] };
   const sampleDt = guessPeriod / ORBIT_SAMPLES;
   let nextSample = 0;
-  integrateFlow(model.rhs, start, guessPeriod * 3, {
+  integrateFlow(model.rhs, start, guessPeriod * SHOOT_PERIODS, {
     direction,
     tolerances: tolerancesFor(box.width, SHOOT_RELATIVE_TOL, SHOOT_ABSOLUTE_TOL_OF_WIDTH),
-    maxStep: guessPeriod / 16,
-    maxSteps: 100_000,
+    maxStep: guessPeriod * SHOOT_MAX_STEP_OF_PERIOD,
+    maxSteps: SHOOT_MAX_STEPS,
     // ∮ trace J dt as an error-controlled third component: the Floquet multiplier's exponent
     quadrature: {
       integrand: (state) => {
@@ -73,13 +66,7 @@ function returnMap(model: Model, box: Box, center: [number, number], sense: 1 | 
       const crossed = t1 > MIN_RETURN_FRACTION * guessPeriod && (sense === -1 ? before > 0 && after <= 0 : before < 0 && after >= 0);
       let hit: { t: number; x0: number } | null = null;
       if (crossed) {
-        let a = t0, b = t1;
-        for (let it = 0; it < 80; it++) {
-          const m = 0.5 * (a + b);
-          if (m === a || m === b) break;
-          const v = dense(1, m) - center[1];
-          if (sense * v >= 0) b = m; else a = m;
-        }
+        const { lo: a, hi: b } = bisectPredicate(t0, t1, (m) => sense * (dense(1, m) - center[1]) >= 0, SECTION_BISECTION_STEPS);
         // one secant refinement on the interpolant for the last bits
         const fa = dense(1, a) - center[1], fb = dense(1, b) - center[1];
         const tc = fb !== fa ? b - (fb * (b - a)) / (fb - fa) : b;
@@ -100,7 +87,7 @@ function returnMap(model: Model, box: Box, center: [number, number], sense: 1 | 
         result = { r: (hit.x0 - center[0]) / box.width[0], period: hit.t, traceIntegral: dense(2, hit.t), orbit: keepOrbit ? samples : null };
         return false;
       }
-      const outside = end.some((v, k) => v < box.lo[k] - box.width[k] || v > box.hi[k] + box.width[k]);
+      const outside = end.some((v, k) => v < box.lo[k] - SHOOT_ESCAPE_WINDOWS * box.width[k] || v > box.hi[k] + SHOOT_ESCAPE_WINDOWS * box.width[k]);
       return !outside;
     },
   });
@@ -120,7 +107,7 @@ export function solvePeriodicOrbit(model: Model, box: Box, recurrence: Recurrenc
   let p0 = returnMap(model, box, center, sense, direction, r0, period, false);
   if (!p0) return null;
   let g0 = p0.r - r0;
-  let r1 = r0 * (1 + 1e-5);
+  let r1 = r0 * (1 + SHOOT_SECANT_OFFSET);
   for (let it = 0; it < SHOOT_MAX_ITERATIONS && Math.abs(g0) > SHOOT_RESIDUAL_TOL; it++) {
     const p1 = returnMap(model, box, center, sense, direction, r1, period, false);
     if (!p1) return null;
@@ -136,11 +123,11 @@ export function solvePeriodicOrbit(model: Model, box: Box, recurrence: Recurrenc
   const final = returnMap(model, box, center, sense, direction, rStar, period, true);
   if (!final || !final.orbit) return null;
   const residual = Math.abs(final.r - rStar);
-  if (residual > 1e3 * SHOOT_RESIDUAL_TOL) return null;
+  if (residual > SHOOT_ACCEPT_FACTOR * SHOOT_RESIDUAL_TOL) return null;
 
   // the trace is of the forward field and dt > 0 either way, so this is the forward multiplier
   const multiplier = Math.exp(final.traceIntegral);
-  const h = 1e-6;
+  const h = RETURN_SLOPE_OFFSET;
   const plus = returnMap(model, box, center, sense, direction, rStar + h, final.period, false);
   const minus = returnMap(model, box, center, sense, direction, rStar - h, final.period, false);
   let slope = plus && minus ? (plus.r - minus.r) / (2 * h) : NaN;
@@ -153,7 +140,7 @@ export function solvePeriodicOrbit(model: Model, box: Box, recurrence: Recurrenc
     const inn = returnMap(model, box, center, sense, direction, Math.max(rStar - FAMILY_PROBE, rStar / 2), final.period, false);
     const gOut = out ? out.r - (rStar + FAMILY_PROBE) : NaN;
     const gIn = inn ? inn.r - Math.max(rStar - FAMILY_PROBE, rStar / 2) : NaN;
-    const flat = 1e3 * SHOOT_RESIDUAL_TOL;
+    const flat = SHOOT_ACCEPT_FACTOR * SHOOT_RESIDUAL_TOL;
     if (Math.abs(gOut) < flat && Math.abs(gIn) < flat) stability = "neutral";
     else if (Math.sign(gOut) === Math.sign(gIn)) stability = "semi-stable";
     else stability = direction * gOut < 0 ? "stable" : "unstable";
@@ -175,7 +162,7 @@ export function solvePeriodicOrbit(model: Model, box: Box, recurrence: Recurrenc
 
 /** Whether two solved orbits are the same closed curve. */
 export function sameCycle(a: Omit<CycleResult, "id">, b: Omit<CycleResult, "id">, box: Box, names: string[]): boolean {
-  if (Math.abs(a.period - b.period) > 1e-6 * Math.max(a.period, b.period)) return false;
+  if (Math.abs(a.period - b.period) > SAME_CYCLE_PERIOD_TOL * Math.max(a.period, b.period)) return false;
   return names.every((n, k) =>
-    Math.abs(a.extent[n][0] - b.extent[n][0]) < 1e-5 * box.width[k] && Math.abs(a.extent[n][1] - b.extent[n][1]) < 1e-5 * box.width[k]);
+    Math.abs(a.extent[n][0] - b.extent[n][0]) < SAME_CYCLE_EXTENT_TOL * box.width[k] && Math.abs(a.extent[n][1] - b.extent[n][1]) < SAME_CYCLE_EXTENT_TOL * box.width[k]);
 }

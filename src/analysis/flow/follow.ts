@@ -1,28 +1,29 @@
-import type { Model } from "../../model/types.js";
-import type { EquilibriumResult } from "../phase/equilibria.js";
-import { findCaptureRegions, isCaptured, type CaptureRegion } from "./capture.js";
-import { integrateFlow, tolerancesFor, type IntegrationTolerances } from "../numeric/integrate.js";
-import type { Box } from "../numeric/window.js";
+import { isCaptured } from "./capture.js";
+import type { FlowContext } from "./context.js";
+import { integrateFlow, type IntegrationResult, type StepInfo } from "../numeric/integrate.js";
+import { edgeBeyond, type WindowEdge } from "../numeric/window.js";
+import { bisectPredicate } from "../numeric/roots.js";
+import { scaledDistance } from "../numeric/distance.js";
+import { solve2 } from "../numeric/linear.js";
+import { continueAlgebraicRun, hasArrived, hasLeftWindow, isBlowUp, isFarOutside, outsideBy, type AlgebraicRun } from "./rules.js";
+import {
+  ARRIVAL_DISTANCE, EVENT_BISECTION_STEPS, MAX_STEP_OF_HORIZON, RECURRENCE_MIN_RADIUS, RECURRENCE_TOL, SADDLE_NEAR,
+  SADDLE_UNSTABLE_FRACTION, SLOW_RECURRENCE_CROSSINGS, TRAJECTORY_MAX_STEPS,
+} from "../constants.js";
+
+export { buildFlowContext, type FlowContext } from "./context.js";
 
 /**
- * Following one trajectory and deciding where it goes. The decisions, in the order tried at
- * every accepted step:
- *  1. non-finite right-hand side → undecided (reason given);
- *  2. farther than BLOWUP_WINDOWS window widths from the window, and growing faster than
- *     exponentially → blow-up (an exponential escape is a plain exit);
- *  3. inside a capture region of an attracting equilibrium → converged (linear approach);
- *  4. near a saddle with no component along its unstable direction → converged along the
- *     saddle's stable manifold (as on an invariant axis where a population is absent);
- *  5. near a non-hyperbolic equilibrium and still closing in, monotonically, for
- *     ALGEBRAIC_STEPS steps → converged (algebraic approach);
- *  6. crossing the ray from a non-saddle equilibrium at a recurring point → recurrent (a
- *     periodic-orbit candidate, confirmed by the caller by shooting);
- *  7. leaving the window → integration goes on only to tell a blow-up from a plain exit.
+ * Following one trajectory and deciding its fate by the rules of rules.ts, tried in their order
+ * at every accepted step: a non-finite right-hand side, a blow-up, a capture region, a saddle's
+ * stable manifold, an algebraic approach, recurrence through an equilibrium's ray (a
+ * periodic-orbit candidate, confirmed by the caller by shooting); outside the window the
+ * integration goes on only to tell a blow-up from a plain exit.
  */
 export type Fate =
   | { kind: "equilibrium"; target: string; t: number; approach: "linear" | "stable-manifold" | "algebraic" }
   | { kind: "cycle"; target: string; t: number }
-  | { kind: "left-window"; t: number; point: Record<string, number>; edge: string }
+  | { kind: "left-window"; t: number; point: Record<string, number>; edge: WindowEdge }
   | { kind: "blow-up"; t: number; point: Record<string, number> }
   | { kind: "undecided"; t: number; reason: string };
 
@@ -44,119 +45,22 @@ export interface TrajectoryPath {
   y: number[];
 }
 
+/** Where and when a trajectory left the window. */
+export interface WindowExit {
+  t: number;
+  point: [number, number];
+  edge: WindowEdge;
+}
+
 export interface FollowResult {
   fate: Fate;
   /** Present when the trajectory recurs through a section: the caller confirms a cycle. */
   recurrence: Recurrence | null;
   path: TrajectoryPath;
   /** The window exit, when the trajectory left it (also when it then blew up). */
-  exit: { t: number; point: [number, number]; edge: string } | null;
+  exit: WindowExit | null;
   steps: number;
   evaluations: number;
-}
-
-/** Beyond this many window widths outside the window, growth is called a blow-up ... */
-export const BLOWUP_WINDOWS = 1e6;
-/**
- * ... if it is also faster than exponential: the e-folding time |z|/|z'| (window-scaled) is below
- * this fraction of the time since the window exit. An exponential escape (a linear saddle) needs
- * ln(1e6) ≈ 14 e-foldings to get that far, a fraction near 1/14, and it is a plain exit; in a
- * finite-time blow-up, x ~ (t* − t)^−p, the e-folding time (t* − t)/p shrinks to nothing.
- */
-export const BLOWUP_EFOLDING_FRACTION = 1e-2;
-/** A state may overshoot the window by this fraction of its width before it has left. */
-export const WINDOW_EXIT_SLACK = 1e-9;
-/** Saddle capture: within this scaled distance ... */
-export const SADDLE_NEAR = 1e-3;
-/** ... with the unstable component below this fraction of the distance. */
-export const SADDLE_UNSTABLE_FRACTION = 1e-6;
-/**
- * Non-hyperbolic capture: within this scaled distance, closing in for ALGEBRAIC_STEPS steps in a
- * row while heading at the equilibrium (cosine above ALGEBRAIC_HEADING). The heading test keeps
- * a trajectory that merely passes by, as along the repelling side of a saddle-node, from counting.
- */
-export const ALGEBRAIC_NEAR = 0.05;
-export const ALGEBRAIC_STEPS = 40;
-export const ALGEBRAIC_HEADING = 0.9;
-/** Recurrence: consecutive ray crossings closer than this (scaled) ... */
-export const RECURRENCE_TOL = 1e-6;
-/** ... and farther than this from the equilibrium (else it is spiralling in or out). */
-export const RECURRENCE_MIN_RADIUS = 1e-3;
-
-export interface FlowContext {
-  model: Model;
-  box: Box;
-  equilibria: EquilibriumResult[];
-  direction: 1 | -1;
-  captures: CaptureRegion[];
-  saddles: { id: string; center: [number, number]; stable: [number, number]; unstable: [number, number] }[];
-  nonHyperbolic: { id: string; center: [number, number] }[];
-  rays: { id: string; center: [number, number] }[];
-  tolerances: IntegrationTolerances;
-}
-
-export function buildFlowContext(model: Model, equilibria: EquilibriumResult[], box: Box, direction: 1 | -1): FlowContext {
-  const pointOf = (e: EquilibriumResult): [number, number] => [e.point[model.stateNames[0]], e.point[model.stateNames[1]]];
-  const scaled = (v: number[]): [number, number] => {
-    const s: [number, number] = [v[0] / box.width[0], v[1] / box.width[1]];
-    const n = Math.hypot(s[0], s[1]);
-    return [s[0] / n, s[1] / n];
-  };
-  const saddles = equilibria
-    .filter((e) => e.type === "saddle" && e.eigenvectors.length === 2)
-    .map((e) => {
-      // eigenvalues are sorted ascending: [stable, unstable]; in backward time they swap roles
-      const [vs, vu] = direction === 1 ? [e.eigenvectors[0], e.eigenvectors[1]] : [e.eigenvectors[1], e.eigenvectors[0]];
-      return { id: e.id, center: pointOf(e), stable: scaled(vs), unstable: scaled(vu) };
-    });
-  return {
-    model,
-    box,
-    equilibria,
-    direction,
-    captures: findCaptureRegions(model, equilibria, box, direction),
-    saddles,
-    nonHyperbolic: equilibria.filter((e) => !e.hyperbolic).map((e) => ({ id: e.id, center: pointOf(e) })),
-    rays: equilibria.filter((e) => e.type !== "saddle").map((e) => ({ id: e.id, center: pointOf(e) })),
-    tolerances: tolerancesFor(box.width),
-  };
-}
-
-function scaledDistance(box: Box, a: ArrayLike<number>, b: ArrayLike<number>): number {
-  return Math.hypot((a[0] - b[0]) / box.width[0], (a[1] - b[1]) / box.width[1]);
-}
-
-function outsideBy(box: Box, x: ArrayLike<number>): number {
-  let worst = 0;
-  for (let k = 0; k < 2; k++) {
-    const below = (box.lo[k] - x[k]) / box.width[k];
-    const above = (x[k] - box.hi[k]) / box.width[k];
-    worst = Math.max(worst, below, above);
-  }
-  return worst;
-}
-
-function edgeName(model: Model, box: Box, x: ArrayLike<number>): string {
-  let best = "";
-  let worst = -Infinity;
-  for (let k = 0; k < 2; k++) {
-    const below = (box.lo[k] - x[k]) / box.width[k];
-    const above = (x[k] - box.hi[k]) / box.width[k];
-    if (below > worst) { worst = below; best = `${model.stateNames[k]} = ${box.lo[k]}`; }
-    if (above > worst) { worst = above; best = `${model.stateNames[k]} = ${box.hi[k]}`; }
-  }
-  return best;
-}
-
-/** Bisection on the dense interpolant for the first time in [t0, t1] where pred turns true. */
-function locate(dense: (c: number, t: number) => number, t0: number, t1: number, pred: (x: [number, number]) => boolean): { t: number; x: [number, number] } {
-  let a = t0, b = t1;
-  for (let it = 0; it < 60; it++) {
-    const m = 0.5 * (a + b);
-    if (m === a || m === b) break;
-    if (pred([dense(0, m), dense(1, m)])) b = m; else a = m;
-  }
-  return { t: b, x: [dense(0, b), dense(1, b)] };
 }
 
 export interface FollowOptions {
@@ -166,153 +70,217 @@ export interface FollowOptions {
   /** Look for recurrence through equilibrium rays (cycle candidates). */
   detectRecurrence: boolean;
   maxSteps?: number;
-  /** Largest step the integrator may take (default horizon / 64): curves drawn from the step points need it small. */
+  /** Largest step the integrator may take (default horizon · MAX_STEP_OF_HORIZON): curves drawn from the step points need it small. */
   maxStep?: number;
+}
+
+interface Crossing {
+  t: number;
+  /** Scaled distance of the crossing from the ray's equilibrium. */
+  r: number;
+  x: [number, number];
+}
+
+/** The crossings of one equilibrium's ray in one sense, in time order. */
+interface RayCrossings {
+  around: string;
+  sense: 1 | -1;
+  crossings: Crossing[];
+}
+
+/** Bisection on the dense interpolant for the first time in [t0, t1] where pred turns true. */
+function locate(dense: StepInfo["dense"], t0: number, t1: number, pred: (x: [number, number]) => boolean): { t: number; x: [number, number] } {
+  const { hi } = bisectPredicate(t0, t1, (m) => pred([dense(0, m), dense(1, m)]), EVENT_BISECTION_STEPS);
+  return { t: hi, x: [dense(0, hi), dense(1, hi)] };
+}
+
+/** The state of one trajectory being followed; step() applies the fate rules at each accepted step. */
+class TrajectoryFollower {
+  readonly path: TrajectoryPath;
+  fate: Fate | null = null;
+  recurrence: Recurrence | null = null;
+  exit: WindowExit | null = null;
+  steps = 0;
+  /** Runs of steps closing in on each non-hyperbolic equilibrium, by id. */
+  private readonly runs = new Map<string, AlgebraicRun>();
+  /** Ray crossings, in the order each (ray, sense) was first crossed. */
+  private readonly rays: RayCrossings[] = [];
+  private readonly prev: [number, number];
+  private readonly f = new Float64Array(2);
+
+  constructor(private readonly ctx: FlowContext, start: readonly [number, number], private readonly detectRecurrence: boolean) {
+    this.path = { t: [0], x: [start[0]], y: [start[1]] };
+    this.prev = [start[0], start[1]];
+    // a start already inside a capture region has arrived (the last region that holds it)
+    for (const region of ctx.captures) {
+      if (isCaptured(region, start, ctx.box)) this.fate = { kind: "equilibrium", target: region.equilibrium, t: 0, approach: "linear" };
+    }
+  }
+
+  private record(x: ArrayLike<number>): Record<string, number> {
+    const names = this.ctx.model.stateNames;
+    return { [names[0]]: x[0], [names[1]]: x[1] };
+  }
+
+  /** One accepted step; false stops the integration. */
+  step(info: StepInfo): boolean {
+    const { t1, y } = info;
+    this.steps++;
+    this.path.t.push(t1); this.path.x.push(y[0]); this.path.y.push(y[1]);
+    const out = outsideBy(this.ctx.box, y);
+    if (hasLeftWindow(out) && !this.exit) this.exit = this.locateExit(info);
+    if (isFarOutside(out)) {
+      this.testBlowUp(t1, y);
+      return false; // else the fate is the exit, in settle()
+    }
+    if (!this.exit && (this.captured(t1, y) || this.onStableManifold(t1, y) || this.approachedAlgebraically(t1, y) || this.recurs(info))) {
+      return false;
+    }
+    // outside: integrate on only to tell blow-up from exit
+    this.prev[0] = y[0]; this.prev[1] = y[1];
+    return true;
+  }
+
+  private locateExit({ t0, t1, dense }: StepInfo): WindowExit {
+    const box = this.ctx.box;
+    const hit = locate(dense, t0, t1, (x) => hasLeftWindow(outsideBy(box, x)));
+    return { t: hit.t, point: hit.x, edge: edgeBeyond(this.ctx.model.stateNames, box, hit.x) };
+  }
+
+  /** Rule 2: an e-folding time short against the time since the exit. */
+  private testBlowUp(t1: number, y: number[]): void {
+    const { model, box } = this.ctx;
+    model.rhs(y, this.f);
+    const eFolding = Math.hypot(y[0] / box.width[0], y[1] / box.width[1]) / Math.hypot(this.f[0] / box.width[0], this.f[1] / box.width[1]);
+    if (isBlowUp(eFolding, t1 - this.exit!.t)) this.fate = { kind: "blow-up", t: t1, point: this.record(y) };
+  }
+
+  /** Rule 4. */
+  private captured(t1: number, y: number[]): boolean {
+    const region = this.ctx.captures.find((r) => isCaptured(r, y, this.ctx.box));
+    if (region) this.fate = { kind: "equilibrium", target: region.equilibrium, t: t1, approach: "linear" };
+    return region !== undefined;
+  }
+
+  /** Rule 5: near a saddle, the component along its unstable direction negligible. */
+  private onStableManifold(t1: number, y: number[]): boolean {
+    const box = this.ctx.box;
+    for (const s of this.ctx.saddles) {
+      const d = scaledDistance(y, s.center, box.width);
+      if (d >= SADDLE_NEAR) continue;
+      // components in the eigenbasis (scaled): solve [vs vu] [α β]ᵀ = z
+      const z0 = (y[0] - s.center[0]) / box.width[0], z1 = (y[1] - s.center[1]) / box.width[1];
+      const beta = solve2(s.stable[0], s.unstable[0], s.stable[1], s.unstable[1], z0, z1)?.[1] ?? NaN;
+      if (Math.abs(beta) <= SADDLE_UNSTABLE_FRACTION * d || d < ARRIVAL_DISTANCE) {
+        this.fate = { kind: "equilibrium", target: s.id, t: t1, approach: "stable-manifold" };
+        return true;
+      }
+    }
+    return false;
+  }
+
+  /** Rule 6: heading at a non-hyperbolic equilibrium (cosine of velocity and direction to it, scaled) and closing in. */
+  private approachedAlgebraically(t1: number, y: number[]): boolean {
+    const { model, box, direction } = this.ctx;
+    for (const e of this.ctx.nonHyperbolic) {
+      const d = scaledDistance(y, e.center, box.width);
+      model.rhs(y, this.f);
+      const v0 = (direction * this.f[0]) / box.width[0], v1 = (direction * this.f[1]) / box.width[1];
+      const q0 = (e.center[0] - y[0]) / box.width[0], q1 = (e.center[1] - y[1]) / box.width[1];
+      const heading = (v0 * q0 + v1 * q1) / (Math.hypot(v0, v1) * Math.hypot(q0, q1) || 1);
+      const run = continueAlgebraicRun(this.runs.get(e.id) ?? null, d, heading);
+      if (!run) {
+        this.runs.delete(e.id);
+        continue;
+      }
+      this.runs.set(e.id, run);
+      if (hasArrived(run.count, d)) {
+        this.fate = { kind: "equilibrium", target: e.id, t: t1, approach: "algebraic" };
+        return true;
+      }
+    }
+    return false;
+  }
+
+  /** Rule 7: crossings of the ray {second state = centre, first state > centre}, kept apart by sense. */
+  private recurs({ t0, t1, y, dense }: StepInfo): boolean {
+    if (!this.detectRecurrence) return false;
+    const box = this.ctx.box;
+    for (const ray of this.ctx.rays) {
+      const before = this.prev[1] - ray.center[1];
+      const after = y[1] - ray.center[1];
+      const sense = before > 0 && after <= 0 ? -1 : before < 0 && after >= 0 ? 1 : 0;
+      if (sense === 0) continue;
+      const hit = locate(dense, t0, t1, (x) => sense * (x[1] - ray.center[1]) >= 0);
+      if (hit.x[0] <= ray.center[0]) continue;
+      const r = (hit.x[0] - ray.center[0]) / box.width[0];
+      const list = this.crossingsOf(ray.id, sense);
+      list.push({ t: hit.t, r, x: hit.x });
+      const n = list.length;
+      if (n >= 2 && r > RECURRENCE_MIN_RADIUS && Math.abs(r - list[n - 2].r) < RECURRENCE_TOL) {
+        this.recurrence = { around: ray.id, sense, point: hit.x, period: hit.t - list[n - 2].t, t: hit.t };
+        return true;
+      }
+    }
+    return false;
+  }
+
+  private crossingsOf(around: string, sense: 1 | -1): Crossing[] {
+    let entry = this.rays.find((c) => c.around === around && c.sense === sense);
+    if (!entry) {
+      entry = { around, sense, crossings: [] };
+      this.rays.push(entry);
+    }
+    return entry.crossings;
+  }
+
+  /** Rules 1 and 8, after the integration stopped without a decision at a step: a window exit comes first. */
+  settle(integration: IntegrationResult): void {
+    if (this.fate || this.recurrence) return;
+    const exit = this.exit;
+    if (exit) {
+      this.fate = { kind: "left-window", t: exit.t, point: this.record(exit.point), edge: exit.edge };
+    } else if (integration.status === "non-finite") {
+      this.fate = { kind: "undecided", t: integration.tEnd, reason: "the right-hand side became non-finite" };
+    } else if (integration.status === "step-limit") {
+      this.fate = { kind: "undecided", t: integration.tEnd, reason: "the integrator's step limit was reached" };
+    } else {
+      this.recurrence = findSlowRecurrence(this.rays);
+      if (!this.recurrence) this.fate = { kind: "undecided", t: integration.tEnd, reason: "no equilibrium or periodic orbit was reached by the horizon" };
+    }
+  }
 }
 
 /** Follows one trajectory from `start` (state coordinates) in the context's time direction. */
 export function followTrajectory(ctx: FlowContext, start: readonly [number, number], options: FollowOptions): FollowResult {
-  const { model, box } = ctx;
-  const names = model.stateNames;
-  const rec = (x: ArrayLike<number>) => ({ [names[0]]: x[0], [names[1]]: x[1] });
-  const path: TrajectoryPath = { t: [0], x: [start[0]], y: [start[1]] };
-  let fate: Fate | null = null;
-  let recurrence: Recurrence | null = null;
-  let exit: FollowResult["exit"] = null;
-  let steps = 0;
-  const nearHistory = new Map<string, { last: number; count: number }>();
-  const crossings = new Map<string, { t: number; r: number; x: [number, number] }[]>();
-  const prev: [number, number] = [start[0], start[1]];
-  const fBuffer = new Float64Array(2);
-
-  // a start already inside a capture region has arrived
-  for (const region of ctx.captures) {
-    if (isCaptured(region, start, box)) fate = { kind: "equilibrium", target: region.equilibrium, t: 0, approach: "linear" };
-  }
-
-  const onStep = ({ t0, t1, y, dense }: { t0: number; t1: number; y: number[]; dense: (c: number, t: number) => number }) => {
-    steps++;
-    path.t.push(t1); path.x.push(y[0]); path.y.push(y[1]);
-    const out = outsideBy(box, y);
-    if (out > WINDOW_EXIT_SLACK && !exit) {
-      const hit = locate(dense, t0, t1, (x) => outsideBy(box, x) > WINDOW_EXIT_SLACK);
-      exit = { t: hit.t, point: hit.x, edge: edgeName(model, box, hit.x) };
-    }
-    if (out > BLOWUP_WINDOWS) {
-      model.rhs(y, fBuffer);
-      const eFolding = Math.hypot(y[0] / box.width[0], y[1] / box.width[1]) / Math.hypot(fBuffer[0] / box.width[0], fBuffer[1] / box.width[1]);
-      const sinceExit = t1 - (exit as FollowResult["exit"])!.t;
-      if (eFolding < BLOWUP_EFOLDING_FRACTION * sinceExit) fate = { kind: "blow-up", t: t1, point: rec(y) };
-      return false; // else the fate is the exit, below
-    }
-    if (exit) {
-      prev[0] = y[0]; prev[1] = y[1];
-      return true; // outside: integrate on only to tell blow-up from exit
-    }
-    for (const region of ctx.captures) {
-      if (isCaptured(region, y, box)) {
-        fate = { kind: "equilibrium", target: region.equilibrium, t: t1, approach: "linear" };
-        return false;
-      }
-    }
-    for (const s of ctx.saddles) {
-      const d = scaledDistance(box, y, s.center);
-      if (d < SADDLE_NEAR) {
-        // components in the eigenbasis (scaled): solve [vs vu] [α β]ᵀ = z
-        const z0 = (y[0] - s.center[0]) / box.width[0], z1 = (y[1] - s.center[1]) / box.width[1];
-        const det = s.stable[0] * s.unstable[1] - s.unstable[0] * s.stable[1];
-        const beta = (s.stable[0] * z1 - s.stable[1] * z0) / det;
-        if (Math.abs(beta) <= SADDLE_UNSTABLE_FRACTION * d || d < 1e-12) {
-          fate = { kind: "equilibrium", target: s.id, t: t1, approach: "stable-manifold" };
-          return false;
-        }
-      }
-    }
-    for (const e of ctx.nonHyperbolic) {
-      const d = scaledDistance(box, y, e.center);
-      const h = nearHistory.get(e.id);
-      // heading at the equilibrium: the cosine between the velocity and the direction to it (scaled)
-      model.rhs(y, fBuffer);
-      const v0 = (ctx.direction * fBuffer[0]) / box.width[0], v1 = (ctx.direction * fBuffer[1]) / box.width[1];
-      const q0 = (e.center[0] - y[0]) / box.width[0], q1 = (e.center[1] - y[1]) / box.width[1];
-      const heading = (v0 * q0 + v1 * q1) / (Math.hypot(v0, v1) * Math.hypot(q0, q1) || 1);
-      if (d < ALGEBRAIC_NEAR && heading > ALGEBRAIC_HEADING && (!h || d < h.last)) {
-        const count = (h?.count ?? 0) + 1;
-        nearHistory.set(e.id, { last: d, count });
-        if (count >= ALGEBRAIC_STEPS || d < 1e-12) {
-          fate = { kind: "equilibrium", target: e.id, t: t1, approach: "algebraic" };
-          return false;
-        }
-      } else nearHistory.delete(e.id);
-    }
-    if (options.detectRecurrence) {
-      for (const ray of ctx.rays) {
-        const before = prev[1] - ray.center[1];
-        const after = y[1] - ray.center[1];
-        // crossings of the ray {second state = centre, first state > centre}, kept apart by sense
-        const sense = before > 0 && after <= 0 ? -1 : before < 0 && after >= 0 ? 1 : 0;
-        if (sense !== 0) {
-          const hit = locate(dense, t0, t1, (x) => sense * (x[1] - ray.center[1]) >= 0);
-          if (hit.x[0] <= ray.center[0]) continue;
-          const r = (hit.x[0] - ray.center[0]) / box.width[0];
-          const key = `${ray.id}${sense}`;
-          const list = crossings.get(key) ?? [];
-          list.push({ t: hit.t, r, x: hit.x });
-          crossings.set(key, list);
-          const n = list.length;
-          if (n >= 2 && r > RECURRENCE_MIN_RADIUS && Math.abs(r - list[n - 2].r) < RECURRENCE_TOL) {
-            recurrence = { around: ray.id, sense, point: hit.x, period: hit.t - list[n - 2].t, t: hit.t };
-            return false;
-          }
-        }
-      }
-    }
-    prev[0] = y[0]; prev[1] = y[1];
-    return true;
-  };
-
+  const follower = new TrajectoryFollower(ctx, start, options.detectRecurrence);
   let evaluations = 0;
-  if (!fate) {
-    const outcome = integrateFlow(model.rhs, start, options.horizon, {
+  if (!follower.fate) {
+    const integration = integrateFlow(ctx.model.rhs, start, options.horizon, {
       direction: ctx.direction,
       tolerances: ctx.tolerances,
-      maxStep: options.maxStep ?? options.horizon / 64,
-      maxSteps: options.maxSteps ?? 200_000,
-      onStep,
+      maxStep: options.maxStep ?? options.horizon * MAX_STEP_OF_HORIZON,
+      maxSteps: options.maxSteps ?? TRAJECTORY_MAX_STEPS,
+      onStep: (info) => follower.step(info),
     });
-    evaluations = outcome.evaluations;
-    if (!fate && !recurrence) {
-      const finalExit = exit as FollowResult["exit"];
-      if (outcome.status === "non-finite") {
-        fate = finalExit
-          ? { kind: "left-window", t: finalExit.t, point: rec(finalExit.point), edge: finalExit.edge }
-          : { kind: "undecided", t: outcome.tEnd, reason: "the right-hand side became non-finite" };
-      } else if (finalExit) {
-        fate = { kind: "left-window", t: finalExit.t, point: rec(finalExit.point), edge: finalExit.edge };
-      } else if (outcome.status === "step-limit") {
-        fate = { kind: "undecided", t: outcome.tEnd, reason: "the integrator's step limit was reached" };
-      } else {
-        const slowRecurrence = findSlowRecurrence(crossings);
-        if (slowRecurrence) recurrence = slowRecurrence;
-        else fate = { kind: "undecided", t: outcome.tEnd, reason: "no equilibrium or periodic orbit was reached by the horizon" };
-      }
-    }
+    evaluations = integration.evaluations;
+    follower.settle(integration);
   }
-  if (recurrence && !fate) fate = { kind: "undecided", t: (recurrence as Recurrence).t, reason: "recurrent: periodic-orbit candidate" };
-  return { fate: fate!, recurrence, path: thinPath(path, options.maxPathPoints), exit, steps, evaluations };
+  const { recurrence, exit, steps } = follower;
+  const fate = follower.fate ?? { kind: "undecided", t: recurrence!.t, reason: "recurrent: periodic-orbit candidate" };
+  return { fate, recurrence, path: thinPath(follower.path, options.maxPathPoints), exit, steps, evaluations };
 }
 
 /** At the horizon: crossings whose gaps shrink steadily point at a slowly attracting cycle. */
-function findSlowRecurrence(crossings: Map<string, { t: number; r: number; x: [number, number] }[]>): Recurrence | null {
-  for (const [key, list] of crossings) {
+function findSlowRecurrence(rays: RayCrossings[]): Recurrence | null {
+  for (const { around, sense, crossings: list } of rays) {
     const n = list.length;
-    if (n < 4) continue;
+    if (n < SLOW_RECURRENCE_CROSSINGS) continue;
     const g1 = Math.abs(list[n - 1].r - list[n - 2].r);
     const g2 = Math.abs(list[n - 2].r - list[n - 3].r);
     const g3 = Math.abs(list[n - 3].r - list[n - 4].r);
     if (list[n - 1].r > RECURRENCE_MIN_RADIUS && g1 < g2 && g2 < g3) {
-      const sense = key.endsWith("-1") ? -1 : 1;
-      return { around: key.slice(0, key.length - (sense === -1 ? 2 : 1)), sense, point: list[n - 1].x, period: list[n - 1].t - list[n - 2].t, t: list[n - 1].t };
+      return { around, sense, point: list[n - 1].x, period: list[n - 1].t - list[n - 2].t, t: list[n - 1].t };
     }
   }
   return null;

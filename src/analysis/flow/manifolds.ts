@@ -1,13 +1,15 @@
 import type { Model } from "../../model/types.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
-import { followTrajectory, type FlowContext, type TrajectoryPath } from "./follow.js";
+import { followTrajectory, type Fate, type FlowContext, type FollowResult, type TrajectoryPath } from "./follow.js";
 import { settleFate, type CycleRegistry } from "./trajectories.js";
-import type { Box } from "../numeric/window.js";
+import type { Box, WindowEdge } from "../numeric/window.js";
+import { MANIFOLD_MIN_STEPS, MANIFOLD_OFFSET } from "../constants.js";
 
-export type ManifoldEnd =
+/** Where a separatrix ends: its fate, or "outside-window" when its start already lies outside. */
+export type SeparatrixFate =
   | { kind: "equilibrium"; target: string }
   | { kind: "cycle"; target: string }
-  | { kind: "left-window"; point: Record<string, number>; edge: string }
+  | { kind: "left-window"; point: Record<string, number>; edge: WindowEdge }
   | { kind: "outside-window" }
   | { kind: "undecided"; reason: string };
 
@@ -16,23 +18,21 @@ export interface SeparatrixResult {
   /** "stable": the stable manifold (integrated backward); "unstable": forward. */
   manifold: "stable" | "unstable";
   /** +1 or −1: which side of the saddle along the eigenvector. */
-  branch: 1 | -1;
+  side: 1 | -1;
   start: Record<string, number>;
-  end: ManifoldEnd;
+  fate: SeparatrixFate;
   path: TrajectoryPath;
 }
 
-/**
- * Offset from the saddle along the eigenvector, as a fraction of the window: small enough that
- * the linear approximation holds (error ~ offset², here 1e-12), large enough to leave in a few
- * dozen e-foldings.
- */
-export const MANIFOLD_OFFSET = 1e-6;
+/** A separatrix's fate from its trajectory's: a curve that leaves the window and then blows up still ends, for the portrait, at the edge. */
+function separatrixFate(fate: Fate, follow: FollowResult, names: string[]): SeparatrixFate {
+  if (fate.kind === "equilibrium" || fate.kind === "cycle") return { kind: fate.kind, target: fate.target };
+  if (fate.kind === "left-window") return { kind: "left-window", point: fate.point, edge: fate.edge };
+  if (follow.exit) return { kind: "left-window", point: { [names[0]]: follow.exit.point[0], [names[1]]: follow.exit.point[1] }, edge: follow.exit.edge };
+  return { kind: "undecided", reason: fate.kind === "blow-up" ? "blow-up" : fate.reason };
+}
 
-/** Separatrices are drawn from their step points: at least this many steps over the horizon keep the curve smooth. */
-const MANIFOLD_MIN_STEPS = 4000;
-
-/** Both branches of the stable and unstable manifolds of every saddle, to the window edge or an attractor of the flow direction. */
+/** Both sides of the stable and unstable manifolds of every saddle, to the window edge or an attractor of the flow direction. */
 export function findSeparatrices(
   model: Model,
   equilibria: EquilibriumResult[],
@@ -54,30 +54,22 @@ export function findSeparatrices(
       // offset of MANIFOLD_OFFSET window-widths along v, measured in scaled coordinates
       const sv = [v[0] / box.width[0], v[1] / box.width[1]];
       const norm = Math.hypot(sv[0], sv[1]);
-      for (const branch of [1, -1] as const) {
+      for (const side of [1, -1] as const) {
         const start: [number, number] = [
-          c[0] + (branch * MANIFOLD_OFFSET * v[0]) / norm,
-          c[1] + (branch * MANIFOLD_OFFSET * v[1]) / norm,
+          c[0] + (side * MANIFOLD_OFFSET * v[0]) / norm,
+          c[1] + (side * MANIFOLD_OFFSET * v[1]) / norm,
         ];
         const rec = { [names[0]]: start[0], [names[1]]: start[1] };
         const outside = start.some((x, k) => x < box.lo[k] || x > box.hi[k]);
         if (outside) {
-          out.push({ saddle: e.id, manifold, branch, start: rec, end: { kind: "outside-window" }, path: { t: [], x: [], y: [] } });
+          out.push({ saddle: e.id, manifold, side, start: rec, fate: { kind: "outside-window" }, path: { t: [], x: [], y: [] } });
           continue;
         }
         const follow = followTrajectory(ctx, start, { horizon, maxPathPoints, detectRecurrence: true, maxStep: horizon / MANIFOLD_MIN_STEPS });
-        const fate = settleFate(ctx, follow, registry);
-        let end: ManifoldEnd;
-        if (fate.kind === "equilibrium" || fate.kind === "cycle") end = { kind: fate.kind, target: fate.target };
-        else if (fate.kind === "left-window") end = { kind: "left-window", point: fate.point, edge: fate.edge };
-        else if (follow.exit) {
-          // a curve that leaves the window and then blows up still ends, for the portrait, at the edge
-          end = { kind: "left-window", point: { [names[0]]: follow.exit.point[0], [names[1]]: follow.exit.point[1] }, edge: follow.exit.edge };
-        }
-        else end = { kind: "undecided", reason: fate.kind === "blow-up" ? "blow-up" : fate.reason };
+        const fate = separatrixFate(settleFate(ctx, follow, registry), follow, names);
         // the path starts at the saddle itself so the drawn curve reaches it
         const path = { t: [0, ...follow.path.t], x: [c[0], ...follow.path.x], y: [c[1], ...follow.path.y] };
-        out.push({ saddle: e.id, manifold, branch, start: rec, end, path });
+        out.push({ saddle: e.id, manifold, side, start: rec, fate, path });
       }
     }
   }

@@ -4,7 +4,8 @@ import type { EquilibriumResult } from "../phase/equilibria.js";
 import { buildFlowContext, followTrajectory, thinPath, type Fate, type FlowContext, type FollowResult, type TrajectoryPath } from "./follow.js";
 import { integrateFlow } from "../numeric/integrate.js";
 import { sameCycle, solvePeriodicOrbit, type CycleResult } from "./cycles.js";
-import type { Box } from "../numeric/window.js";
+import type { Box, WindowEdge } from "../numeric/window.js";
+import { MAX_STEP_OF_HORIZON, SCENARIO_PATH_POINTS, TRAJECTORY_MAX_STEPS } from "../constants.js";
 
 export interface ScenarioResult {
   name: string;
@@ -17,7 +18,7 @@ export interface ScenarioResult {
   path: TrajectoryPath;
   /** Dense-output time series on an even grid, for plotting against time. */
   series: TrajectoryPath;
-  exit: { t: number; point: Record<string, number>; edge: string } | null;
+  exit: { t: number; point: Record<string, number>; edge: WindowEdge } | null;
   steps: number;
 }
 
@@ -41,14 +42,6 @@ export interface TrajectoryOptions {
   /** Radius of that circle, as a fraction of the window. */
   seedRadius: number;
 }
-
-export const DEFAULT_TRAJECTORY_OPTIONS: TrajectoryOptions = {
-  maxPathPoints: 1200,
-  seriesPoints: 401,
-  seedsPerEdge: 6,
-  seedsAroundEquilibrium: 6,
-  seedRadius: 0.02,
-};
 
 /** Registry of solved periodic orbits, filled in a fixed order so ids are deterministic. */
 export class CycleRegistry {
@@ -100,8 +93,8 @@ function denseSeries(model: Model, ctx: FlowContext, start: [number, number], pa
   integrateFlow(model.rhs, start, tEnd, {
     direction: ctx.direction,
     tolerances: ctx.tolerances,
-    maxStep: horizon / 64,
-    maxSteps: 200_000,
+    maxStep: horizon * MAX_STEP_OF_HORIZON,
+    maxSteps: TRAJECTORY_MAX_STEPS,
     onStep: ({ t1, dense }) => {
       for (let i = out.t.length; i < points && chord.t[i] <= t1; i++) {
         out.t.push(chord.t[i]); out.x.push(dense(0, chord.t[i])); out.y.push(dense(1, chord.t[i]));
@@ -134,7 +127,7 @@ function evenSeries(path: TrajectoryPath, points: number): TrajectoryPath {
 export function integrateScenarios(model: Model, ctx: FlowContext, registry: CycleRegistry, options: TrajectoryOptions): ScenarioResult[] {
   return model.spec.scenarios.map((sc) => {
     const start: [number, number] = [sc.initial[model.stateNames[0]], sc.initial[model.stateNames[1]]];
-    const follow = followTrajectory(ctx, start, { horizon: sc.horizon, maxPathPoints: 200_000, detectRecurrence: true });
+    const follow = followTrajectory(ctx, start, { horizon: sc.horizon, maxPathPoints: SCENARIO_PATH_POINTS, detectRecurrence: true });
     const fate = settleFate(ctx, follow, registry);
     const full = follow.path;
     // the fate is decided; the time series still runs to the horizon so a reader sees the approach
@@ -163,8 +156,8 @@ function extendToHorizon(model: Model, ctx: FlowContext, path: TrajectoryPath, h
   integrateFlow(model.rhs, [path.x[k], path.y[k]], horizon - t0, {
     direction: 1,
     tolerances: ctx.tolerances,
-    maxStep: horizon / 64,
-    maxSteps: 200_000,
+    maxStep: horizon * MAX_STEP_OF_HORIZON,
+    maxSteps: TRAJECTORY_MAX_STEPS,
     onStep: ({ t1, y }) => {
       path.t.push(t0 + t1); path.x.push(y[0]); path.y.push(y[1]);
     },

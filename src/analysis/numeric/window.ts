@@ -1,4 +1,5 @@
 import type { Model } from "../../model/types.js";
+import { COMPONENT_SCALE_INTERVALS } from "../constants.js";
 
 /** The analysis window as arrays in state order. */
 export interface Box {
@@ -13,12 +14,31 @@ export function windowOf(model: Model): Box {
   return { lo, hi, width: lo.map((l, k) => hi[k] - l) };
 }
 
+/** A side of the window: where state `state` equals `value` (its lower or upper window bound). */
+export interface WindowEdge {
+  state: string;
+  value: number;
+}
+
+/** The side of the window that x lies farthest beyond (scaled); the lower side first on a tie. */
+export function edgeBeyond(stateNames: readonly string[], box: Box, x: ArrayLike<number>): WindowEdge {
+  let edge: WindowEdge = { state: stateNames[0], value: box.lo[0] };
+  let worst = -Infinity;
+  for (let k = 0; k < box.lo.length; k++) {
+    const below = (box.lo[k] - x[k]) / box.width[k];
+    const above = (x[k] - box.hi[k]) / box.width[k];
+    if (below > worst) { worst = below; edge = { state: stateNames[k], value: box.lo[k] }; }
+    if (above > worst) { worst = above; edge = { state: stateNames[k], value: box.hi[k] }; }
+  }
+  return edge;
+}
+
 /** max |f_i| over a 25 × 25 grid of the window: the scale residuals are measured against; 1 where f_i vanishes there. */
 export function componentScales(model: Model, box: Box): number[] {
   const y = new Float64Array(2);
   const f = new Float64Array(2);
   const scale = [0, 0];
-  const n = 24;
+  const n = COMPONENT_SCALE_INTERVALS;
   for (let a = 0; a <= n; a++) for (let b = 0; b <= n; b++) {
     y[0] = box.lo[0] + (box.width[0] * a) / n;
     y[1] = box.lo[1] + (box.width[1] * b) / n;

@@ -4,6 +4,7 @@ import { differentiate } from "../../model/derivatives.js";
 import { emitExpression, PRELUDE } from "../../model/codegen.js";
 import { expressionToTex, expressionToText } from "../../model/tex.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
+import { MAX_POLYNOMIAL_DEGREE, ROOT_MATCH_REL_TOL } from "../constants.js";
 
 /**
  * Symbolic invasion conditions. Where f_i = x_i g_i (the axis x_i = 0 is invariant: population
@@ -54,6 +55,7 @@ function isZero(node: MathNode): boolean {
 type CompiledNode = (p: ArrayLike<number>, s0: number, s1: number) => number;
 
 function compileNode(node: MathNode): CompiledNode {
+  // eslint-disable-next-line no-new-func -- the source is generated from a whitelisted tree (model/codegen.ts)
   return new Function("p", "s0", "s1", `${PRELUDE}\nreturn ${emitExpression(node, {})};`) as CompiledNode;
 }
 
@@ -61,11 +63,6 @@ function evaluateAt(node: MathNode, p: ArrayLike<number>, state: [number, number
   return compileNode(node)(p, state[0], state[1]);
 }
 
-/**
- * Highest degree of a resident's numerator handled: a quadratic per-capita rate times the
- * resident itself (f_j = x_j g_j, g_j quadratic, as with an Allee effect) is a cubic with a root at 0.
- */
-const MAX_POLYNOMIAL_DEGREE = 3;
 const FACTORIALS = [1, 1, 2, 6];
 
 /** Roots in closed form of a numerator that is a polynomial in `variable` of degree ≤ 2 once roots at 0 are factored out; null otherwise. */
@@ -102,8 +99,6 @@ function polynomialRoots(expr: MathNode, variable: string): MathNode[] | null {
   ];
 }
 
-/** Agreement of a closed-form root with a numerical value, relative to the window. */
-const ROOT_MATCH_REL_TOL = 1e-7;
 
 export function findInvasionConditions(model: Model, equilibria: EquilibriumResult[]): InvasionConditionResult[] {
   const out: InvasionConditionResult[] = [];

@@ -1,40 +1,65 @@
 import type { Model } from "../../model/types.js";
 import type { Diagnostic } from "../../diagnostics/issue.js";
-import { withParameters } from "../../model/higher.js";
-import { continueEquilibria, type ContinuationResult, type SpecialPointResult } from "./continuation/index.js";
-import { classifyOutcome, type OutcomeResult } from "./outcomes.js";
+import { withParameters } from "../../model/parameters.js";
+import {
+  continueEquilibria,
+  type ContinuationResult,
+  type SpecialPointResult,
+} from "./continuation/index.js";
+import type { SpecialPointKind } from "./continuation/special.js";
+import { classifyOutcome, outcomeKey, type OutcomeResult } from "./outcomes.js";
 import type { InvasionConditionResult } from "./invasion.js";
+import {
+  OUTCOME_SAMPLES,
+  SWITCH_LOCATE_TOL,
+  SYMBOLIC_MATCH_FLOOR,
+  SYMBOLIC_MATCH_TOL,
+} from "../constants.js";
 
 /**
  * Deciding conditions for one parameter: the located thresholds, the partition of the range
- * into intervals of equal outcome, each stated as an inequality, and the margin of the current
- * value to the nearest threshold that changes the outcome.
+ * into intervals of equal outcome, and the margin of the current value to the nearest break
+ * (a value where the outcome changes).
  */
 export interface ThresholdResult extends SpecialPointResult {
   /** The outcome differs on the two sides. */
   decisive: boolean;
   /** The symbolic invasion condition whose threshold this is, when one matches. */
-  symbolic: { text: string; tex: string; value: number; relativeDifference: number; equilibrium: string; absent: string } | null;
+  symbolic: {
+    text: string;
+    tex: string;
+    value: number;
+    relativeDifference: number;
+    equilibrium: string;
+    absent: string;
+  } | null;
 }
 
+/**
+ * A break: a parameter value where the outcome changes. A threshold is a break with a local
+ * bifurcation; a sampled break is one found between outcome samples that no local bifurcation
+ * marks (a scenario moving into another basin, say).
+ */
+export type BreakResult =
+  | { value: number; kind: "threshold"; threshold: SpecialPointKind }
+  | { value: number; kind: "sampled-break" };
+
+/** An end of an outcome interval: a break, or an end of the studied range. */
+export type IntervalEndResult = BreakResult | { value: number; kind: "range-end" };
+
 export interface OutcomeIntervalResult {
-  from: number;
-  to: number;
-  /** How each end is bounded: the range end, a located threshold, or a change found by sampling (a scenario moving into another basin). */
-  fromKind: string;
-  toKind: string;
+  from: IntervalEndResult;
+  to: IntervalEndResult;
   containsNominal: boolean;
   outcome: OutcomeResult;
-  statement: { text: string; tex: string };
 }
 
 export interface MarginResult {
-  threshold: number;
-  kind: string;
-  /** (threshold − value) / |threshold|. */
+  /** The nearest end of the current value's interval that is a break. */
+  to: BreakResult;
+  /** (break − value) / |break|. */
   relative: number;
   side: "below" | "above";
-  statement: string;
 }
 
 export interface ParameterStudyResult {
@@ -47,23 +72,129 @@ export interface ParameterStudyResult {
   margin: MarginResult | null;
 }
 
-/** Outcome samples across each range, besides the located thresholds: catches changes no local bifurcation marks. */
-export const OUTCOME_SAMPLES = 12;
-/** A change found by sampling is bisected to this fraction of the range. */
-export const SWITCH_LOCATE_TOL = 1e-6;
-/** A numerical and a symbolic threshold are the same threshold when they agree to this, relatively. */
-export const SYMBOLIC_MATCH_TOL = 1e-6;
+type OutcomeAt = (value: number) => OutcomeResult;
 
-function numberText(v: number): string {
-  const a = Math.abs(v);
-  if (a !== 0 && (a < 1e-3 || a >= 1e6)) return v.toExponential(4).replace(/\.?0+e/, "e");
-  return String(Number(v.toPrecision(6)));
+/** The outcome at each value of one parameter, the others at their nominal values; memoised. */
+function outcomeSampler(model: Model, j: number): OutcomeAt {
+  const seen = new Map<number, OutcomeResult>();
+  return (v) => {
+    let o = seen.get(v);
+    if (!o) {
+      const p = Float64Array.from(model.parameterValues);
+      p[j] = v;
+      o = classifyOutcome(withParameters(model, p), true);
+      seen.set(v, o);
+    }
+    return o;
+  };
 }
 
-function texNumber(v: number): string {
-  const s = numberText(v);
-  const m = /^(-?[\d.]+)e([+-]?\d+)$/.exec(s);
-  return m ? `${m[1]} \\times 10^{${Number(m[2])}}` : s;
+/** The located thresholds strictly inside the range, once per value, in order. */
+function thresholdBreaks(continuation: ContinuationResult, [lo, hi]: [number, number]): BreakResult[] {
+  const inside = continuation.points.filter((q) => q.value > lo && q.value < hi);
+  const values = [...new Set(inside.map((q) => q.value))].sort((a, b) => a - b);
+  return values.map((value) => ({
+    value,
+    kind: "threshold",
+    threshold: inside.find((q) => q.value === value)!.kind,
+  }));
+}
+
+/** Changes between neighbouring outcome samples that no located threshold explains, bisected. */
+function sampledBreaks(
+  [lo, hi]: [number, number],
+  located: BreakResult[],
+  outcomeAt: OutcomeAt,
+): BreakResult[] {
+  const samples = Array.from(
+    { length: OUTCOME_SAMPLES },
+    (_, k) => lo + ((hi - lo) * (k + 0.5)) / OUTCOME_SAMPLES,
+  );
+  const tol = SWITCH_LOCATE_TOL * (hi - lo);
+  const found: BreakResult[] = [];
+  for (let k = 0; k + 1 < samples.length; k++) {
+    let a = samples[k],
+      b = samples[k + 1];
+    // a sample on a break (to SWITCH_LOCATE_TOL) sees the degenerate outcome there: not a change
+    if ([...located, ...found].some((c) => c.value > a - tol && c.value < b + tol)) continue;
+    const left = outcomeKey(outcomeAt(a));
+    if (left === outcomeKey(outcomeAt(b))) continue;
+    while (b - a > tol) {
+      const m = 0.5 * (a + b);
+      if (outcomeKey(outcomeAt(m)) === left) a = m;
+      else b = m;
+    }
+    found.push({ value: 0.5 * (a + b), kind: "sampled-break" });
+  }
+  return found;
+}
+
+/** The range cut at every break, neighbours with the same outcome merged (the cut between them decides nothing). */
+function outcomeIntervals(
+  range: [number, number],
+  breaks: BreakResult[],
+  nominal: number,
+  outcomeAt: OutcomeAt,
+): OutcomeIntervalResult[] {
+  const ends: IntervalEndResult[] = [
+    { value: range[0], kind: "range-end" },
+    ...breaks,
+    { value: range[1], kind: "range-end" },
+  ];
+  const merged: OutcomeIntervalResult[] = [];
+  for (let k = 0; k + 1 < ends.length; k++) {
+    const from = ends[k],
+      to = ends[k + 1];
+    const probe = from.value === to.value ? from.value : 0.5 * (from.value + to.value);
+    const outcome = outcomeAt(probe);
+    const last = merged[merged.length - 1];
+    if (last && outcomeKey(last.outcome) === outcomeKey(outcome)) last.to = to;
+    else merged.push({ from, to, containsNominal: false, outcome });
+  }
+  return merged.map((iv) => ({ ...iv, containsNominal: nominal >= iv.from.value && nominal <= iv.to.value }));
+}
+
+/** Each located point, marked decisive when an interval starts there, with its symbolic invasion condition when one matches. */
+function describeThresholds(
+  continuation: ContinuationResult,
+  intervals: OutcomeIntervalResult[],
+  invasion: InvasionConditionResult[],
+): ThresholdResult[] {
+  const decisiveValues = new Set(intervals.slice(1).map((iv) => iv.from.value));
+  const candidates = invasion.flatMap((c) =>
+    c.thresholds.filter((t) => t.parameter === continuation.parameter).map((t) => ({ c, t })),
+  );
+  return continuation.points.map((q) => {
+    const match = candidates.find(
+      ({ t }) =>
+        Math.abs(t.value - q.value) <= SYMBOLIC_MATCH_TOL * Math.max(Math.abs(t.value), SYMBOLIC_MATCH_FLOOR),
+    );
+    const symbolic = match
+      ? {
+          text: match.t.text,
+          tex: match.t.tex,
+          value: match.t.value,
+          relativeDifference: Math.abs(match.t.value - q.value) / Math.abs(match.t.value),
+          equilibrium: match.c.equilibrium,
+          absent: match.c.absent,
+        }
+      : null;
+    return { ...q, decisive: decisiveValues.has(q.value), symbolic };
+  });
+}
+
+/** Distance of the current value to the nearer break bounding its interval, when there is one. */
+function marginOf(intervals: OutcomeIntervalResult[], nominal: number): MarginResult | null {
+  const home = intervals.find((r) => r.containsNominal);
+  if (!home || intervals.length < 2) return null;
+  const breaks = [home.from, home.to].filter((e): e is BreakResult => e.kind !== "range-end");
+  const nearest = breaks.sort((a, b) => Math.abs(a.value - nominal) - Math.abs(b.value - nominal))[0];
+  if (!nearest) return null;
+  return {
+    to: nearest,
+    relative: (nearest.value - nominal) / Math.abs(nearest.value),
+    side: nominal < nearest.value ? "below" : "above",
+  };
 }
 
 export function studyParameter(
@@ -71,110 +202,23 @@ export function studyParameter(
   parameter: string,
   range: [number, number],
   invasion: InvasionConditionResult[],
-  texName: string,
   diagnostics: Diagnostic[],
 ): ParameterStudyResult {
   const j = model.parameterNames.indexOf(parameter);
   const nominal = model.parameterValues[j];
   const continuation = continueEquilibria(model, parameter, range, {}, diagnostics);
-  const at = (v: number): OutcomeResult => {
-    const p = Float64Array.from(model.parameterValues);
-    p[j] = v;
-    return classifyOutcome(withParameters(model, p), true);
+  const outcomeAt = outcomeSampler(model, j);
+  const located = thresholdBreaks(continuation, range);
+  const breaks = [...located, ...sampledBreaks(range, located, outcomeAt)].sort((x, y) => x.value - y.value);
+  const intervals = outcomeIntervals(range, breaks, nominal, outcomeAt);
+  const thresholds = describeThresholds(continuation, intervals, invasion);
+  return {
+    parameter,
+    nominal,
+    range,
+    continuation,
+    thresholds,
+    intervals,
+    margin: marginOf(intervals, nominal),
   };
-  const [lo, hi] = range;
-  const located = continuation.points.filter((q) => q.value > lo && q.value < hi);
-  // cuts: located thresholds, then changes between samples that no threshold explains
-  const cuts: { value: number; kind: string }[] = [...new Set(located.map((q) => q.value))].sort((a, b) => a - b)
-    .map((v) => ({ value: v, kind: located.find((q) => q.value === v)!.kind }));
-  const samples = Array.from({ length: OUTCOME_SAMPLES }, (_, k) => lo + ((hi - lo) * (k + 0.5)) / OUTCOME_SAMPLES);
-  const outcomes = new Map<number, OutcomeResult>();
-  const outcomeAt = (v: number) => {
-    let o = outcomes.get(v);
-    if (!o) { o = at(v); outcomes.set(v, o); }
-    return o;
-  };
-  for (let k = 0; k + 1 < samples.length; k++) {
-    let a = samples[k], b = samples[k + 1];
-    // a sample on a located threshold (to SWITCH_LOCATE_TOL) sees the degenerate outcome there: not a change
-    const slack = SWITCH_LOCATE_TOL * (hi - lo);
-    if (cuts.some((c) => c.value > a - slack && c.value < b + slack)) continue;
-    const oa = outcomeAt(a), ob = outcomeAt(b);
-    if (oa.signature === ob.signature) continue;
-    while (b - a > SWITCH_LOCATE_TOL * (hi - lo)) {
-      const m = 0.5 * (a + b);
-      if (at(m).signature === oa.signature) a = m; else b = m;
-    }
-    cuts.push({ value: 0.5 * (a + b), kind: "outcome change" });
-  }
-  cuts.sort((x, y) => x.value - y.value);
-
-  const edges = [{ value: lo, kind: "range" }, ...cuts, { value: hi, kind: "range" }];
-  let intervals: { from: number; to: number; fromKind: string; toKind: string; outcome: OutcomeResult }[] = [];
-  for (let k = 0; k + 1 < edges.length; k++) {
-    const from = edges[k].value, to = edges[k + 1].value;
-    const probe = from === to ? from : 0.5 * (from + to);
-    intervals.push({ from, to, fromKind: edges[k].kind, toKind: edges[k + 1].kind, outcome: outcomeAt(probe) });
-  }
-  // merge neighbours with the same outcome: the cut between them does not decide anything
-  const merged: typeof intervals = [];
-  for (const iv of intervals) {
-    const last = merged[merged.length - 1];
-    if (last && last.outcome.signature === iv.outcome.signature) { last.to = iv.to; last.toKind = iv.toKind; }
-    else merged.push({ ...iv });
-  }
-  intervals = merged;
-  const decisiveValues = new Set(intervals.slice(1).map((iv) => iv.from));
-
-  const thresholds: ThresholdResult[] = continuation.points.map((q) => {
-    const match = invasion.flatMap((c) => c.thresholds.filter((t) => t.parameter === parameter).map((t) => ({ c, t })))
-      .find(({ t }) => Math.abs(t.value - q.value) <= SYMBOLIC_MATCH_TOL * Math.max(Math.abs(t.value), 1e-300));
-    return {
-      ...q,
-      decisive: decisiveValues.has(q.value),
-      symbolic: match ? { text: match.t.text, tex: match.t.tex, value: match.t.value, relativeDifference: Math.abs(match.t.value - q.value) / Math.abs(match.t.value), equilibrium: match.c.equilibrium, absent: match.c.absent } : null,
-    };
-  });
-
-  const symbolicFor = (v: number) => thresholds.find((t) => t.value === v && t.symbolic)?.symbolic ?? null;
-  const bound = (v: number) => {
-    const s = symbolicFor(v);
-    return { text: s ? `${s.text} = ${numberText(v)}` : numberText(v), tex: s ? `${s.tex} = ${texNumber(v)}` : texNumber(v) };
-  };
-  const results: OutcomeIntervalResult[] = intervals.map((iv) => {
-    const first = iv.fromKind === "range", last = iv.toKind === "range";
-    let text: string, tex: string;
-    if (first && last) { text = `${parameter} anywhere in ${numberText(lo)} to ${numberText(hi)}`; tex = `${texNumber(lo)} \\le ${texName} \\le ${texNumber(hi)}`; }
-    else if (first) { const b = bound(iv.to); text = `${parameter} < ${b.text}`; tex = `${texName} < ${b.tex}`; }
-    else if (last) { const b = bound(iv.from); text = `${parameter} > ${b.text}`; tex = `${texName} > ${b.tex}`; }
-    else { const a = bound(iv.from), b = bound(iv.to); text = `${a.text} < ${parameter} < ${b.text}`; tex = `${a.tex} < ${texName} < ${b.tex}`; }
-    return {
-      ...iv,
-      containsNominal: nominal >= iv.from && nominal <= iv.to,
-      statement: { text: `${iv.outcome.words} when ${text}`, tex },
-    };
-  });
-
-  let margin: MarginResult | null = null;
-  const home = results.find((r) => r.containsNominal);
-  if (home && results.length > 1) {
-    const options = [
-      home.fromKind !== "range" ? { t: home.from, kind: home.fromKind } : null,
-      home.toKind !== "range" ? { t: home.to, kind: home.toKind } : null,
-    ].filter((x): x is { t: number; kind: string } => x !== null);
-    const nearest = options.sort((a, b) => Math.abs(a.t - nominal) - Math.abs(b.t - nominal))[0];
-    if (nearest) {
-      const relative = (nearest.t - nominal) / Math.abs(nearest.t);
-      const side = nominal < nearest.t ? "below" : "above";
-      const pct = Math.abs(100 * relative);
-      margin = {
-        threshold: nearest.t,
-        kind: nearest.kind,
-        relative,
-        side,
-        statement: `${home.statement.text} (now ${parameter} = ${numberText(nominal)}: ${Number(pct.toPrecision(3))}% ${side} the threshold)`,
-      };
-    }
-  }
-  return { parameter, nominal, range, continuation, thresholds, intervals: results, margin };
 }

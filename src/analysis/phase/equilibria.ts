@@ -2,6 +2,13 @@ import type { Model } from "../../model/types.js";
 import type { Diagnostic } from "../../diagnostics/issue.js";
 import { classifyEquilibrium, type StabilityResult } from "./stability.js";
 import { componentScales, windowOf, type Box } from "../numeric/window.js";
+import { bisect } from "../numeric/roots.js";
+import { solve2 } from "../numeric/linear.js";
+import {
+  DEDUP_REL_TOL, DEFAULT_EQUILIBRIUM_OPTIONS, EDGE_BISECTION_MAX_ITERATIONS, MAX_EQUILIBRIA, NEWTON_MAX_ITERATIONS,
+  NEWTON_MIN_DAMPING, NEWTON_POLISH_STALLS, NEWTON_ROAM, NEWTON_STEP_TOL, NEWTON_SUFFICIENT_DECREASE,
+  POLISH_RESIDUAL_FRACTION, ROOT_RESIDUAL_TOL, SNAP_REL_TOL, WINDOW_SLACK,
+} from "../constants.js";
 
 export interface EquilibriumResult extends StabilityResult {
   id: string;
@@ -21,23 +28,6 @@ export interface EquilibriumOptions {
   edgeSamples: number;
 }
 
-export const DEFAULT_EQUILIBRIUM_OPTIONS: EquilibriumOptions = { gridSize: 16, edgeSamples: 400 };
-
-/** Accept a root when every residual, relative to that component's scale over the window, is below this. */
-export const ROOT_RESIDUAL_TOL = 1e-9;
-/** Two roots are one when they differ by less than this fraction of the window in every state. */
-export const DEDUP_REL_TOL = 1e-6;
-/** A root may lie this fraction of the window outside it and still count (then it is clipped). */
-export const WINDOW_SLACK = 1e-9;
-/** A coordinate this close to a bound (fraction of the window) is put exactly on it, if the residual stays small. */
-export const SNAP_REL_TOL = 1e-10;
-/** An edge is invariant for a state when its own derivative there stays below this fraction of its scale. */
-export const INVARIANT_EDGE_TOL = 1e-13;
-/** Newton may wander this far outside the window (fraction of its width) before the start is dropped. */
-const NEWTON_ROAM = 0.5;
-const NEWTON_MAX_ITERATIONS = 80;
-/** Beyond this count we report a suspected continuum of equilibria instead of listing more. */
-const MAX_EQUILIBRIA = 50;
 
 interface Workspace {
   f: Float64Array;
@@ -64,18 +54,16 @@ function dampedNewton(model: Model, start: [number, number], box: Box, fScale: n
     model.rhs(ws.y, ws.f);
     model.jacobianAt(ws.y, ws.j);
     const [f0, f1] = [ws.f[0], ws.f[1]];
-    const [a, b, c, d] = [ws.j[0], ws.j[1], ws.j[2], ws.j[3]];
-    const det = a * d - b * c;
-    // 2 × 2 solve by Cramer's rule: allocation-free in the inner loop
-    if (!Number.isFinite(det) || det === 0) return r < ROOT_RESIDUAL_TOL ? x : null;
-    const dx0 = -(d * f0 - b * f1) / det;
-    const dx1 = -(-c * f0 + a * f1) / det;
+    const solved = solve2(ws.j[0], ws.j[1], ws.j[2], ws.j[3], f0, f1);
+    if (!solved) return r < ROOT_RESIDUAL_TOL ? x : null;
+    const dx0 = -solved[0];
+    const dx1 = -solved[1];
     let lambda = 1;
     let accepted = false;
-    while (lambda >= 1 / 4096) {
+    while (lambda >= NEWTON_MIN_DAMPING) {
       const trial: [number, number] = [x[0] + lambda * dx0, x[1] + lambda * dx1];
       const rt = scaledResidual(model, trial, fScale, ws);
-      if (rt < r * (1 - 1e-4 * lambda) || (r < ROOT_RESIDUAL_TOL * 1e-3 && rt <= r)) {
+      if (rt < r * (1 - NEWTON_SUFFICIENT_DECREASE * lambda) || (r < ROOT_RESIDUAL_TOL * POLISH_RESIDUAL_FRACTION && rt <= r)) {
         x = trial;
         const improved = rt < r;
         r = rt;
@@ -90,9 +78,9 @@ function dampedNewton(model: Model, start: [number, number], box: Box, fScale: n
       if (!(x[k] >= lo && x[k] <= hi)) return null;
     }
     const step = Math.max(Math.abs(dx0) / box.width[0], Math.abs(dx1) / box.width[1]);
-    if (r < ROOT_RESIDUAL_TOL && (step < 1e-15 || !accepted)) {
+    if (r < ROOT_RESIDUAL_TOL && (step < NEWTON_STEP_TOL || !accepted)) {
       // converged; keep polishing while it still helps, to reach full precision
-      if (++stalled >= 2) return x;
+      if (++stalled >= NEWTON_POLISH_STALLS) return x;
     } else if (!accepted) return r < ROOT_RESIDUAL_TOL ? x : null;
   }
   return r < ROOT_RESIDUAL_TOL ? x : null;
@@ -111,15 +99,15 @@ function rootsAlong(g: (t: number) => number, lo: number, hi: number, samples: n
   for (let k = 0; k <= samples; k++) {
     if (gs[k] === 0) roots.push(ts[k]);
     if (k < samples && Number.isFinite(gs[k]) && Number.isFinite(gs[k + 1]) && gs[k] * gs[k + 1] < 0) {
-      let a = ts[k], b = ts[k + 1], ga = gs[k];
-      for (let it = 0; it < 200 && b - a > 0; it++) {
-        const m = 0.5 * (a + b);
-        if (m === a || m === b) break;
+      let ga = gs[k];
+      const { lo, hi } = bisect(ts[k], ts[k + 1], (m) => {
         const gm = g(m);
-        if (gm === 0) { a = b = m; break; }
-        if (gm * ga < 0) b = m; else { a = m; ga = gm; }
-      }
-      roots.push(0.5 * (a + b));
+        if (gm === 0) return "root";
+        if (gm * ga < 0) return "lower";
+        ga = gm;
+        return "upper";
+      }, EDGE_BISECTION_MAX_ITERATIONS);
+      roots.push(0.5 * (lo + hi));
     }
     // a local minimum of |g| that nearly touches zero: a double root bisection cannot see
     if (k > 0 && k < samples && Math.abs(gs[k]) < Math.abs(gs[k - 1]) && Math.abs(gs[k]) < Math.abs(gs[k + 1])) roots.push(ts[k]);
@@ -165,7 +153,7 @@ function snapToBounds(model: Model, x: [number, number], box: Box, fScale: numbe
       if (Math.abs(out[k] - bound) <= SNAP_REL_TOL * box.width[k] && out[k] !== bound) {
         const trial: [number, number] = [out[0], out[1]];
         trial[k] = bound;
-        if (scaledResidual(model, trial, fScale, ws) <= Math.max(scaledResidual(model, out, fScale, ws), ROOT_RESIDUAL_TOL * 1e-3)) out[k] = bound;
+        if (scaledResidual(model, trial, fScale, ws) <= Math.max(scaledResidual(model, out, fScale, ws), ROOT_RESIDUAL_TOL * POLISH_RESIDUAL_FRACTION)) out[k] = bound;
       }
     }
     out[k] = Math.min(box.hi[k], Math.max(box.lo[k], out[k]));

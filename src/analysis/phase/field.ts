@@ -1,5 +1,6 @@
 import type { Model } from "../../model/types.js";
 import { windowOf } from "../numeric/window.js";
+import { DEFAULT_DIRECTION_FIELD_OPTIONS } from "../constants.js";
 
 /**
  * The direction field: at the centre of every cell of a grid over the window, the direction of
@@ -14,7 +15,6 @@ export interface DirectionFieldOptions {
   ny: number;
 }
 
-export const DEFAULT_DIRECTION_FIELD_OPTIONS: DirectionFieldOptions = { nx: 21, ny: 21 };
 
 export interface DirectionFieldResult {
   nx: number;

@@ -1,7 +1,9 @@
 import type { Model } from "../../model/types.js";
 import type { Diagnostic } from "../../diagnostics/issue.js";
 import { windowOf, type Box } from "../numeric/window.js";
-import { segmentDistance, type NullclineResult } from "./nullclines.js";
+import { DEFAULT_REGION_OPTIONS, MIN_REGION_FRACTION, REGION_ZERO_TOL } from "../constants.js";
+import type { NullclineResult } from "./nullclines.js";
+import { segmentDistance } from "../numeric/distance.js";
 
 /**
  * The regions the nullclines cut out of the window, each with the sign of every component there
@@ -18,16 +20,7 @@ export interface RegionOptions {
   ny: number;
 }
 
-export const DEFAULT_REGION_OPTIONS: RegionOptions = { nx: 160, ny: 160 };
 
-/**
- * Components covering less than this fraction of the window are dropped (and counted in a
- * diagnostic): at the default grid that is under 26 cells, too thin to hold a checkable point,
- * and most such slivers are cells the grid splits off where two nullclines meet.
- */
-export const MIN_REGION_FRACTION = 1e-3;
-/** A cell whose component is within this fraction of its scale of zero lies on a nullcline and gets no label. */
-export const REGION_ZERO_TOL = 1e-12;
 
 export type Sign = "+" | "-";
 
@@ -96,8 +89,8 @@ function clearanceOf(p: [number, number], nullclines: NullclineResult[], box: Bo
   let best = Infinity;
   for (const n of nullclines) for (const piece of n.pieces) {
     const pts = piece.points;
-    if (pts.length === 1) best = Math.min(best, segmentDistance(p, pts[0], pts[0], box).d);
-    for (let k = 0; k + 1 < pts.length; k++) best = Math.min(best, segmentDistance(p, pts[k], pts[k + 1], box).d);
+    if (pts.length === 1) best = Math.min(best, segmentDistance(p, pts[0], pts[0], box.width).d);
+    for (let k = 0; k + 1 < pts.length; k++) best = Math.min(best, segmentDistance(p, pts[k], pts[k + 1], box.width).d);
   }
   return best === Infinity ? null : best;
 }

@@ -1,4 +1,6 @@
 import { EigenvalueDecomposition, Matrix } from "ml-matrix";
+import { CLASSIFY_REL_TOL, EIGENVECTOR_LEAD_TOL } from "../constants.js";
+import { spectralRadius } from "../numeric/linear.js";
 
 export type EquilibriumType =
   | "saddle" | "stable-node" | "unstable-node" | "stable-focus" | "unstable-focus" | "center"
@@ -20,22 +22,13 @@ export interface StabilityResult {
   stable: boolean | null;
 }
 
-/**
- * Relative tolerance for calling trace, determinant or discriminant zero, against a scale for
- * each that a change of units (J → D J D⁻¹, D diagonal) leaves unchanged: the spectral radius ρ,
- * and the sizes of the terms that cancel (|a|, |d| for the trace; |ad|, |bc| for the determinant
- * and the discriminant). Entries are evaluated at a point polished to ~1e-13 relative, so
- * cancellation noise stays near 1e-12; 1e-8 leaves four digits of margin and sends a genuinely
- * borderline case to "non-hyperbolic" (or "center") rather than guessing a side.
- */
-export const CLASSIFY_REL_TOL = 1e-8;
 
 /** Sign convention for eigenvectors: the largest-magnitude component is positive. */
 function normalizeVector(v: number[]): number[] {
   const norm = Math.hypot(...v);
   if (norm === 0) return v.map(() => 0);
   let lead = 0;
-  for (let k = 1; k < v.length; k++) if (Math.abs(v[k]) > Math.abs(v[lead]) + 1e-14 * norm) lead = k;
+  for (let k = 1; k < v.length; k++) if (Math.abs(v[k]) > Math.abs(v[lead]) + EIGENVECTOR_LEAD_TOL * norm) lead = k;
   const sign = v[lead] < 0 ? -1 : 1;
   return v.map((c) => (sign * c) / norm + 0); // + 0 turns -0 into 0 for stable JSON
 }
@@ -56,7 +49,7 @@ export function classifyEquilibrium(jacobian: number[][]): StabilityResult {
   const eigenvectors = complexPair ? [] : order.map((k) => normalizeVector([V.get(0, k), V.get(1, k)]));
 
   // unit-invariant scales: a state measured in 1e5 units must not turn a node into "non-hyperbolic"
-  const radius = Math.max(...eigenvalues.map((e) => Math.hypot(e.re, e.im)));
+  const radius = spectralRadius(eigenvalues);
   const traceScale = Math.max(Math.abs(a), Math.abs(d), radius);
   const detScale = Math.max(Math.abs(a * d), Math.abs(b * c), radius * radius);
   const discScale = Math.max(trace * trace, 4 * detScale);

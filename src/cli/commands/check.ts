@@ -1,6 +1,7 @@
 import { prepareModel } from "../../pipeline.js";
 import { CliExit, EXIT, inputError, makeProgress, readSpecFile } from "../io.js";
 import { runAnalysis } from "./run.js";
+import { claimEvidenceWords, claimReferenceWords } from "../../report/words/index.js";
 
 /** `keel check SPEC`: validate and print a model summary. */
 export function runCheck(file: string): string {
@@ -36,7 +37,8 @@ export async function runCheckClaims(file: string, options: { quiet: boolean; jo
   const output = await runAnalysis(text, options.jobs, makeProgress(options.quiet));
   if (!output.ok) throw inputError(output.issues, file);
   const claims = output.value.results.claims;
-  const lines = claims.map((c) => `${c.verdict.padEnd(12)} ${c.id}: ${c.evidence} (see ${c.where})`);
+  const states = output.value.results.model.states;
+  const lines = claims.map((c) => `${c.verdict.padEnd(12)} ${c.id}: ${claimEvidenceWords(c, states)} (see ${claimReferenceWords(c.where)})`);
   const contradicted = claims.filter((c) => c.verdict === "contradicted").length;
   const undecided = claims.filter((c) => c.verdict === "undecided").length;
   lines.push(`${claims.length - contradicted - undecided} supported, ${contradicted} contradicted, ${undecided} undecided`);

@@ -1,10 +1,22 @@
 import { createHash } from "node:crypto";
-import { PDFArray, PDFDict, PDFDocument, PDFHexString, PDFName, PDFRawStream, PDFString, decodePDFRawStream } from "pdf-lib";
+import {
+  PDFArray,
+  PDFDict,
+  PDFDocument,
+  PDFHexString,
+  PDFName,
+  PDFRawStream,
+  PDFString,
+  decodePDFRawStream,
+} from "pdf-lib";
 
 /**
- * The archive: a manifest of SHA-256 hashes over every file of a build, and the PDF carrying the
- * spec, results and manifest as embedded files, so the single PDF is a complete record.
+ * The archive, part 2 of 3: a manifest of SHA-256 hashes over every file of a build, and the PDF
+ * carrying the spec, results and manifest as embedded files, so the single PDF is a complete
+ * record. serialize.ts writes results.json; compare.ts sets archived results against a re-run.
  */
+
+/** manifest.json: what was built, from what, by which keel, and the hash of every file. */
 export interface Manifest {
   keel: string;
   node: string;
@@ -19,14 +31,20 @@ export interface Manifest {
 }
 
 /** Files embedded in the PDF, by name. */
-export const EMBEDDED = ["spec.json", "results.json", "manifest.json"] as const;
+export const EMBEDDED_FILES = ["spec.json", "results.json", "manifest.json"] as const;
 
+/** SHA-256 of text (as UTF-8) or bytes, in lower-case hex. */
 export function sha256(bytes: string | Uint8Array): string {
   return createHash("sha256").update(bytes).digest("hex");
 }
 
+/** manifest.json text in the one form keel writes (files sorted by path), so verify can compare bytes. */
 export function manifestText(manifest: Manifest): string {
-  const files = Object.fromEntries(Object.keys(manifest.files).sort().map((k) => [k, manifest.files[k]]));
+  const files = Object.fromEntries(
+    Object.keys(manifest.files)
+      .sort()
+      .map((k) => [k, manifest.files[k]]),
+  );
   return JSON.stringify({ ...manifest, files }, null, 2) + "\n";
 }
 
@@ -34,7 +52,12 @@ export function manifestText(manifest: Manifest): string {
  * Embeds the archive files in the PDF and fixes its dates, producer and creator, so the same
  * inputs give the same bytes (Chromium stamps its own clock otherwise).
  */
-export async function embedArchive(pdf: Uint8Array, files: Record<string, string>, dateEpoch: number, title: string): Promise<Uint8Array> {
+export async function embedArchive(
+  pdf: Uint8Array,
+  files: Record<string, string>,
+  dateEpoch: number,
+  title: string,
+): Promise<Uint8Array> {
   const doc = await PDFDocument.load(pdf, { updateMetadata: false });
   const date = new Date(dateEpoch * 1000);
   for (const name of Object.keys(files)) {
@@ -53,7 +76,8 @@ export async function embedArchive(pdf: Uint8Array, files: Record<string, string
   return doc.save({ useObjectStreams: false });
 }
 
-function text(value: unknown): string | null {
+/** A PDF string object's text, or null for any other object. */
+function pdfText(value: unknown): string | null {
   if (value instanceof PDFString || value instanceof PDFHexString) return value.decodeText();
   return null;
 }
@@ -69,7 +93,7 @@ export async function readEmbedded(pdf: Uint8Array): Promise<Record<string, Uint
     const leaf = node.lookupMaybe(PDFName.of("Names"), PDFArray);
     if (leaf) {
       for (let k = 0; k + 1 < leaf.size(); k += 2) {
-        const name = text(leaf.lookup(k));
+        const name = pdfText(leaf.lookup(k));
         const spec = leaf.lookup(k + 1, PDFDict);
         const ef = spec.lookupMaybe(PDFName.of("EF"), PDFDict);
         const stream = ef?.lookup(PDFName.of("F"));

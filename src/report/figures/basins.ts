@@ -2,16 +2,15 @@ import { decodeRuns } from "../../analysis/basins/refine.js";
 import type { BasinResult, Results } from "../../analysis/types.js";
 import type { NormalizedSpec } from "../../spec/types.js";
 import { formatPercent } from "../format.js";
-import { TYPE_WORDS } from "../words.js";
+import { attractorIdWords } from "../words/index.js";
 import { textWidthPx } from "../render/textWidth.js";
-import { markerBox, placeLabels, roundData, type PlotFrame } from "./geometry.js";
+import { markerBox, placeLabels, portraitFrame } from "./geometry.js";
 import { buildKey, type KeyEntry } from "./key.js";
 import { labelLayers, lineLayer, pathRows, positionEncoding, stateAxisTitle, symbolLayer, symbolRow, type VegaLiteSpec } from "./layers.js";
 import {
-  classifyForDrawing, EQUILIBRIUM_CLASSES, EQUILIBRIUM_MARKERS, figureConfig, FONT_SIZE, FRAME, LINE_STYLES, REGION_FILLS,
-  SPECIAL_REGION_FILLS, SWATCH_PATH, SWATCH_SIZE, type MarkerStyle,
+  classifyForDrawing, EQUILIBRIUM_CLASSES, EQUILIBRIUM_MARKERS, figureConfig, FONT_SIZE, LINE_STYLES, REGION_FILLS, SPECIAL_REGION_FILLS,
 } from "./palette.js";
-import { portraitFrame } from "./portrait.js";
+import { cellLayer, regionCellRows, swatch } from "./cells.js";
 
 /**
  * The basin map: the labelled grid of results.basins as filled cells, with the saddles' stable
@@ -22,12 +21,6 @@ import { portraitFrame } from "./portrait.js";
  * cells it covers), and each row's run of equal cells is drawn as one rectangle.
  */
 export const BASIN_DRAW_MAX = 256;
-/**
- * Drawn rectangles reach this far (px) into the next row and run, which are drawn later and
- * cover the overlap: abutting edges at fractional pixels otherwise leave anti-aliased hairlines
- * of paper between cells. A whole pixel, so the pixel under every shared edge is fully covered.
- */
-const SEAM_OVERLAP_PX = 1;
 
 /** The grid as drawn: legend indices, row-major from the lowest row of the second state. */
 export interface DrawnBasinGrid {
@@ -68,59 +61,6 @@ export function basinFills(basins: BasinResult): string[] {
 
 const SPECIAL_WORDS: Record<string, string> = { "left-window": "leaves the window", "blow-up": "grows without bound", undecided: "undecided" };
 
-/** What an attractor is, for the key: "E4 (stable node)", "C1 (stable cycle)". */
-export function attractorWords(results: Results, id: string): string {
-  const e = results.equilibria.find((q) => q.id === id);
-  if (e) return `${id} (${TYPE_WORDS[e.type]})`;
-  const c = results.cycles.find((q) => q.id === id);
-  return c ? `${id} (${c.stability} cycle)` : id;
-}
-
-export interface CellRow { x: number; x2: number; y: number; y2: number; fill: string; what: string; cells: number }
-
-/**
- * Rectangles for a labelled grid over the frame (row-major from the lowest row): one per run of
- * equal cells in a row, or with mergeRuns false one per cell.
- */
-export function regionCellRows(
-  frame: PlotFrame, grid: { nx: number; ny: number; cells: ArrayLike<number> }, legend: string[], fills: string[], mergeRuns = true,
-): CellRow[] {
-  const dx = (frame.hi[0] - frame.lo[0]) / grid.nx, dy = (frame.hi[1] - frame.lo[1]) / grid.ny;
-  const ox = (SEAM_OVERLAP_PX / frame.width) * (frame.hi[0] - frame.lo[0]);
-  const oy = (SEAM_OVERLAP_PX / frame.height) * (frame.hi[1] - frame.lo[1]);
-  const rows: CellRow[] = [];
-  for (let j = 0; j < grid.ny; j++) {
-    let i0 = 0;
-    for (let i = 1; i <= grid.nx; i++) {
-      const v = grid.cells[j * grid.nx + i0];
-      if (mergeRuns && i < grid.nx && grid.cells[j * grid.nx + i] === v) continue;
-      rows.push({
-        x: roundData(frame.lo[0] + i0 * dx),
-        x2: roundData(i === grid.nx ? frame.hi[0] : frame.lo[0] + i * dx + ox),
-        y: roundData(frame.lo[1] + j * dy),
-        y2: roundData(j === grid.ny - 1 ? frame.hi[1] : frame.lo[1] + (j + 1) * dy + oy),
-        fill: fills[v],
-        what: legend[v],
-        cells: i - i0,
-      });
-      i0 = i;
-    }
-  }
-  return rows;
-}
-
-/** The layer that draws regionCellRows: fills read from the rows, no stroke. */
-export function cellLayer(name: string, rows: CellRow[], encoding: Record<string, unknown>) {
-  return {
-    name,
-    data: { values: rows },
-    mark: { type: "rect", strokeWidth: 0 },
-    encoding: { ...encoding, x2: { field: "x2" }, y2: { field: "y2" }, fill: { field: "fill", type: "nominal", scale: null } },
-  };
-}
-
-/** A fill's sample for the key. */
-export const swatch = (fill: string, label: string): MarkerStyle => ({ shape: SWATCH_PATH, angle: 0, fill, stroke: FRAME, strokeWidth: 0.8, size: SWATCH_SIZE, label });
 
 export function buildBasinFigure(results: Results, spec: NormalizedSpec): VegaLiteSpec {
   const basins = results.basins;
@@ -137,11 +77,11 @@ export function buildBasinFigure(results: Results, spec: NormalizedSpec): VegaLi
     .map((name, k) => ({ name, k, fraction: basins.fractions[name] ?? 0 }))
     .filter(({ k, fraction }) => k < basins.attractors.length || fraction > 0)
     .map(({ name, k, fraction }): KeyEntry => {
-      const what = k < basins.attractors.length ? attractorWords(results, name) : SPECIAL_WORDS[name] ?? name;
+      const what = k < basins.attractors.length ? attractorIdWords(results, name, "cycle") : SPECIAL_WORDS[name] ?? name;
       return { kind: "symbol", marker: swatch(fills[k], `${what}: ${formatPercent(fraction)}`) };
     });
 
-  const stable = pathRows(frame, results.separatrices.filter((s) => s.manifold === "stable").map((s) => ({ key: `${s.saddle}${s.branch}`, line: s.path })));
+  const stable = pathRows(frame, results.separatrices.filter((s) => s.manifold === "stable").map((s) => ({ key: `${s.saddle}${s.side}`, line: s.path })));
   if (stable.length) {
     layers.push(lineLayer("stable_manifolds", stable, LINE_STYLES.stableManifold, enc, "catmull-rom"));
     key.push({ kind: "line", style: LINE_STYLES.stableManifold });

@@ -1,12 +1,11 @@
-import { formatUnit } from "../format.js";
 import type { ParameterStudyResult, Results } from "../../analysis/types.js";
 import type { BranchResult } from "../../analysis/parameters/continuation/index.js";
-import type { NormalizedParameter, NormalizedSpec } from "../../spec/types.js";
+import type { NormalizedSpec } from "../../spec/types.js";
 import { formatNumber } from "../format.js";
 import { textWidthPx } from "../render/textWidth.js";
 import { markerBox, placeLabels, roundData, toScreen, type PlotFrame, type Polyline, type ScreenBox } from "./geometry.js";
 import { buildKey, type KeyEntry } from "./key.js";
-import { labelLayers, lineLayer, pathRows, positionEncoding, stateAxisTitle, symbolLayer, symbolRow, type VegaLiteSpec } from "./layers.js";
+import { labelLayers, lineLayer, parameterAxisTitle, pathRows, positionEncoding, stateAxisTitle, symbolLayer, symbolRow, type VegaLiteSpec } from "./layers.js";
 import { BIFURCATION_PANEL, BRANCH_STYLES, figureConfig, FONT_SIZE, INK, NOMINAL_COLOR, NOMINAL_STYLE, SPECIAL_POINT_MARKERS } from "./palette.js";
 
 /**
@@ -29,10 +28,6 @@ const EDGE_SLACK = 1e-6;
 const stabilityOf = (stable: boolean | null): BranchStability => (stable === true ? "stable" : stable === false ? "unstable" : "undecided");
 
 /** Axis title for a parameter: its label and name, then its unit. */
-export function parameterAxisTitle(p: Pick<NormalizedParameter, "name" | "label" | "unit">): string {
-  const head = p.label && p.label !== p.name ? `${p.label}, ${p.name}` : p.name;
-  return p.unit ? `${head} (${formatUnit(p.unit)})` : head;
-}
 
 /**
  * A branch as pieces of equal stability, in the coordinate `state` against the parameter. A

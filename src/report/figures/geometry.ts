@@ -1,3 +1,6 @@
+import type { Results } from "../../analysis/types.js";
+import { PORTRAIT_PLOT } from "./palette.js";
+
 /**
  * Plot geometry for the figure builders: clipping to the window, thinning to the pixel grid,
  * headings and label anchors. Drawing choices only; nothing here recomputes analysis.
@@ -194,4 +197,11 @@ export function placeLabels(
     const [x, y] = fromPlot(frame, u + pick.c.dx, frame.height - (v + pick.c.dy));
     return { x: roundData(x), y: roundData(y), text: it.text, align: pick.c.align };
   });
+}
+
+/** The state window on the portrait's plot area; the basin map shares it. */
+export function portraitFrame(results: Results): PlotFrame {
+  const [a, b] = results.model.states;
+  const wa = results.model.window[a], wb = results.model.window[b];
+  return { lo: [wa[0], wb[0]], hi: [wa[1], wb[1]], width: PORTRAIT_PLOT.width, height: PORTRAIT_PLOT.height };
 }

@@ -1,8 +1,8 @@
 import type { OutcomeMapResult, ParameterStudyResult, Results, ScenarioResult } from "../../analysis/types.js";
 import type { NormalizedSpec } from "../../spec/types.js";
 import { formatNumber, formatPercent } from "../format.js";
-import { fateWords, pointWords } from "../words.js";
-import { attractorWords, BASIN_DRAW_MAX, downsampleBasinGrid, buildBasinFigure } from "./basins.js";
+import { THRESHOLD_KIND_WORDS, attractorIdWords, fateWords, outcomeWords, pointWords } from "../words/index.js";
+import { BASIN_DRAW_MAX, downsampleBasinGrid, buildBasinFigure } from "./basins.js";
 import { buildBifurcationFigure, drawnSpecialPoints } from "./bifurcation.js";
 import type { VegaLiteSpec } from "./layers.js";
 import { buildOutcomeMapFigure, outcomeLetter } from "./outcomeMap.js";
@@ -78,7 +78,7 @@ function basinCaption(results: Results, spec: NormalizedSpec): string {
     `(${count(b.trajectories)} trajectories instead of ${count(b.uniformTrajectories)})`;
   const drawing = drawn.factor === 1 ? "drawn cell for cell"
     : `drawn at ${drawn.nx} × ${drawn.ny} (at most ${BASIN_DRAW_MAX} a side): each drawn cell shows the majority label of the ${drawn.factor} × ${drawn.factor} computed cells it covers, a tie going to the first in the key`;
-  const shares = Object.entries(b.fractions).map(([k, v]) => `${b.attractors.includes(k) ? attractorWords(results, k) : k} ${formatPercent(v)}`).join(", ");
+  const shares = Object.entries(b.fractions).map(([k, v]) => `${b.attractors.includes(k) ? attractorIdWords(results, k, "cycle") : k} ${formatPercent(v)}`).join(", ");
   const saddles = [...new Set(results.separatrices.filter((s) => s.manifold === "stable").map((s) => s.saddle))];
   const over = [
     saddles.length ? `the stable manifolds (separatrices) of ${saddles.length === 1 ? "the saddle" : "the saddles"} ${saddles.join(", ")}` : null,
@@ -95,13 +95,11 @@ function basinCaption(results: Results, spec: NormalizedSpec): string {
     (over.length ? ` Drawn over the fills: ${over.join("; ")}.` : "");
 }
 
-const KIND_WORDS: Record<string, string> = { "saddle-node": "fold (saddle-node)", transcritical: "transcritical", hopf: "Hopf", "boundary-crossing": "boundary crossing" };
-
 function bifurcationCaption(results: Results, spec: NormalizedSpec, study: ParameterStudyResult): string {
   const p = spec.parameters.find((q) => q.name === study.parameter)!;
   const [a, b] = results.model.states;
   const drawn = new Set(results.model.states.flatMap((s) => drawnSpecialPoints(results, study, s)));
-  const marked = study.thresholds.map((t) => `${KIND_WORDS[t.kind] ?? t.kind}${t.criticality ? ` (${t.criticality})` : ""} at ${t.parameter} = ${formatNumber(t.value)}` +
+  const marked = study.thresholds.map((t) => `${THRESHOLD_KIND_WORDS[t.kind] ?? t.kind}${t.criticality ? ` (${t.criticality})` : ""} at ${t.parameter} = ${formatNumber(t.value)}` +
     `${t.decisive ? ", where the outcome changes" : ""}${drawn.has(t) ? "" : ", outside the window and not drawn"}`);
   return `Equilibria against ${study.parameter}${p.label && p.label !== p.name ? ` (${p.label})` : ""} across its plausible range ${range(study.range, p.unit)}, ` +
     `the other parameters at their current values: ${a} in the upper panel and ${b} in the lower, on every branch followed by pseudo-arclength continuation ` +
@@ -112,13 +110,10 @@ function bifurcationCaption(results: Results, spec: NormalizedSpec, study: Param
     "Each panel spans the state's window: branch parts outside it (infeasible equilibria, such as negative populations) are cut off.";
 }
 
-function outcomeMapCaption(spec: NormalizedSpec, map: OutcomeMapResult): string {
+function outcomeMapCaption(results: Results, spec: NormalizedSpec, map: OutcomeMapResult): string {
   const [p1, p2] = map.parameters.map((n) => spec.parameters.find((q) => q.name === n)!);
-  const outcomes = map.legend.map((words, k) => `${outcomeLetter(k)}, ${words}`).join("; ");
-  const curves = map.curves.map((c) => {
-    const [name, value] = c.origin.split(" = ");
-    return `${KIND_WORDS[c.kind] ?? c.kind} from ${name} = ${formatNumber(Number(value))}`;
-  });
+  const outcomes = map.legend.map((o, k) => `${outcomeLetter(k)}, ${outcomeWords(o, results.model.states)}`).join("; ");
+  const curves = map.curves.map((c) => `${THRESHOLD_KIND_WORDS[c.kind] ?? c.kind} from ${c.origin.parameter} = ${formatNumber(c.origin.value)}`);
   return `Outcome across ${p1.name} in ${range(map.ranges[0], p1.unit)} and ${p2.name} in ${range(map.ranges[1], p2.unit)}, the other parameters at their current values: ` +
     `each of the ${map.nx} × ${map.ny} cells is filled by the outcome (the set of attractors) at its centre, and lettered in the key and in the largest clear part of each region. Outcomes: ${outcomes}. ` +
     (curves.length ? `Lines: the threshold curves continued in the second parameter from the thresholds located one parameter at a time (${curves.join("; ")}), dashed by kind. ` : "No threshold curve was traced. ") +
@@ -162,7 +157,7 @@ export function buildFigures(results: Results, spec: NormalizedSpec, extras: Por
   }
   for (const map of results.conditions.maps) {
     const [p1, p2] = map.parameters;
-    figures.push({ id: `outcome-map-${p1}-${p2}`, title: `Outcomes across ${p1} and ${p2}`, caption: outcomeMapCaption(spec, map), spec: buildOutcomeMapFigure(spec, map) });
+    figures.push({ id: `outcome-map-${p1}-${p2}`, title: `Outcomes across ${p1} and ${p2}`, caption: outcomeMapCaption(results, spec, map), spec: buildOutcomeMapFigure(spec, map) });
   }
   for (const s of results.scenarios) {
     figures.push({

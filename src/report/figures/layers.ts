@@ -1,5 +1,5 @@
 import { formatUnit } from "../format.js";
-import type { NormalizedState } from "../../spec/types.js";
+import type { NormalizedParameter, NormalizedState } from "../../spec/types.js";
 import { drawablePieces, roundData, type PlacedLabel, type PlotFrame, type Polyline } from "./geometry.js";
 import { FONT_SIZE, INK, PAPER, type LineStyle, type MarkerStyle } from "./palette.js";
 
@@ -25,6 +25,11 @@ export interface TextRow { x: number; y: number; text: string }
 export function stateAxisTitle(state: NormalizedState): string {
   const head = state.label && state.label !== state.name ? `${state.label}, ${state.name}` : state.name;
   return state.unit ? `${head} (${formatUnit(state.unit)})` : head;
+}
+
+export function parameterAxisTitle(p: Pick<NormalizedParameter, "name" | "label" | "unit">): string {
+  const head = p.label && p.label !== p.name ? `${p.label}, ${p.name}` : p.name;
+  return p.unit ? `${head} (${formatUnit(p.unit)})` : head;
 }
 
 export function positionEncoding(field: "x" | "y", domain: [number, number], title: string | null, axis: Record<string, unknown> | null = {}) {

@@ -3,9 +3,8 @@ import type { NormalizedSpec } from "../../spec/types.js";
 import { textWidthPx } from "../render/textWidth.js";
 import { markerBox, placeLabels, roundData, toPlot, type PlotFrame, type ScreenBox } from "./geometry.js";
 import { buildKey, type KeyEntry } from "./key.js";
-import { labelLayers, lineLayer, pathRows, positionEncoding, symbolLayer, symbolRow, type VegaLiteSpec } from "./layers.js";
-import { cellLayer, regionCellRows, swatch } from "./basins.js";
-import { parameterAxisTitle } from "./bifurcation.js";
+import { labelLayers, lineLayer, parameterAxisTitle, pathRows, positionEncoding, symbolLayer, symbolRow, type VegaLiteSpec } from "./layers.js";
+import { cellLayer, regionCellRows, swatch } from "./cells.js";
 import { figureConfig, FONT_SIZE, INK, NOMINAL_COLOR, NOMINAL_MARKER, OUTCOME_MAP_PLOT, PAPER, REGION_FILLS, THRESHOLD_CURVE_STYLES } from "./palette.js";
 
 /**

@@ -2,13 +2,13 @@ import type { Results } from "../../analysis/types.js";
 import type { DirectionFieldResult } from "../../analysis/phase/field.js";
 import type { NullclinePiece, NullclineResult } from "../../analysis/phase/nullclines.js";
 import type { NormalizedSpec } from "../../spec/types.js";
-import { drawablePieces, headingOf, markerBox, placeLabels, plotLength, pointAlong, type PlotFrame, type Polyline } from "./geometry.js";
+import { drawablePieces, headingOf, markerBox, portraitFrame, placeLabels, plotLength, pointAlong, type PlotFrame, type Polyline } from "./geometry.js";
 import { textWidthPx } from "../render/textWidth.js";
 import { buildKey, type KeyEntry } from "./key.js";
 import { labelLayers, lineLayer, pathRows, positionEncoding, stateAxisTitle, symbolLayer, symbolRow, type SymbolRow, type VegaLiteSpec } from "./layers.js";
 import {
   ARROWHEAD_PATH, ARROWHEAD_SIZE, classifyForDrawing, EQUILIBRIUM_CLASSES, EQUILIBRIUM_MARKERS, FIELD_ARROW_PATH, FIELD_ARROW_SIZE, FIELD_STYLE,
-  figureConfig, FONT_SIZE, LINE_STYLES, NULLCLINE_STYLES, PORTRAIT_PLOT, START_MARKER, type LineStyle,
+  figureConfig, FONT_SIZE, LINE_STYLES, NULLCLINE_STYLES, START_MARKER, type LineStyle,
 } from "./palette.js";
 
 /** What the portrait needs of a nullcline: the state whose derivative vanishes, and its pieces. */
@@ -30,11 +30,6 @@ const HEAD_AT = 0.5;
 /** Portrait trajectories shorter than this on screen (px) get no arrowhead: it would hide the line. */
 const MIN_HEAD_PATH_PX = 40;
 
-export function portraitFrame(results: Results): PlotFrame {
-  const [a, b] = results.model.states;
-  const wa = results.model.window[a], wb = results.model.window[b];
-  return { lo: [wa[0], wb[0]], hi: [wa[1], wb[1]], width: PORTRAIT_PLOT.width, height: PORTRAIT_PLOT.height };
-}
 
 const polyline = (p: { x: number[]; y: number[] }): Polyline => ({ x: p.x, y: p.y });
 
@@ -42,6 +37,36 @@ function headRow(frame: PlotFrame, line: Polyline, fraction: number, color: stri
   const at = pointAlong(frame, line, fraction);
   if (!at) return null;
   return symbolRow(at.x, at.y, { shape: ARROWHEAD_PATH, angle: at.angle, fill: color, stroke: color, strokeWidth: 0, size }, what);
+}
+
+/** One arrow per direction-field sample, pointing along the flow on the page. */
+function fieldArrowRows(frame: PlotFrame, field: FieldInput): SymbolRow[] {
+  const rows: SymbolRow[] = [];
+  field.y.forEach((y, j) => field.x.forEach((x, i) => {
+    const u = field.u[j * field.nx + i], v = field.v[j * field.nx + i];
+    if (u === null || v === null) return;
+    const angle = headingOf(frame, u * (frame.hi[0] - frame.lo[0]), v * (frame.hi[1] - frame.lo[1]));
+    rows.push(symbolRow(x, y, { shape: FIELD_ARROW_PATH, angle, fill: "transparent", stroke: FIELD_STYLE.color, strokeWidth: FIELD_STYLE.strokeWidth, size: FIELD_ARROW_SIZE }, "field"));
+  }));
+  return rows;
+}
+
+/** Each scenario's start marker and direction head, and a head where it leaves without settling. */
+function scenarioMarkRows(frame: PlotFrame, results: PortraitInput["results"], lines: Polyline[]): SymbolRow[] {
+  const color = LINE_STYLES.scenario.color;
+  const marks: SymbolRow[] = [];
+  results.scenarios.forEach((s, k) => {
+    const pieces = drawablePieces(frame, lines[k]);
+    if (pieces.length === 0) return;
+    marks.push(symbolRow(pieces[0].x[0], pieces[0].y[0], { ...START_MARKER, angle: 0, fill: color, stroke: color, strokeWidth: 0 }, `start ${s.name}`));
+    const mid = headRow(frame, pieces[0], HEAD_AT, color, ARROWHEAD_SIZE, `direction ${s.name}`);
+    if (mid) marks.push(mid);
+    // where the scenario does not settle in the window, a head at the end of what is drawn
+    const last = pieces[pieces.length - 1];
+    const end = s.fate.kind === "equilibrium" || s.fate.kind === "cycle" ? null : headRow(frame, last, 1, color, ARROWHEAD_SIZE, `end ${s.name}`);
+    if (end) marks.push(end);
+  });
+  return marks;
 }
 
 /** The phase portrait: window, nullclines, direction field, trajectories, separatrices, periodic orbits, equilibria, and its key. */
@@ -64,16 +89,8 @@ export function buildPortraitFigure({ results, spec, nullclines, field }: Portra
   };
 
   // 1. direction field, underneath everything
-  if (field) {
-    const rows: SymbolRow[] = [];
-    field.y.forEach((y, j) => field.x.forEach((x, i) => {
-      const u = field.u[j * field.nx + i], v = field.v[j * field.nx + i];
-      if (u === null || v === null) return;
-      const angle = headingOf(frame, u * (frame.hi[0] - frame.lo[0]), v * (frame.hi[1] - frame.lo[1]));
-      rows.push(symbolRow(x, y, { shape: FIELD_ARROW_PATH, angle, fill: "transparent", stroke: FIELD_STYLE.color, strokeWidth: FIELD_STYLE.strokeWidth, size: FIELD_ARROW_SIZE }, "field"));
-    }));
-    if (rows.length) { layers.push(symbolLayer("field", rows, enc)); key.field.push({ kind: "field" }); }
-  }
+  const arrows = field ? fieldArrowRows(frame, field) : [];
+  if (arrows.length) { layers.push(symbolLayer("field", arrows, enc)); key.field.push({ kind: "field" }); }
 
   // 2. portrait trajectories: light context. Step points are sparse (long integrator steps), so a
   // centripetal Catmull–Rom curve through them reads closer to the true path than chords do.
@@ -98,7 +115,7 @@ export function buildPortraitFigure({ results, spec, nullclines, field }: Portra
   // 4. separatrices: unstable manifolds under stable ones (the stable ones bound basins)
   for (const manifold of ["unstable", "stable"] as const) {
     const style = manifold === "stable" ? LINE_STYLES.stableManifold : LINE_STYLES.unstableManifold;
-    const paths = results.separatrices.filter((s) => s.manifold === manifold).map((s) => ({ key: `${s.saddle}${s.branch}`, line: polyline(s.path) }));
+    const paths = results.separatrices.filter((s) => s.manifold === manifold).map((s) => ({ key: `${s.saddle}${s.side}`, line: polyline(s.path) }));
     if (addLines(`${manifold}_manifolds`, paths, style, "catmull-rom")) key.separatrices.unshift({ kind: "line", style });
   }
 
@@ -114,20 +131,8 @@ export function buildPortraitFigure({ results, spec, nullclines, field }: Portra
   }
 
   // 7. scenario start markers and direction heads
-  const color = LINE_STYLES.scenario.color;
-  const marks: SymbolRow[] = [];
+  const marks = scenariosDrawn ? scenarioMarkRows(frame, results, scenarioPaths.map((p) => p.line)) : [];
   if (scenariosDrawn) {
-    results.scenarios.forEach((s, k) => {
-      const pieces = drawablePieces(frame, scenarioPaths[k].line);
-      if (pieces.length === 0) return;
-      marks.push(symbolRow(pieces[0].x[0], pieces[0].y[0], { ...START_MARKER, angle: 0, fill: color, stroke: color, strokeWidth: 0 }, `start ${s.name}`));
-      const mid = headRow(frame, pieces[0], HEAD_AT, color, ARROWHEAD_SIZE, `direction ${s.name}`);
-      if (mid) marks.push(mid);
-      // where the scenario does not settle in the window, a head at the end of what is drawn
-      const last = pieces[pieces.length - 1];
-      const end = s.fate.kind === "equilibrium" || s.fate.kind === "cycle" ? null : headRow(frame, last, 1, color, ARROWHEAD_SIZE, `end ${s.name}`);
-      if (end) marks.push(end);
-    });
     layers.push(symbolLayer("scenario_marks", marks, enc));
     key.scenarios.push({ kind: "line", style: LINE_STYLES.scenario, start: true, head: true });
   }
@@ -144,7 +149,7 @@ export function buildPortraitFigure({ results, spec, nullclines, field }: Portra
   const eqLabels = placeLabels(frame, eqRows.map((r) => ({ x: r.x, y: r.y, text: r.what })), (t) => textWidthPx(t, FONT_SIZE.annotation, true), occupied);
   const scenarioLabels = placeLabels(frame, starts.map((m) => ({ x: m.x, y: m.y, text: m.what.slice("start ".length) })), (t) => textWidthPx(t, FONT_SIZE.annotation), occupied);
   layers.push(...labelLayers("equilibrium_labels", eqLabels, enc, { fontWeight: "bold" }));
-  layers.push(...labelLayers("scenario_labels", scenarioLabels, enc, { color, fontStyle: "italic" }));
+  layers.push(...labelLayers("scenario_labels", scenarioLabels, enc, { color: LINE_STYLES.scenario.color, fontStyle: "italic" }));
   const classes = new Set(inside.map(classifyForDrawing));
   for (const c of EQUILIBRIUM_CLASSES) if (classes.has(c)) key.equilibria.push({ kind: "symbol", marker: EQUILIBRIUM_MARKERS[c] });
 

@@ -1,24 +1,21 @@
-import { readFileSync } from "node:fs";
-import { join } from "node:path";
 import { add, multiply, transpose } from "mathjs";
 import { describe, expect, it } from "vitest";
 import { findCaptureRegions, isCaptured, type CaptureRegion } from "../../../src/analysis/flow/capture.js";
 import { findEquilibria, type EquilibriumResult } from "../../../src/analysis/phase/equilibria.js";
 import { buildFlowContext, followTrajectory } from "../../../src/analysis/flow/follow.js";
 import { windowOf, type Box } from "../../../src/analysis/numeric/window.js";
-import type { Model } from "../../../src/model/types.js";
 import { prepareModel } from "../../../src/pipeline.js";
+import { EXAMPLE_IDS, exampleField, exampleSpecText } from "../../fixtures/examples.js";
 import { buildModel } from "../../fixtures/models.js";
-
-type Field = (x: number, y: number) => [number, number];
+import { rk4Step, type Field } from "../../fixtures/reference-integrators.js";
 
 /** Directions sampled around each region (keel itself checks 72), and the fractions of its level. */
 const ANGLES = 180;
 const SHELLS = [0.999, 0.6, 0.2, 0.01];
 /**
- * Classic fourth-order Runge–Kutta (common practice), fixed step: independent of keel's
- * integrator. The step is a twentieth of the fastest time scale 1/|λ|max, and the run may last
- * 60 slowest time scales 1/|Re λ|min, enough to shrink V from the level to V_FLOOR of it.
+ * The reference RK4 (tests/fixtures/reference-integrators.ts), fixed step: a twentieth of the
+ * fastest time scale 1/|λ|max, for up to 60 slowest time scales 1/|Re λ|min, enough to shrink V
+ * from the level to V_FLOOR of it.
  */
 const RK4_STEPS_PER_FAST_SCALE = 20;
 const RK4_SLOW_SCALES = 60;
@@ -26,15 +23,6 @@ const RK4_SLOW_SCALES = 60;
 const V_FLOOR = 1e-20;
 /** The Lyapunov equation AᵀP + PA = −I is solved by a 3 × 3 linear solve: entries to 1e-10. */
 const LYAPUNOV_TOL = 1e-10;
-
-function rk4Step(f: Field, p: [number, number], h: number): [number, number] {
-  const [x, y] = p;
-  const k1 = f(x, y);
-  const k2 = f(x + (h / 2) * k1[0], y + (h / 2) * k1[1]);
-  const k3 = f(x + (h / 2) * k2[0], y + (h / 2) * k2[1]);
-  const k4 = f(x + h * k3[0], y + h * k3[1]);
-  return [x + (h / 6) * (k1[0] + 2 * k2[0] + 2 * k3[0] + k4[0]), y + (h / 6) * (k1[1] + 2 * k2[1] + 2 * k3[1] + k4[1])];
-}
 
 /** V(x) = zᵀ P z with z the window-scaled offset from the region's centre. */
 function lyapunov(region: CaptureRegion, box: Box, x: [number, number]): number {
@@ -97,11 +85,6 @@ function expectLyapunovEquation(region: CaptureRegion, e: EquilibriumResult, box
   expect(P[0][0] * P[1][1] - P[0][1] * P[1][0]).toBeGreaterThan(0);
 }
 
-const fieldOf = (model: Model): Field => {
-  const out = new Float64Array(2);
-  return (x, y) => { model.rhs([x, y], out); return [out[0], out[1]]; };
-};
-
 describe("findCaptureRegions(competition)", () => {
   // Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., section 6.4: stable nodes at (0, 2) and (3, 0),
   // an unstable node at (0, 0) and a saddle at (1, 1). The field is written out here by hand.
@@ -142,8 +125,8 @@ describe("findCaptureRegions(competition)", () => {
 
 describe("findCaptureRegions on the example specs", () => {
   // common practice: every hyperbolic attractor (forward) and repeller (backward) gets a region
-  for (const file of ["reservoir-competition.json", "grazer-forage.json"]) {
-    const prepared = prepareModel(readFileSync(join(import.meta.dirname, "../../specs", file), "utf8"));
+  for (const file of EXAMPLE_IDS) {
+    const prepared = prepareModel(exampleSpecText(file));
     if (!prepared.ok) throw new Error(JSON.stringify(prepared.issues));
     const model = prepared.value.model;
     const equilibria = findEquilibria(model);
@@ -158,7 +141,8 @@ describe("findCaptureRegions on the example specs", () => {
         for (const r of regions) {
           const e = equilibria.find((q) => q.id === r.equilibrium)!;
           expectLyapunovEquation(r, e, box, sign);
-          expectEverySampleConverges(fieldOf(model), r, e, box, sign);
+          // the field typed out by hand from the spec, not keel's compiled one
+          expectEverySampleConverges(exampleField(file), r, e, box, sign);
         }
       });
     }

@@ -1,12 +1,21 @@
 import { describe, expect, it } from "vitest";
 import type { CycleResult, Results } from "../../../src/analysis/types.js";
-import { analyzeFixture, type FixtureScenario as Scenario, type ModelFixture } from "../../fixtures/models.js";
+import { analyzeFixture, type ModelFixture } from "../../fixtures/models.js";
+import { rk4Step, type Field, type Point } from "../../fixtures/reference-integrators.js";
 
-/** Scenario paths hold about nine digits (1e-9 relative steps); 1e-7 leaves two for drift over a few periods. */
+/**
+ * Scenario paths hold about nine digits (1e-9 relative steps); 1e-7 leaves two for drift over a few periods.
+ */
 const FIRST_INTEGRAL_REL_TOL = 1e-7;
-/** Shooting integrates at 1e-12 relative and reports the period to about 1e-9; 1e-6 is the check's own precision. */
+/**
+ * Shooting integrates at 1e-12 relative and reports the period to about 1e-9; 1e-6 is the check's own
+ * precision.
+ */
 const PERIOD_REL_TOL = 1e-6;
-/** The Floquet multiplier (trace quadrature) and the return-map slope (central differences, h = 1e-6) are independent estimates. */
+/**
+ * The Floquet multiplier (trace quadrature) and the return-map slope (central differences, h = 1e-6) are
+ * independent estimates.
+ */
 const MULTIPLIER_REL_TOL = 1e-5;
 
 
@@ -19,6 +28,29 @@ function cycleOf(results: Results, scenario: number): CycleResult {
 }
 
 const relativeGap = (a: number, b: number) => Math.abs(a - b) / Math.abs(b);
+
+/**
+ * Steps of the reference RK4 over one period for the trace integral: h ≈ 3e-4 on the van der Pol
+ * cycle, where RK4's and composite Simpson's errors (both O(h⁴)) are far below MULTIPLIER_REL_TOL.
+ */
+const TRACE_STEPS = 20_000;
+
+/**
+ * The Floquet multiplier of a planar cycle as exp(∮ div f dt) over one period (Liouville's
+ * formula; Perko, Differential Equations and Dynamical Systems, 3rd ed., section 3.4, from
+ * memory): the reference RK4 carries the orbit and composite Simpson's rule the integral.
+ */
+function traceMultiplier(f: Field, divergence: (x: number, y: number) => number, start: Point, period: number): number {
+  const h = period / TRACE_STEPS;
+  let p = start;
+  let sum = divergence(p[0], p[1]);
+  for (let k = 1; k <= TRACE_STEPS; k++) {
+    p = rk4Step(f, p, h);
+    const weight = k === TRACE_STEPS ? 1 : k % 2 === 1 ? 4 : 2;
+    sum += weight * divergence(p[0], p[1]);
+  }
+  return Math.exp((h / 3) * sum);
+}
 
 describe("solvePeriodicOrbit on the Lotka–Volterra predator–prey model", () => {
   // x' = a x − b x y, y' = c x y − d y conserves H = c x − d ln x + b y − a ln y, and every orbit
@@ -74,9 +106,8 @@ describe("solvePeriodicOrbit on the Lotka–Volterra predator–prey model", () 
 });
 
 describe("solvePeriodicOrbit on the van der Pol oscillator (mu = 1)", () => {
-  // Period 6.663286859323 and amplitude max x = 2.00862 of the limit cycle at mu = 1, from memory
-  // of the standard published values (e.g. as tabulated in Hairer, Nørsett and Wanner, Solving
-  // Ordinary Differential Equations I, 2nd ed.).
+  // Period 6.663286859323 and amplitude max x = 2.00862 of the limit cycle at mu = 1: the
+  // standard values of this reference problem, from memory.
   const PERIOD = 6.663286859323;
   const AMPLITUDE = 2.00862;
   const window = { x: [-3, 3], y: [-4, 4] } as Record<string, [number, number]>;
@@ -84,7 +115,8 @@ describe("solvePeriodicOrbit on the van der Pol oscillator (mu = 1)", () => {
     { equations: { x: "y", y: "mu*(1 - x^2)*y - x" }, parameters: { mu: 1 }, window },
     [{ name: "inside", initial: { x: 0.5, y: 0 }, horizon: 200 }, { name: "outside", initial: { x: 2.5, y: 2 }, horizon: 200 }],
   );
-  // the same orbit with time reversed repels; keel finds it by integrating backward from around the stable focus
+  // the same orbit with time reversed repels; keel finds it by integrating backward from around the stable
+  // focus
   const reversed = analyzeFixture(
     { equations: { x: "-y", y: "-(mu*(1 - x^2)*y - x)" }, parameters: { mu: 1 }, window },
     [{ name: "inside", initial: { x: 0.5, y: 0 }, horizon: 200 }],
@@ -101,11 +133,15 @@ describe("solvePeriodicOrbit on the van der Pol oscillator (mu = 1)", () => {
     expect(Math.abs(cycle.extent.x[0] + AMPLITUDE)).toBeLessThanOrEqual(5e-6); // the orbit is symmetric under (x, y) → (−x, −y)
   });
 
-  it("solvePeriodicOrbit(van der Pol) has a Floquet multiplier below 1 that equals the return-map slope", () => {
+  it("solvePeriodicOrbit(van der Pol) has the Floquet multiplier exp(∮ μ(1 − x²) dt), and a return-map slope equal to it", () => {
     const cycle = forward.cycles[0];
-    expect(cycle.floquetMultiplier).toBeGreaterThan(0);
-    expect(cycle.floquetMultiplier).toBeLessThan(1);
-    expect(relativeGap(cycle.returnMapSlope, cycle.floquetMultiplier)).toBeLessThanOrEqual(MULTIPLIER_REL_TOL);
+    // the field and its divergence typed out by hand (mu = 1)
+    const f: Field = (x, y) => [y, (1 - x * x) * y - x];
+    const reference = traceMultiplier(f, (x) => 1 - x * x, [cycle.orbit.x[0], cycle.orbit.y[0]], PERIOD);
+    expect(reference).toBeGreaterThan(0);
+    expect(reference).toBeLessThan(1);
+    expect(relativeGap(cycle.floquetMultiplier, reference)).toBeLessThanOrEqual(MULTIPLIER_REL_TOL);
+    expect(relativeGap(cycle.returnMapSlope, reference)).toBeLessThanOrEqual(MULTIPLIER_REL_TOL);
   });
 
   it("solvePeriodicOrbit(time-reversed van der Pol) finds an unstable cycle with the same period", () => {

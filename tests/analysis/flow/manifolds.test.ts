@@ -1,13 +1,13 @@
-import { readFileSync } from "node:fs";
-import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import type { Results, SeparatrixResult } from "../../../src/analysis/types.js";
-import { runPipeline } from "../../../src/pipeline.js";
-import { fixtureSpec } from "../../fixtures/models.js";
+import { exampleField, exampleSpecText } from "../../fixtures/examples.js";
+import { COARSE_BASINS, fixtureSpec, runOrThrow } from "../../fixtures/models.js";
+import { integrateRk4 as rk4, type Field } from "../../fixtures/reference-integrators.js";
 
-type Field = (x: number, y: number) => [number, number];
-
-/** Offset to either side of a separatrix, as a fraction of the window: far above the path's error (~1e-9), small enough to stay beside it. */
+/**
+ * Offset to either side of a separatrix, as a fraction of the window: far above the path's error (~1e-9),
+ * small enough to stay beside it.
+ */
 const SIDE_OFFSET = 1e-3;
 /** Points checked along each branch, spread evenly by arc length over its part inside the window. */
 const CHECKS_PER_BRANCH = 8;
@@ -17,22 +17,6 @@ const KEEP_AWAY = 0.02;
 const MIN_CHECKS = 5;
 /** Arrived: within this scaled distance of the attractor. */
 const ARRIVED = 1e-4;
-
-/** Classic fourth-order Runge–Kutta with a fixed step (common practice): independent of keel's integrator. */
-function rk4(f: Field, start: [number, number], time: number, step: number, sign: 1 | -1 = 1): [number, number] {
-  let [x, y] = start;
-  const n = Math.ceil(time / step);
-  const h = (sign * time) / n;
-  for (let k = 0; k < n; k++) {
-    const k1 = f(x, y);
-    const k2 = f(x + (h / 2) * k1[0], y + (h / 2) * k1[1]);
-    const k3 = f(x + (h / 2) * k2[0], y + (h / 2) * k2[1]);
-    const k4 = f(x + h * k3[0], y + h * k3[1]);
-    x += (h / 6) * (k1[0] + 2 * k2[0] + 2 * k3[0] + k4[0]);
-    y += (h / 6) * (k1[1] + 2 * k2[1] + 2 * k3[1] + k4[1]);
-  }
-  return [x, y];
-}
 
 interface Attractor { id: string; point: [number, number] }
 /** A field written by hand, keel's results for it, and how long RK4 runs to settle on an attractor. */
@@ -98,14 +82,9 @@ function sidesAlong(sep: SeparatrixResult, m: Flow): { left: string; right: stri
   });
 }
 
-/** The basin map is not under test here: a coarse one (16 cells a side) keeps these runs fast. */
-const COARSE_BASINS = { basins: { resolution: 16, coarse: 8 } };
-
-function run(text: string): Results {
-  const out = runPipeline(JSON.stringify({ ...JSON.parse(text), analysis: COARSE_BASINS }));
-  if (!out.ok) throw new Error(JSON.stringify(out.issues));
-  return out.value.results;
-}
+/** Results with a coarse basin map, which is not under test here. */
+const run = (text: string): Results =>
+  runOrThrow(JSON.stringify({ ...JSON.parse(text), analysis: COARSE_BASINS })).results;
 
 const attractorsOf = (results: Results): Attractor[] =>
   results.equilibria.filter((e) => e.stable === true).map((e) => ({ id: e.id, point: [e.point[results.model.states[0]], e.point[results.model.states[1]]] }));
@@ -121,7 +100,7 @@ describe("findSeparatrices(competition)", () => {
   const ofSaddle = (manifold: "stable" | "unstable") => results.separatrices.filter((s) => s.saddle === saddle && s.manifold === manifold);
 
   it("findSeparatrices(competition) gives two branches of each manifold of the one saddle", () => {
-    expect(results.separatrices.map((s) => [s.saddle, s.manifold, s.branch])).toEqual([
+    expect(results.separatrices.map((s) => [s.saddle, s.manifold, s.side])).toEqual([
       [saddle, "stable", 1], [saddle, "stable", -1], [saddle, "unstable", 1], [saddle, "unstable", -1],
     ]);
     // every drawn curve starts at the saddle itself
@@ -130,16 +109,16 @@ describe("findSeparatrices(competition)", () => {
   });
 
   it("findSeparatrices(competition) ends the stable branches at the window edge and at the unstable node (0, 0)", () => {
-    const ends = ofSaddle("stable").map((s) => s.end);
+    const ends = ofSaddle("stable").map((s) => s.fate);
     expect(ends.map((e) => e.kind).sort()).toEqual(["equilibrium", "left-window"]);
     expect(ends.find((e) => e.kind === "equilibrium")).toEqual({ kind: "equilibrium", target: id(0, 0) });
     const edge = ends.find((e) => e.kind === "left-window");
     // the branch going up and right leaves through x = 4 or y = 4
-    expect(edge && edge.kind === "left-window" && ["x = 4", "y = 4"].includes(edge.edge)).toBe(true);
+    expect(edge && edge.kind === "left-window" && [JSON.stringify({ state: "x", value: 4 }), JSON.stringify({ state: "y", value: 4 })].includes(JSON.stringify(edge.edge))).toBe(true);
   });
 
   it("findSeparatrices(competition) ends the unstable branches at the stable nodes (0, 2) and (3, 0)", () => {
-    expect(ofSaddle("unstable").map((s) => s.end).sort((a, b) => JSON.stringify(a).localeCompare(JSON.stringify(b))))
+    expect(ofSaddle("unstable").map((s) => s.fate).sort((a, b) => JSON.stringify(a).localeCompare(JSON.stringify(b))))
       .toEqual([{ kind: "equilibrium", target: id(0, 2) }, { kind: "equilibrium", target: id(3, 0) }]);
   });
 
@@ -156,14 +135,9 @@ describe("findSeparatrices(competition)", () => {
 
 describe("findSeparatrices on the example specs", () => {
   // common practice: a saddle's stable manifold, where it has attractors on both sides, bounds their basins
-  const text = readFileSync(join(import.meta.dirname, "../../specs/grazer-forage.json"), "utf8");
-  const results = run(text);
-  const p = Object.fromEntries(JSON.parse(text).parameters.map((q: { name: string; value: number }) => [q.name, q.value]));
+  const results = run(exampleSpecText("grazer-forage"));
   // the grazer–forage equations of the spec, written out by hand
-  const f: Field = (V, G) => {
-    const intake = (p.c * V * V) / (p.h * p.h + V * V);
-    return [p.r * V * (1 - V / p.K) - G * intake, G * (p.y * intake - p.m - p.q * G)];
-  };
+  const f = exampleField("grazer-forage");
 
   it("findSeparatrices(grazer-forage) interior saddle's stable manifold separates the two stable states", () => {
     const interior = results.equilibria.find((e) => e.type === "saddle" && !e.onBoundary)!;
@@ -176,12 +150,12 @@ describe("findSeparatrices on the example specs", () => {
       const sides = sidesAlong(branch, { f, results, attractors, settleTime: 300, step: 0.02 });
       const left = new Set(sides.map((s) => s.left));
       const right = new Set(sides.map((s) => s.right));
-      expect(left.size, `branch ${branch.branch}`).toBe(1);
-      expect(right.size, `branch ${branch.branch}`).toBe(1);
+      expect(left.size, `branch ${branch.side}`).toBe(1);
+      expect(right.size, `branch ${branch.side}`).toBe(1);
       expect([...left, ...right].sort()).toEqual(attractors.map((a) => a.id).sort());
     }
     // and the unstable branches fall one into each
-    expect(results.separatrices.filter((s) => s.saddle === interior.id && s.manifold === "unstable").map((s) => s.end.kind === "equilibrium" && s.end.target).sort())
+    expect(results.separatrices.filter((s) => s.saddle === interior.id && s.manifold === "unstable").map((s) => s.fate.kind === "equilibrium" && s.fate.target).sort())
       .toEqual(attractors.map((a) => a.id).sort());
   });
 });

@@ -4,25 +4,14 @@ import { findInvasionConditions, type InvasionConditionResult } from "../../../s
 import { findEquilibria, type EquilibriumResult } from "../../../src/analysis/phase/equilibria.js";
 import type { Model } from "../../../src/model/types.js";
 import { prepareModel, runPipeline } from "../../../src/pipeline.js";
+import { seededUniform } from "../../fixtures/random.js";
 
-/** The issue's requirement: symbolic conditions equal the numerical thresholds to 1e-9 relative. */
+/** Required accuracy: symbolic conditions equal the numerical thresholds to 1e-9 relative. */
 const SYMBOLIC_REL_TOL = 1e-9;
 /** A flip found by bisection to machine precision lies on its closed form to this, relatively. */
 const FLIP_REL_TOL = 1e-9;
 
 const relative = (value: number, reference: number) => Math.abs(value - reference) / Math.abs(reference);
-
-/** Seeded uniform numbers in [0, 1) (mulberry32; common practice): the same draws on every run. */
-function seededRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 type Values = Record<string, number>;
 
@@ -59,7 +48,10 @@ function pipeline(specText: string) {
   return out.value.results;
 }
 
-/** The one invasion condition of `absent` at the boundary equilibrium where the other state is `residentValue`. */
+/**
+ * The one invasion condition of `absent` at the boundary equilibrium where the other state is
+ * `residentValue`.
+ */
 function invasionOf(conditions: InvasionConditionResult[], equilibria: EquilibriumResult[], absent: string, residentValue: number): InvasionConditionResult {
   const found = conditions.filter((c) => {
     const e = equilibria.find((q) => q.id === c.equilibrium)!;
@@ -71,7 +63,7 @@ function invasionOf(conditions: InvasionConditionResult[], equilibria: Equilibri
 }
 
 describe("findInvasionConditions(competition)", () => {
-  const draws = seededRandom(20240611);
+  const draws = seededUniform(20240611);
   const between = (lo: number, hi: number) => lo + (hi - lo) * draws();
   const sets: Values[] = Array.from({ length: 4 }, () => ({
     r1: between(0.2, 2), r2: between(0.2, 2), K1: between(40, 110), K2: between(40, 110), a12: between(0.2, 1.8), a21: between(0.2, 1.8),
@@ -208,7 +200,7 @@ describe("assumptions against the located thresholds", () => {
 });
 
 describe("determinism", () => {
-  // Seeded and sorted passes only (STYLE.md, item 9; common practice): the same spec, the same block.
+  // Seeded and sorted passes only (common practice): the same spec, the same block.
   it("analyze(competition with a study pair) gives a deep-equal conditions block on two runs", () => {
     const text = competitionSpec(COMPETITION_VALUES, {
       analysis: { basins: { resolution: 64, coarse: 16 }, parameters: ["a12", "a21"], parameterPairs: [["a12", "a21"]] },

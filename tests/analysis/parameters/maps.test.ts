@@ -24,7 +24,10 @@ const SPEC = JSON.stringify({
   id: "competition-map",
   title: "Lotka–Volterra competition (invented values)",
   time: { unit: "year" },
-  states: [{ name: "N", min: 0, max: 120 }, { name: "S", min: 0, max: 120 }],
+  states: [
+    { name: "N", min: 0, max: 120 },
+    { name: "S", min: 0, max: 120 },
+  ],
   parameters: [
     ...Object.entries(BASE).map(([name, value]) => ({ name, value })),
     { name: "a12", value: 0.6, range: A12_RANGE },
@@ -32,16 +35,28 @@ const SPEC = JSON.stringify({
   ],
   equations: { N: "r1*N*(1 - (N + a12*S)/K1)", S: "r2*S*(1 - (S + a21*N)/K2)" },
   window: { N: [0, 120], S: [0, 120] },
-  analysis: { basins: { resolution: 64, coarse: 16 }, parameters: ["a12", "a21"], parameterPairs: [["a12", "a21"]] },
+  analysis: {
+    basins: { resolution: 64, coarse: 16 },
+    parameters: ["a12", "a21"],
+    parameterPairs: [["a12", "a21"]],
+  },
 });
 
+/** The textbook outcome in each quadrant: the stable equilibria, each by the states it keeps present. */
+function textbookOutcome(a12: number, a21: number): string[][] {
+  if (a12 < A12_LINE && a21 < A21_LINE) return [["N", "S"]];
+  if (a12 < A12_LINE) return [["N"]];
+  if (a21 < A21_LINE) return [["S"]];
+  return [["N"], ["S"]];
+}
 
-/** The textbook outcome in each quadrant, as the set of stable equilibria described by who is present. */
-function textbookOutcome(a12: number, a21: number): string {
-  if (a12 < A12_LINE && a21 < A21_LINE) return "one attractor (coexistence)";
-  if (a12 < A12_LINE) return "one attractor (N only)";
-  if (a21 < A21_LINE) return "one attractor (S only)";
-  return "2 attractors (N only; S only)";
+/** Sorts by JSON text, code point by code point. */
+const byText = (x: unknown, y: unknown) =>
+  JSON.stringify(x) < JSON.stringify(y) ? -1 : JSON.stringify(x) > JSON.stringify(y) ? 1 : 0;
+
+/** A legend entry as its attractors' presence patterns, sorted; no other attractor (a cycle) may appear. */
+function presencePatterns(outcome: OutcomeMapResult["legend"][number]): string[][] {
+  return outcome.attractors.map((a) => (a.kind === "equilibrium" ? a.present : ["a cycle"])).sort(byText);
 }
 
 describe("buildOutcomeMap(competition, a12 × a21)", () => {
@@ -51,7 +66,8 @@ describe("buildOutcomeMap(competition, a12 × a21)", () => {
     const out = runPipeline(SPEC);
     if (!out.ok) throw new Error(JSON.stringify(out.issues));
     results = out.value.results;
-    if (results.conditions.maps.length !== 1) throw new Error(`expected one map, got ${results.conditions.maps.length}`);
+    if (results.conditions.maps.length !== 1)
+      throw new Error(`expected one map, got ${results.conditions.maps.length}`);
     map = results.conditions.maps[0];
   });
 
@@ -60,17 +76,31 @@ describe("buildOutcomeMap(competition, a12 × a21)", () => {
     expect(map.ranges).toEqual([A12_RANGE, A21_RANGE]);
     expect(map.nominal).toEqual([0.6, 0.5]);
     expect(map.cells).toHaveLength(map.nx * map.ny);
-    expect([...map.legend].sort()).toEqual(["2 attractors (N only; S only)", "one attractor (N only)", "one attractor (S only)", "one attractor (coexistence)"]);
+    expect(map.legend.map(presencePatterns).sort(byText)).toEqual([
+      [["N", "S"]],
+      [["N"], ["S"]],
+      [["N"]],
+      [["S"]],
+    ]);
+    // attractors only: the map does not follow scenarios
+    for (const outcome of map.legend) expect(outcome.scenarios).toEqual([]);
     const counts = new Map<string, number>();
     for (let b = 0; b < map.ny; b++) {
       for (let a = 0; a < map.nx; a++) {
         // cells are row-major from the lowest a21, sampled at their centres
         const a12 = A12_RANGE[0] + ((A12_RANGE[1] - A12_RANGE[0]) * (a + 0.5)) / map.nx;
         const a21 = A21_RANGE[0] + ((A21_RANGE[1] - A21_RANGE[0]) * (b + 0.5)) / map.ny;
-        if (Math.abs(a12 - A12_LINE) / A12_LINE < CLEAR_OF_LINE || Math.abs(a21 - A21_LINE) / A21_LINE < CLEAR_OF_LINE) continue;
+        if (
+          Math.abs(a12 - A12_LINE) / A12_LINE < CLEAR_OF_LINE ||
+          Math.abs(a21 - A21_LINE) / A21_LINE < CLEAR_OF_LINE
+        )
+          continue;
         const want = textbookOutcome(a12, a21);
-        expect(map.legend[map.cells[b * map.nx + a]], `cell a12 = ${a12}, a21 = ${a21}`).toBe(want);
-        counts.set(want, (counts.get(want) ?? 0) + 1);
+        expect(
+          presencePatterns(map.legend[map.cells[b * map.nx + a]]),
+          `cell a12 = ${a12}, a21 = ${a21}`,
+        ).toEqual(want);
+        counts.set(JSON.stringify(want), (counts.get(JSON.stringify(want)) ?? 0) + 1);
       }
     }
     // every quadrant was checked on many cells, not a handful
@@ -83,18 +113,24 @@ describe("buildOutcomeMap(competition, a12 × a21)", () => {
     const [alongA21, alongA12] = map.curves;
     // the a12 threshold, traced in a21: points (K1/K2, a21) from one end of a21's range to the other
     expect(alongA21.points.length).toBeGreaterThan(10);
-    for (const [a12] of alongA21.points) expect(Math.abs(a12 - A12_LINE) / A12_LINE).toBeLessThanOrEqual(CURVE_REL_TOL);
+    for (const [a12] of alongA21.points)
+      expect(Math.abs(a12 - A12_LINE) / A12_LINE).toBeLessThanOrEqual(CURVE_REL_TOL);
     const a21s = alongA21.points.map((p) => p[1]);
     expect(Math.min(...a21s)).toBeCloseTo(A21_RANGE[0], 9);
     expect(Math.max(...a21s)).toBeCloseTo(A21_RANGE[1], 9);
     // the a21 threshold, traced in a12
     expect(alongA12.points.length).toBeGreaterThan(10);
-    for (const [, a21] of alongA12.points) expect(Math.abs(a21 - A21_LINE) / A21_LINE).toBeLessThanOrEqual(CURVE_REL_TOL);
+    for (const [, a21] of alongA12.points)
+      expect(Math.abs(a21 - A21_LINE) / A21_LINE).toBeLessThanOrEqual(CURVE_REL_TOL);
     const a12s = alongA12.points.map((p) => p[0]);
     expect(Math.min(...a12s)).toBeCloseTo(A12_RANGE[0], 9);
     expect(Math.max(...a12s)).toBeCloseTo(A12_RANGE[1], 9);
     // each curve starts from the threshold its one-parameter study located
-    const located = results.thresholds.map((t) => `${t.parameter} = ${t.value}`);
-    expect(map.curves.map((c) => c.origin).every((o) => located.includes(o))).toBe(true);
+    for (const { origin } of map.curves)
+      expect(
+        results.thresholds.some((t) => t.parameter === origin.parameter && t.value === origin.value),
+        JSON.stringify(origin),
+      ).toBe(true);
+    expect(map.curves.map((c) => c.origin.parameter)).toEqual(["a12", "a21"]);
   });
 });

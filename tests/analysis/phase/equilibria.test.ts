@@ -1,11 +1,13 @@
-import { readdirSync, readFileSync } from "node:fs";
+import { readFileSync } from "node:fs";
 import { join } from "node:path";
-import { eigs } from "mathjs";
 import { describe, expect, it } from "vitest";
-import { findEquilibria, ROOT_RESIDUAL_TOL, type EquilibriumResult } from "../../../src/analysis/phase/equilibria.js";
+import { findEquilibria, type EquilibriumResult } from "../../../src/analysis/phase/equilibria.js";
+import { ROOT_RESIDUAL_TOL } from "../../../src/analysis/constants.js";
 import type { Complex, EquilibriumType } from "../../../src/analysis/phase/stability.js";
 import { runPipeline } from "../../../src/pipeline.js";
-import { buildModel, rhsAt } from "../../fixtures/models.js";
+import { mathjsEigenvalues, pairDistance } from "../../fixtures/eigen.js";
+import { EXAMPLE_IDS, exampleField, SPECS_DIR } from "../../fixtures/examples.js";
+import { buildModel } from "../../fixtures/models.js";
 
 /** Newton polishes to full precision on these O(1) hand-worked cases; 1e-12 leaves ~4 digits. */
 const POINT_TOL = 1e-12;
@@ -150,17 +152,6 @@ describe("findEquilibria when the states differ by five orders of magnitude", ()
   });
 });
 
-function mathjsEigenvalues(J: number[][]): Complex[] {
-  return (eigs(J).values as unknown as (number | { re: number; im: number })[]).map((v) =>
-    typeof v === "number" ? { re: v, im: 0 } : { re: v.re, im: v.im },
-  );
-}
-
-function pairDistance(p: Complex[], q: Complex[]): number {
-  const d = (u: Complex, v: Complex) => Math.hypot(u.re - v.re, u.im - v.im);
-  return Math.min(Math.max(d(p[0], q[0]), d(p[1], q[1])), Math.max(d(p[0], q[1]), d(p[1], q[0])));
-}
-
 /** Real roots of a polynomial (coefficients in ascending order): companion matrix by mathjs, then Newton. */
 function realRoots(coefficients: number[]): number[] {
   const n = coefficients.length - 1;
@@ -186,8 +177,8 @@ function polyMultiply(p: number[], q: number[]): number[] {
 }
 
 describe("example specs run end to end", () => {
-  const dir = join(import.meta.dirname, "../../specs");
-  const files = readdirSync(dir).filter((f) => f.endsWith(".json")).sort();
+  const dir = SPECS_DIR;
+  const files = EXAMPLE_IDS.map((id) => `${id}.json`);
 
   it("specs/ holds the example specs", () => {
     expect(files).toEqual(expect.arrayContaining(["grazer-forage.json", "reservoir-competition.json"]));
@@ -208,7 +199,8 @@ describe("example specs run end to end", () => {
           expect(x[k]).toBeLessThanOrEqual(model.spec.window[n][1]);
         });
         expect(e.residual).toBeLessThan(ROOT_RESIDUAL_TOL);
-        const f = rhsAt(model, x);
+        // the field typed out by hand from the spec, not keel's compiled right-hand side
+        const f = exampleField(file.replace(/\.json$/, ""))(x[0], x[1]);
         const size = Math.max(...x.map(Math.abs), 1);
         for (const v of f) expect(Math.abs(v)).toBeLessThanOrEqual(1e-9 * size);
       }

@@ -1,15 +1,8 @@
 import { describe, expect, it } from "vitest";
-import { prepareModel } from "../../../src/pipeline.js";
-import type { Model } from "../../../src/model/types.js";
+import { modelOf } from "../../fixtures/models.js";
 import { serializeResults } from "../../../src/report/archive/serialize.js";
-import { computeDirectionField, DEFAULT_DIRECTION_FIELD_OPTIONS } from "../../../src/analysis/phase/field.js";
-
-function modelOf(equations: Record<string, string>, window: Record<string, [number, number]>): Model {
-  const states = Object.entries(window).map(([name, [min, max]]) => ({ name, min, max }));
-  const prepared = prepareModel(JSON.stringify({ keel: 1, id: "test", title: "test", time: { unit: "day" }, states, equations, window }));
-  if (!prepared.ok) throw new Error(prepared.issues.map((i) => i.message).join("; "));
-  return prepared.value.model;
-}
+import { computeDirectionField } from "../../../src/analysis/phase/field.js";
+import { DEFAULT_DIRECTION_FIELD_OPTIONS } from "../../../src/analysis/constants.js";
 
 // Logistic prey with a saturating response on a window of unequal widths (5 by 300), so the
 // window scaling matters; the right-hand side is written out again here, independently.

@@ -1,21 +1,12 @@
 import { describe, expect, it } from "vitest";
-import { prepareModel } from "../../../src/pipeline.js";
+import { modelOf } from "../../fixtures/models.js";
 import type { Model } from "../../../src/model/types.js";
 import type { Diagnostic } from "../../../src/diagnostics/issue.js";
 import { findEquilibria } from "../../../src/analysis/phase/equilibria.js";
-import {
-  findNullclines, NULLCLINE_RESIDUAL_TOL, DEFAULT_NULLCLINE_OPTIONS,
-  type NullclineResult, type NullclinePiece,
-} from "../../../src/analysis/phase/nullclines.js";
+import { findNullclines, type NullclineResult, type NullclinePiece } from "../../../src/analysis/phase/nullclines.js";
+import { DEFAULT_NULLCLINE_OPTIONS, NULLCLINE_RESIDUAL_TOL } from "../../../src/analysis/constants.js";
 
 type Rhs = (x: number, y: number) => [number, number];
-
-function modelOf(equations: Record<string, string>, window: Record<string, [number, number]>): Model {
-  const states = Object.entries(window).map(([name, [min, max]]) => ({ name, min, max }));
-  const prepared = prepareModel(JSON.stringify({ keel: 1, id: "test", title: "test", time: { unit: "day" }, states, equations, window }));
-  if (!prepared.ok) throw new Error(prepared.issues.map((i) => i.message).join("; "));
-  return prepared.value.model;
-}
 
 // Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., section 6.4 (rabbits versus sheep):
 // x' = x(3 - x - 2y), y' = y(2 - x - y); nullclines x = 0, x + 2y = 3 and y = 0, x + y = 2;
@@ -88,7 +79,7 @@ describe("findNullclines", () => {
     expect(ny.lines).toEqual([{ state: "y", value: 0 }]);
   });
 
-  it("findNullclines(competition) includes the axis branches across the whole window and the oblique lines edge to edge", () => {
+  it("findNullclines(competition) includes the axis curves across the whole window and the oblique lines edge to edge", () => {
     const [nx, ny] = run(competition).nullclines;
     const span = (n: NullclineResult, axis: boolean, k: number) => {
       const v = vertices(n, (p) => p.onAxis === axis).map((p) => p[k]);
@@ -117,12 +108,12 @@ describe("findNullclines", () => {
     expect(vertices(nx, (p) => p.onAxis).every(([x]) => x === 0)).toBe(true);
   });
 
-  it("findNullclines(circle) gives one closed branch of radius 1 cut into two pieces at the equilibria", () => {
+  it("findNullclines(circle) gives one closed curve of radius 1 cut into two pieces at the equilibria", () => {
     const { nullclines, equilibria } = run(circle);
     const pieces = nullclines[0].pieces;
     expect(equilibria).toHaveLength(2);
     expect(pieces).toHaveLength(2);
-    expect(new Set(pieces.map((p) => p.branch)).size).toBe(1);
+    expect(new Set(pieces.map((p) => p.curve)).size).toBe(1);
     for (const [x, y] of vertices(nullclines[0])) expect(Math.abs(Math.hypot(x, y) - 1)).toBeLessThan(1e-12);
     for (const p of pieces) expect(p.ends.map((e) => e.kind)).toEqual(["equilibrium", "equilibrium"]);
     // together the two pieces go once round the circle
@@ -143,7 +134,7 @@ describe("findNullclines", () => {
           { end: piece.ends[0], at: piece.points[0] },
           { end: piece.ends[1], at: piece.points[piece.points.length - 1] },
         ]).filter(({ end }) => end.kind === "equilibrium" && end.id === e.id);
-        // one piece on each side, unless the equilibrium sits where its branch leaves the window
+        // one piece on each side, unless the equilibrium sits where its curve leaves the window
         expect(ends.length).toBeGreaterThanOrEqual(1);
         for (const { at } of ends) expect(at).toEqual(p);
         for (const piece of n.pieces) for (const q of piece.points.slice(1, -1)) {
@@ -196,16 +187,16 @@ describe("findNullclines", () => {
     expect(diagnostics.filter((d) => d.severity === "warning" && d.stage === "nullclines")).toHaveLength(4);
   });
 
-  it("findNullclines orders branches by first point and starts each open branch at its smaller end", () => {
+  it("findNullclines orders curves by first point and starts each open curve at its smaller end", () => {
     for (const c of cases) {
       for (const n of run(c).nullclines) {
-        const branches = [...new Set(n.pieces.map((p) => p.branch))];
-        expect(branches).toEqual(branches.map((_, k) => k));
-        const firsts = branches.map((b) => n.pieces.find((p) => p.branch === b)!.points[0]);
+        const curves = [...new Set(n.pieces.map((p) => p.curve))];
+        expect(curves).toEqual(curves.map((_, k) => k));
+        const firsts = curves.map((b) => n.pieces.find((p) => p.curve === b)!.points[0]);
         const notAfter = (p: number[], q: number[]) => p[0] < q[0] || (p[0] === q[0] && p[1] <= q[1]);
         for (let k = 1; k < firsts.length; k++) expect(notAfter(firsts[k - 1], firsts[k])).toBe(true);
-        for (const b of branches) {
-          const own = n.pieces.filter((p) => p.branch === b);
+        for (const b of curves) {
+          const own = n.pieces.filter((p) => p.curve === b);
           const last = own[own.length - 1].points;
           expect(notAfter(own[0].points[0], last[last.length - 1])).toBe(true);
         }
@@ -213,7 +204,7 @@ describe("findNullclines", () => {
     }
   });
 
-  it("findNullclines(hole) stops the branch y = √x where the model is undefined (x < 0)", () => {
+  it("findNullclines(hole) stops the curve y = √x where the model is undefined (x < 0)", () => {
     // sqrt(x) is NaN for x < 0: those samples are holes (common practice, as in d3-contour)
     const model = modelOf({ x: "y - sqrt(x)", y: "x - 0.5" }, { x: [-1, 1], y: [-1, 1.5] });
     const [nx] = findNullclines(model, findEquilibria(model));
@@ -236,8 +227,8 @@ describe("findNullclines", () => {
     for (const [x, y] of vertices(nx, (p) => !p.onAxis)) expect(Math.abs(x * x + y * y - 1)).toBeLessThan(1e-12);
   });
 
-  it("findNullclines(thin window) does not cut a branch at an equilibrium it only passes near", () => {
-    // x' = x(1 - x - 0.2y): the branch y = 5(1 - x) runs 5e-6 of the window above the equilibrium (0, 0),
+  it("findNullclines(thin window) does not cut a curve at an equilibrium it only passes near", () => {
+    // x' = x(1 - x - 0.2y): the curve y = 5(1 - x) runs 5e-6 of the window above the equilibrium (0, 0),
     // well inside one grid cell, but it does not go through it (elementary algebra, common practice)
     const model = modelOf({ x: "x*(1 - x - 0.2*y)", y: "y*(x - 0.4)" }, { x: [0, 1e-3], y: [0, 1e6] });
     const [nx] = findNullclines(model, findEquilibria(model));

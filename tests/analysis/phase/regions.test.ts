@@ -1,18 +1,13 @@
 import { describe, expect, it } from "vitest";
-import { readFileSync } from "node:fs";
 import { prepareModel } from "../../../src/pipeline.js";
 import type { Model } from "../../../src/model/types.js";
 import type { Diagnostic } from "../../../src/diagnostics/issue.js";
 import { findEquilibria } from "../../../src/analysis/phase/equilibria.js";
 import { findNullclines } from "../../../src/analysis/phase/nullclines.js";
-import { findRegions, DEFAULT_REGION_OPTIONS, type RegionResult } from "../../../src/analysis/phase/regions.js";
-
-function modelOf(equations: Record<string, string>, window: Record<string, [number, number]>): Model {
-  const states = Object.entries(window).map(([name, [min, max]]) => ({ name, min, max }));
-  const prepared = prepareModel(JSON.stringify({ keel: 1, id: "test", title: "test", time: { unit: "day" }, states, equations, window }));
-  if (!prepared.ok) throw new Error(prepared.issues.map((i) => i.message).join("; "));
-  return prepared.value.model;
-}
+import { findRegions, type RegionResult } from "../../../src/analysis/phase/regions.js";
+import { DEFAULT_REGION_OPTIONS } from "../../../src/analysis/constants.js";
+import { EXAMPLE_IDS, exampleField, exampleSpecText } from "../../fixtures/examples.js";
+import { modelOf } from "../../fixtures/models.js";
 
 function regionsOf(model: Model, diagnostics: Diagnostic[] = []): RegionResult[] {
   return findRegions(model, findNullclines(model, findEquilibria(model)), DEFAULT_REGION_OPTIONS, diagnostics);
@@ -84,15 +79,16 @@ describe("findRegions", () => {
     expect(JSON.parse(JSON.stringify(regions))).toEqual(regions);
   });
 
-  it.each(["reservoir-competition", "grazer-forage"])("findRegions(%s) gives sample points whose signs match the model there", (id) => {
-    const prepared = prepareModel(readFileSync(new URL(`../../specs/${id}.json`, import.meta.url), "utf8"));
+  it.each(EXAMPLE_IDS)("findRegions(%s) gives sample points whose signs match the hand-written field there", (id) => {
+    const prepared = prepareModel(exampleSpecText(id));
     if (!prepared.ok) throw new Error("example spec does not load");
     const model = prepared.value.model;
     const found = regionsOf(model);
     expect(found.length).toBeGreaterThanOrEqual(4);
-    const f = new Float64Array(2);
+    const field = exampleField(id);
     for (const r of found) {
-      model.rhs(Float64Array.from(model.stateNames.map((n) => r.point[n])), f);
+      const [a, b] = model.stateNames;
+      const f = field(r.point[a], r.point[b]);
       expect(model.stateNames.map((n, i) => [n, sign(f[i])])).toEqual(Object.entries(r.signs));
       expect(r.clearance).toBeGreaterThan(0);
     }

@@ -1,7 +1,12 @@
 import {
-  correct, CORRECTOR_STEP_TOL, cross3, dot3, evaluate, scaledDistance, stepAlong, tangentAt,
+  correct, cross3, dot3, evaluate, stepAlong, tangentAt,
   type ContinuationSystem, type CurvePoint,
 } from "./system.js";
+import { scaledMaxDistance, segmentDistance } from "../../numeric/distance.js";
+import {
+  CLOSE_MIN_STEPS, CLOSE_MIN_TRAVEL_STEPS, CORRECTOR_STEP_TOL, EASY_ITERATIONS, GROW, HARD_ITERATIONS, MAX_CORRECTION, ON_BRANCH_MIN_TOL,
+  SHRINK, SWITCH_OFFSET, CORRECTOR_ITERATIONS,
+} from "../../constants.js";
 
 /** How a traced direction stopped. */
 export type BranchEnd =
@@ -15,7 +20,7 @@ export type BranchEnd =
   /** the step shrank below the minimum without a converged corrector */
   | "stalled";
 
-export interface TraceOptions {
+export interface StepOptions {
   /** First step, scaled arclength. */
   initialStep: number;
   /** Longest step, scaled arclength: bounds the spacing of the points a diagram draws. */
@@ -30,11 +35,7 @@ export interface TraceOptions {
   maxSteps: number;
 }
 
-export const DEFAULT_TRACE_OPTIONS: TraceOptions = {
-  initialStep: 0.005, maxStep: 0.02, minStep: 1e-9, maxAngle: 0.15, windowMargin: 0.25, maxSteps: 4000,
-};
-
-export interface TracedPoint {
+export interface BranchVertex {
   z: CurvePoint;
   /** Unit tangent (scaled), oriented along the branch's stored order. */
   t: Float64Array;
@@ -45,28 +46,15 @@ export interface TracedPoint {
   determinantScale: number;
 }
 
-export interface TracedBranch {
-  points: TracedPoint[];
+export interface ContinuedBranch {
+  points: BranchVertex[];
   /** Index of the seed in points. */
   seed: number;
   /** How the start and the end of points were reached. */
   ends: [BranchEnd, BranchEnd];
 }
 
-/** Newton iterations per corrector while tracing; more means the step was too long. */
-const TRACE_ITERATIONS = 8;
-/** Step grows by this factor after an easy corrector (at most this many iterations)... */
-const GROW = 1.5;
-const EASY_ITERATIONS = 2;
-/** ...and shrinks after a hard one (at least this many). */
-const SHRINK = 0.7;
-const HARD_ITERATIONS = 5;
-/** A corrector that moved further than this fraction of the step has likely jumped to another branch. */
-const MAX_CORRECTION = 0.3;
-/** A branch has closed when it returns within one step of its seed after at least this many steps... */
-const CLOSE_MIN_STEPS = 10;
-
-function tracedPoint(sys: ContinuationSystem, z: CurvePoint, t: Float64Array): TracedPoint {
+function branchVertex(sys: ContinuationSystem, z: CurvePoint, t: Float64Array): BranchVertex {
   evaluate(sys, z);
   const j = sys.j;
   const determinant = j[0] * j[3] - j[1] * j[2];
@@ -88,15 +76,15 @@ function clipToRange(sys: ContinuationSystem, a: CurvePoint, b: CurvePoint, boun
   const w = (bound - a[2]) / (b[2] - a[2]);
   const start = Float64Array.from([0, 1, 2].map((k) => a[k] + w * (b[k] - a[k])));
   start[2] = bound;
-  const c = correct(sys, start, [0, 0, 1], start, TRACE_ITERATIONS);
+  const c = correct(sys, start, [0, 0, 1], start, CORRECTOR_ITERATIONS);
   if (!c.converged) return null;
   c.z[2] = bound;
   return c.z;
 }
 
 /** Follows the branch from z0 along t0 until a stop condition; returns the points after z0. */
-function traceDirection(sys: ContinuationSystem, z0: CurvePoint, t0: Float64Array, options: TraceOptions): { points: TracedPoint[]; end: BranchEnd } {
-  const points: TracedPoint[] = [];
+function continueOneWay(sys: ContinuationSystem, z0: CurvePoint, t0: Float64Array, options: StepOptions): { points: BranchVertex[]; end: BranchEnd } {
+  const points: BranchVertex[] = [];
   const [lo, hi] = sys.range;
   let z = z0;
   let t = t0;
@@ -105,9 +93,9 @@ function traceDirection(sys: ContinuationSystem, z0: CurvePoint, t0: Float64Arra
   while (points.length < options.maxSteps) {
     if (h < options.minStep) return { points, end: "stalled" };
     const predicted = stepAlong(sys, z, t, h);
-    const c = correct(sys, predicted, t, predicted, TRACE_ITERATIONS);
+    const c = correct(sys, predicted, t, predicted, CORRECTOR_ITERATIONS);
     const tNew = c.converged ? tangentAt(sys, c.z, t) ?? t : null;
-    if (!c.converged || !tNew || scaledDistance(sys, c.z, predicted) > MAX_CORRECTION * h || Math.acos(Math.min(1, dot3(t, tNew))) > options.maxAngle) {
+    if (!c.converged || !tNew || scaledMaxDistance(c.z, predicted, sys.span) > MAX_CORRECTION * h || Math.acos(Math.min(1, dot3(t, tNew))) > options.maxAngle) {
       h /= 2;
       continue;
     }
@@ -117,14 +105,14 @@ function traceDirection(sys: ContinuationSystem, z0: CurvePoint, t0: Float64Arra
       const bound = zNew[2] < lo ? lo : hi;
       const clipped = clipToRange(sys, z, zNew, bound);
       // a seed sitting on the end of the range clips onto itself: nothing to add
-      if (clipped && scaledDistance(sys, clipped, z) <= CORRECTOR_STEP_TOL) return { points, end: "range" };
-      points.push(clipped ? tracedPoint(sys, clipped, tangentAt(sys, clipped, tNew) ?? tNew) : tracedPoint(sys, zNew, tNew));
+      if (clipped && scaledMaxDistance(clipped, z, sys.span) <= CORRECTOR_STEP_TOL) return { points, end: "range" };
+      points.push(clipped ? branchVertex(sys, clipped, tangentAt(sys, clipped, tNew) ?? tNew) : branchVertex(sys, zNew, tNew));
       return { points, end: "range" };
     }
-    points.push(tracedPoint(sys, zNew, tNew));
+    points.push(branchVertex(sys, zNew, tNew));
     if (outsideWindow(sys, zNew, options.windowMargin)) return { points, end: "window" };
-    if (points.length >= CLOSE_MIN_STEPS && travelled > 3 * h && scaledDistance(sys, zNew, z0) <= h && dot3(tNew, t0) > 0) {
-      points.push(tracedPoint(sys, Float64Array.from(z0), t0));
+    if (points.length >= CLOSE_MIN_STEPS && travelled > CLOSE_MIN_TRAVEL_STEPS * h && scaledMaxDistance(zNew, z0, sys.span) <= h && dot3(tNew, t0) > 0) {
+      points.push(branchVertex(sys, Float64Array.from(z0), t0));
       return { points, end: "closed" };
     }
     z = zNew;
@@ -136,42 +124,32 @@ function traceDirection(sys: ContinuationSystem, z0: CurvePoint, t0: Float64Arra
 }
 
 /** Traces the whole branch through seed, both ways; null when the seed has no unique tangent. */
-export function traceBranch(sys: ContinuationSystem, seed: CurvePoint, options: TraceOptions): TracedBranch | null {
+export function continueBranch(sys: ContinuationSystem, seed: CurvePoint, options: StepOptions): ContinuedBranch | null {
   const t0 = tangentAt(sys, seed, null);
   if (!t0) return null;
-  const first = tracedPoint(sys, Float64Array.from(seed), t0);
-  const forward = traceDirection(sys, first.z, t0, options);
+  const first = branchVertex(sys, Float64Array.from(seed), t0);
+  const forward = continueOneWay(sys, first.z, t0, options);
   if (forward.end === "closed") return { points: [first, ...forward.points], seed: 0, ends: ["closed", "closed"] };
-  const back = traceDirection(sys, first.z, Float64Array.from(t0, (v) => -v), options);
+  const back = continueOneWay(sys, first.z, Float64Array.from(t0, (v) => -v), options);
   const backward = back.points.reverse().map((p) => ({ ...p, t: Float64Array.from(p.t, (v) => -v + 0) }));
   return { points: [...backward, first, ...forward.points], seed: backward.length, ends: [back.end, forward.end] };
 }
 
-/** Scaled distance from z to the segment a–b. */
-function segmentDistance(sys: ContinuationSystem, z: ArrayLike<number>, a: ArrayLike<number>, b: ArrayLike<number>): number {
-  const s = sys.scale;
-  const d = [0, 1, 2].map((k) => (b[k] - a[k]) / s[k]);
-  const w = [0, 1, 2].map((k) => (z[k] - a[k]) / s[k]);
-  const len2 = dot3(d, d);
-  const f = len2 > 0 ? Math.min(1, Math.max(0, dot3(w, d) / len2)) : 0;
-  return Math.max(...[0, 1, 2].map((k) => Math.abs(w[k] - f * d[k])));
-}
-
 /** Index of the segment of branch nearest to z, and its distance. */
-export function nearestSegment(sys: ContinuationSystem, branch: TracedBranch, z: ArrayLike<number>): { index: number; distance: number } {
+export function nearestSegment(sys: ContinuationSystem, branch: ContinuedBranch, z: ArrayLike<number>): { index: number; distance: number } {
   let best = { index: -1, distance: Infinity };
   const pts = branch.points;
-  if (pts.length === 1) return { index: 0, distance: scaledDistance(sys, z, pts[0].z) };
+  if (pts.length === 1) return { index: 0, distance: scaledMaxDistance(z, pts[0].z, sys.span) };
   for (let k = 0; k + 1 < pts.length; k++) {
-    const d = segmentDistance(sys, z, pts[k].z, pts[k + 1].z);
+    const d = segmentDistance(z, pts[k].z, pts[k + 1].z, sys.span, "max").d;
     if (d < best.distance) best = { index: k, distance: d };
   }
   return best;
 }
 
 /** Distance a polygon of steps no longer than maxStep, turning at most maxAngle, keeps from its curve, with room. */
-export function onBranchTolerance(options: TraceOptions): number {
-  return Math.max(1e-6, (options.maxStep * options.maxAngle) / 2);
+export function onBranchTolerance(options: StepOptions): number {
+  return Math.max(ON_BRANCH_MIN_TOL, (options.maxStep * options.maxAngle) / 2);
 }
 
 /**
@@ -179,7 +157,7 @@ export function onBranchTolerance(options: TraceOptions): number {
  * the polygon tolerance of one of its segments, and, when t is given, heading along it (so that a
  * branch crossing this one at z is not mistaken for it).
  */
-export function liesOnBranch(sys: ContinuationSystem, branch: TracedBranch, z: ArrayLike<number>, t: ArrayLike<number> | null, options: TraceOptions): boolean {
+export function liesOnBranch(sys: ContinuationSystem, branch: ContinuedBranch, z: ArrayLike<number>, t: ArrayLike<number> | null, options: StepOptions): boolean {
   const near = nearestSegment(sys, branch, z);
   if (near.distance > onBranchTolerance(options)) return false;
   if (!t) return true;
@@ -187,8 +165,6 @@ export function liesOnBranch(sys: ContinuationSystem, branch: TracedBranch, z: A
   return Math.abs(dot3(t, along)) >= Math.cos(2 * options.maxAngle);
 }
 
-/** Offset (scaled) from a branch point at which the crossing branch is sought. */
-export const SWITCH_OFFSET = 1e-2;
 
 /**
  * A point on the other branch through the branch point z (where the rows of [J | f_p] are
@@ -209,8 +185,8 @@ export function switchBranch(sys: ContinuationSystem, z: CurvePoint, t: ArrayLik
   const found: CurvePoint[] = [];
   for (const sign of [1, -1]) {
     const anchor = stepAlong(sys, z, w, sign * SWITCH_OFFSET);
-    const c = correct(sys, anchor, w, anchor, 2 * TRACE_ITERATIONS);
-    if (c.converged && scaledDistance(sys, c.z, z) <= 3 * SWITCH_OFFSET) found.push(c.z);
+    const c = correct(sys, anchor, w, anchor, 2 * CORRECTOR_ITERATIONS);
+    if (c.converged && scaledMaxDistance(c.z, z, sys.span) <= 3 * SWITCH_OFFSET) found.push(c.z);
   }
   return found;
 }

@@ -1,16 +1,19 @@
 import type { Diagnostic } from "../../../diagnostics/issue.js";
-import { classifyEquilibrium, CLASSIFY_REL_TOL, type EquilibriumType, type StabilityResult } from "../../phase/stability.js";
-import type { TracedBranch, TracedPoint } from "./branch.js";
+import { classifyEquilibrium, type EquilibriumType, type StabilityResult } from "../../phase/stability.js";
+import { CLASSIFY_REL_TOL, SIDE_OFFSET } from "../../constants.js";
+import { spectralRadius } from "../../numeric/linear.js";
+import type { ContinuedBranch, BranchVertex } from "./branch.js";
 import { locateBetween, pointAlong } from "./locate.js";
 import { currentResidual, determinantAt, evaluate, jacobianRows, traceAt, type ContinuationSystem, type CurvePoint } from "./system.js";
 
 /**
  * Test functions along a branch and the events where they change sign between consecutive points:
- *   det J: a fold when the tangent's p-component turns there too, else a branch point;
+ *   det J: a saddle-node when the tangent's p-component turns there too, else a transcritical
+ *   candidate (special.ts keeps it only on a bound or where another branch crosses);
  *   trace J with det J > 0 on both sides: a Hopf point;
  *   x_k − bound, for each finite state bound: the branch crosses a bound of the feasible region.
  */
-export type EventKind = "fold" | "branch-point" | "hopf" | "bound";
+export type EventKind = "saddle-node" | "transcritical" | "hopf" | "boundary-crossing";
 
 export interface LocatedEvent {
   kind: EventKind;
@@ -25,12 +28,10 @@ export interface LocatedEvent {
   /** Equilibrium types just before and just after z along the branch. */
   before: EquilibriumType;
   after: EquilibriumType;
-  /** For "bound": the state index and the bound value it crosses. */
+  /** For "boundary-crossing": the state index and the bound value it crosses. */
   bound: { state: number; value: number } | null;
 }
 
-/** Along-branch offset (scaled arclength) at which the types on either side are read: far above the location error (1e-13), far below the spacing of distinct events. */
-const SIDE_OFFSET = 1e-5;
 
 interface Bracket {
   kind: EventKind;
@@ -66,12 +67,12 @@ function signChanges(values: number[]): SignChange[] {
  */
 const quiet = (value: number, scale: number) => (Math.abs(value) <= CLASSIFY_REL_TOL * scale ? 0 : value);
 
-function findBrackets(sys: ContinuationSystem, branch: TracedBranch): Bracket[] {
+function findBrackets(sys: ContinuationSystem, branch: ContinuedBranch): Bracket[] {
   const pts = branch.points;
   const brackets: Bracket[] = [];
   for (const change of signChanges(pts.map((p) => quiet(p.determinant, p.determinantScale)))) {
     const turning = pts[change.a].t[2] * pts[change.b].t[2] < 0;
-    brackets.push({ kind: turning ? "fold" : "branch-point", ...change, bound: null });
+    brackets.push({ kind: turning ? "saddle-node" : "transcritical", ...change, bound: null });
   }
   for (const change of signChanges(pts.map((p) => quiet(p.trace, p.traceScale)))) {
     if (pts[change.a].determinant > 0 && pts[change.b].determinant > 0) brackets.push({ kind: "hopf", ...change, bound: null });
@@ -79,14 +80,10 @@ function findBrackets(sys: ContinuationSystem, branch: TracedBranch): Bracket[] 
   sys.model.spec.states.forEach((state, k) => {
     for (const value of [state.min, state.max]) {
       if (!Number.isFinite(value)) continue;
-      for (const change of signChanges(pts.map((p) => p.z[k] - value))) brackets.push({ kind: "bound", ...change, bound: { state: k, value } });
+      for (const change of signChanges(pts.map((p) => p.z[k] - value))) brackets.push({ kind: "boundary-crossing", ...change, bound: { state: k, value } });
     }
   });
   return brackets;
-}
-
-function spectralRadius(s: StabilityResult): number {
-  return Math.max(...s.eigenvalues.map((e) => Math.hypot(e.re, e.im)));
 }
 
 /** The test function of a bracket, and a scale for it that a change of units leaves fair. */
@@ -94,16 +91,16 @@ function testFunction(sys: ContinuationSystem, bracket: Bracket): { g: (z: Curve
   if (bracket.kind === "hopf") {
     return {
       g: (z) => traceAt(sys, z),
-      scale: (z) => { const s = classifyEquilibrium(jacobianRows(sys, z)); const [[a], [, d]] = s.jacobian; return Math.max(Math.abs(a), Math.abs(d), spectralRadius(s)) || 1; },
+      scale: (z) => { const s = classifyEquilibrium(jacobianRows(sys, z)); const [[a], [, d]] = s.jacobian; return Math.max(Math.abs(a), Math.abs(d), spectralRadius(s.eigenvalues)) || 1; },
     };
   }
-  if (bracket.kind === "bound") {
+  if (bracket.kind === "boundary-crossing") {
     const { state, value } = bracket.bound!;
-    return { g: (z) => (z[state] - value) / sys.scale[state], scale: () => 1 };
+    return { g: (z) => (z[state] - value) / sys.span[state], scale: () => 1 };
   }
   return {
     g: (z) => determinantAt(sys, z),
-    scale: (z) => { const s = classifyEquilibrium(jacobianRows(sys, z)); const [[a, b], [c, d]] = s.jacobian; return Math.max(Math.abs(a * d), Math.abs(b * c), spectralRadius(s) ** 2) || 1; },
+    scale: (z) => { const s = classifyEquilibrium(jacobianRows(sys, z)); const [[a, b], [c, d]] = s.jacobian; return Math.max(Math.abs(a * d), Math.abs(b * c), spectralRadius(s.eigenvalues) ** 2) || 1; },
   };
 }
 
@@ -112,7 +109,7 @@ function typeAt(sys: ContinuationSystem, z: ArrayLike<number>): EquilibriumType 
 }
 
 /** Types on either side of z along t; falls back to the bracket's end points. */
-function sides(sys: ContinuationSystem, z: CurvePoint, t: Float64Array, a: TracedPoint, b: TracedPoint): [EquilibriumType, EquilibriumType] {
+function sides(sys: ContinuationSystem, z: CurvePoint, t: Float64Array, a: BranchVertex, b: BranchVertex): [EquilibriumType, EquilibriumType] {
   const chart = { z, t };
   const before = pointAlong(sys, chart, -SIDE_OFFSET);
   const after = pointAlong(sys, chart, SIDE_OFFSET);
@@ -120,7 +117,7 @@ function sides(sys: ContinuationSystem, z: CurvePoint, t: Float64Array, a: Trace
 }
 
 /** Every event of one branch, located (see locate.ts) and described. */
-export function locateEvents(sys: ContinuationSystem, branch: TracedBranch, branchIndex: number, diagnostics: Diagnostic[]): LocatedEvent[] {
+export function locateEvents(sys: ContinuationSystem, branch: ContinuedBranch, branchIndex: number, diagnostics: Diagnostic[]): LocatedEvent[] {
   const pts = branch.points;
   const events: LocatedEvent[] = [];
   for (const bracket of findBrackets(sys, branch)) {

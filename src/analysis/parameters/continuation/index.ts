@@ -1,44 +1,45 @@
 import type { Diagnostic } from "../../../diagnostics/issue.js";
-import { withParameters } from "../../../model/higher.js";
+import { withParameters } from "../../../model/parameters.js";
 import type { Model } from "../../../model/types.js";
-import { DEFAULT_EQUILIBRIUM_OPTIONS, findEquilibria, type EquilibriumOptions } from "../../phase/equilibria.js";
+import { findEquilibria, type EquilibriumOptions } from "../../phase/equilibria.js";
 import { classifyEquilibrium, type EquilibriumType } from "../../phase/stability.js";
-import { DEFAULT_TRACE_OPTIONS, liesOnBranch, switchBranch, traceBranch, type BranchEnd, type TraceOptions, type TracedBranch } from "./branch.js";
+import { liesOnBranch, switchBranch, continueBranch, type BranchEnd, type StepOptions, type ContinuedBranch } from "./branch.js";
 import { locateEvents, type LocatedEvent } from "./detect.js";
 import { buildSpecialPoints, type SpecialPointResult } from "./special.js";
+import { CONTINUATION_MAX_BRANCHES, CONTINUATION_SEED_VALUES, DEFAULT_EQUILIBRIUM_OPTIONS, DEFAULT_STEP_OPTIONS } from "../../constants.js";
 import { buildSystem, jacobianRows, tangentAt, type ContinuationSystem, type CurvePoint } from "./system.js";
 
 export type { SpecialPointResult, SpecialPointKind } from "./special.js";
-export type { BranchEnd, TraceOptions } from "./branch.js";
-export { firstLyapunovCoefficient, LYAPUNOV_REL_TOL, type LyapunovResult } from "./lyapunov.js";
+export type { BranchEnd, StepOptions } from "./branch.js";
+export { firstLyapunovCoefficient, type LyapunovResult } from "./lyapunov.js";
 
 /**
  * Branches of equilibria followed across a parameter range by pseudo-arclength continuation:
  *
  *   seeds (findEquilibria at the nominal value and at evenly spaced values across the range)
- *     → trace each seed's branch both ways (branch.ts), skipping seeds already on a branch
+ *     → continue each seed's branch both ways (branch.ts), skipping seeds already on a branch
  *     → test functions between consecutive points, located on the branch (detect.ts, locate.ts)
- *     → at a branch point no traced branch crosses, switch onto the crossing branch and trace it
+ *     → at a branch point no known branch crosses, switch onto the crossing branch and continue it
  *     → classify, merge duplicates, add l1 at Hopf points (special.ts, lyapunov.ts)
  */
 
 export interface ContinuationOptions {
   /** Evenly spaced parameter values (ends included) at which equilibria seed branches, besides the nominal value. */
   seedValues: number;
-  trace: TraceOptions;
+  steps: StepOptions;
   equilibria: EquilibriumOptions;
   /** At most this many branches are traced (a guard against a curve of equilibria). */
   maxBranches: number;
 }
 
 export const DEFAULT_CONTINUATION_OPTIONS: ContinuationOptions = {
-  seedValues: 5,
-  trace: DEFAULT_TRACE_OPTIONS,
+  seedValues: CONTINUATION_SEED_VALUES,
+  steps: DEFAULT_STEP_OPTIONS,
   equilibria: DEFAULT_EQUILIBRIUM_OPTIONS,
-  maxBranches: 40,
+  maxBranches: CONTINUATION_MAX_BRANCHES,
 };
 
-export interface BranchPointResult {
+export interface BranchVertexResult {
   /** Parameter value. */
   value: number;
   point: Record<string, number>;
@@ -55,7 +56,7 @@ export interface BranchResult {
   /** How each end of points was reached. */
   ends: [BranchEnd, BranchEnd];
   /** In order along the branch; at the seed the parameter increases along it. */
-  points: BranchPointResult[];
+  points: BranchVertexResult[];
 }
 
 export interface ContinuationResult {
@@ -90,12 +91,12 @@ function collectSeeds(model: Model, sys: ContinuationSystem, options: Continuati
   return seeds;
 }
 
-function onSomeBranch(sys: ContinuationSystem, branches: TracedBranch[], z: CurvePoint, trace: TraceOptions): boolean {
+function onSomeBranch(sys: ContinuationSystem, branches: ContinuedBranch[], z: CurvePoint, steps: StepOptions): boolean {
   const t = tangentAt(sys, z, null);
-  return branches.some((b) => liesOnBranch(sys, b, z, t, trace));
+  return branches.some((b) => liesOnBranch(sys, b, z, t, steps));
 }
 
-function describeBranch(sys: ContinuationSystem, branch: TracedBranch, index: number): BranchResult {
+function describeBranch(sys: ContinuationSystem, branch: ContinuedBranch, index: number): BranchResult {
   const names = sys.model.stateNames;
   const point = (z: CurvePoint) => Object.fromEntries(names.map((n, k) => [n, z[k] + 0]));
   const seed = branch.points[branch.seed].z;
@@ -130,11 +131,11 @@ export function continueEquilibria(
   if (model.dimension !== 2) throw new Error("continueEquilibria: planar models only");
   const opts: ContinuationOptions = { ...DEFAULT_CONTINUATION_OPTIONS, ...options };
   const sys = buildSystem(model, j, [range[0], range[1]]);
-  const branches: TracedBranch[] = [];
+  const branches: ContinuedBranch[] = [];
   const addBranch = (seed: CurvePoint): void => {
-    if (branches.length >= opts.maxBranches || onSomeBranch(sys, branches, seed, opts.trace)) return;
-    const traced = traceBranch(sys, seed, opts.trace);
-    if (traced) branches.push(traced);
+    if (branches.length >= opts.maxBranches || onSomeBranch(sys, branches, seed, opts.steps)) return;
+    const continued = continueBranch(sys, seed, opts.steps);
+    if (continued) branches.push(continued);
   };
   for (const seed of collectSeeds(model, sys, opts, diagnostics)) addBranch(seed);
   if (branches.length >= opts.maxBranches) {
@@ -145,8 +146,8 @@ export function continueEquilibria(
   for (let i = 0; i < branches.length; i++) {
     const found = locateEvents(sys, branches[i], i, diagnostics);
     for (const e of found) {
-      if (e.kind !== "branch-point") continue;
-      if (branches.some((b, k) => k !== i && liesOnBranch(sys, b, e.z, null, opts.trace))) continue;
+      if (e.kind !== "transcritical") continue;
+      if (branches.some((b, k) => k !== i && liesOnBranch(sys, b, e.z, null, opts.steps))) continue;
       for (const seed of switchBranch(sys, e.z, e.t)) addBranch(seed);
     }
     events.push(...found);
@@ -155,6 +156,6 @@ export function continueEquilibria(
     parameter,
     range: [range[0], range[1]],
     branches: branches.map((b, i) => describeBranch(sys, b, i)),
-    points: buildSpecialPoints(sys, branches, events, opts.trace, diagnostics),
+    points: buildSpecialPoints(sys, branches, events, opts.steps, diagnostics),
   };
 }

@@ -1,22 +1,12 @@
 import { correct, dot3, stepAlong, tangentAt, type ContinuationSystem, type CurvePoint } from "./system.js";
-import type { TracedPoint } from "./branch.js";
+import type { BranchVertex } from "./branch.js";
+import { LOCATE_ITERATIONS, LOCATE_MAX_ITERATIONS, LOCATE_TOL, LOCATE_ULPS } from "../../constants.js";
 
 /** A chart of the branch near a point: the branch parametrised by scaled arclength along t from z. */
 export interface Chart {
   z: CurvePoint;
   t: Float64Array;
 }
-
-/** Newton iterations per corrector while locating; near a branch point convergence is slow. */
-const LOCATE_ITERATIONS = 30;
-/**
- * Bracket width (scaled arclength) at which location stops: 1e-13 of the range width in p, so
- * 1e-10 relative wherever |p| is above 1e-3 of the range width, with three digits to spare.
- */
-export const LOCATE_TOL = 1e-13;
-const LOCATE_MAX_ITERATIONS = 200;
-/** Rounding limits how finely s can be resolved: a few ulps of the largest scaled coordinate. */
-const ULPS = 8 * Number.EPSILON;
 
 /** The branch point at chart coordinate s: corrected within the hyperplane t · (u − u_chart) = s. */
 export function pointAlong(sys: ContinuationSystem, chart: Chart, s: number, guess: ArrayLike<number> | null = null): CurvePoint | null {
@@ -40,15 +30,15 @@ export interface Located {
  */
 export function locateBetween(
   sys: ContinuationSystem,
-  a: TracedPoint,
-  b: TracedPoint,
+  a: BranchVertex,
+  b: BranchVertex,
   test: (z: CurvePoint) => number,
 ): Located | null {
   const chart: Chart = { z: a.z, t: a.t };
-  const sEnd = dot3(a.t, [0, 1, 2].map((k) => (b.z[k] - a.z[k]) / sys.scale[k]));
+  const sEnd = dot3(a.t, [0, 1, 2].map((k) => (b.z[k] - a.z[k]) / sys.span[k]));
   if (!(sEnd > 0)) return null;
-  const size = Math.max(...[0, 1, 2].map((k) => Math.abs(a.z[k] / sys.scale[k])), 1);
-  const tol = Math.max(LOCATE_TOL, ULPS * size);
+  const size = Math.max(...[0, 1, 2].map((k) => Math.abs(a.z[k] / sys.span[k])), 1);
+  const tol = Math.max(LOCATE_TOL, LOCATE_ULPS * size);
   let lo = { s: 0, z: a.z, g: test(a.z) };
   let hi = { s: sEnd, z: b.z, g: test(b.z) };
   if (lo.g === 0) return finish(sys, lo.z, a.t, 0);

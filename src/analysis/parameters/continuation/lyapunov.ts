@@ -13,6 +13,9 @@
  * l1 < 0: supercritical (a stable cycle is born); l1 > 0: subcritical.
  */
 
+import { LYAPUNOV_REL_TOL } from "../../constants.js";
+import { solve2 as solveReal2 } from "../../numeric/linear.js";
+
 type Cx = [number, number];
 type CVec = [Cx, Cx];
 
@@ -28,12 +31,6 @@ const real = (x: number): Cx => [x, 0];
 const inner = (p: CVec, v: CVec): Cx => add(mul(conj(p[0]), v[0]), mul(conj(p[1]), v[1]));
 const vnorm = (v: CVec) => Math.hypot(v[0][0], v[0][1], v[1][0], v[1][1]);
 
-/**
- * l1 is called zero when it is this small against the sum of the magnitudes of its three terms:
- * the derivatives are exact symbolic values at a point located to ~1e-13, so cancellation noise
- * stays near 1e-12 of the terms; 1e-8 keeps four digits of margin (as CLASSIFY_REL_TOL in stability.ts).
- */
-export const LYAPUNOV_REL_TOL = 1e-8;
 
 export interface LyapunovResult {
   /** First Lyapunov coefficient; null when the Jacobian has no imaginary pair. */
@@ -60,7 +57,7 @@ function multilinear3(t: ArrayLike<number>, u: CVec, v: CVec, w: CVec): CVec {
 }
 
 /** Solves M x = r for a complex 2 × 2 M (row-major) by Cramer's rule. */
-function solve2(m: [Cx, Cx, Cx, Cx], r: CVec): CVec {
+function solveComplex2(m: [Cx, Cx, Cx, Cx], r: CVec): CVec {
   const det = add(mul(m[0], m[3]), scaleCx(mul(m[1], m[2]), -1));
   return [
     div(add(mul(m[3], r[0]), scaleCx(mul(m[1], r[1]), -1)), det),
@@ -103,10 +100,12 @@ export function firstLyapunovCoefficient(jacobian: ArrayLike<number>, second: Ar
   const bqqBar = multilinear2(second, q, qBar);
   const r0 = bqqBar[0][0];
   const r1 = bqqBar[1][0];
-  const h11: CVec = [real(-(d * r0 - b * r1) / det), real(-(-c * r0 + a * r1) / det)];
+  // det > ω² > 0 here, so the solve exists
+  const [s0, s1] = solveReal2(a, b, c, d, r0, r1)!;
+  const h11: CVec = [real(-s0), real(-s1)];
   const mixed = inner(p, multilinear2(second, q, h11))[0] * 2;
   const twoIOmega: Cx = [0, 2 * omega];
-  const h20 = solve2([add(twoIOmega, real(-a)), real(-b), real(-c), add(twoIOmega, real(-d))], multilinear2(second, q, q));
+  const h20 = solveComplex2([add(twoIOmega, real(-a)), real(-b), real(-c), add(twoIOmega, real(-d))], multilinear2(second, q, q));
   const resonant = inner(p, multilinear2(second, qBar, h20))[0];
   const value = (cubic + mixed + resonant) / (2 * omega);
   const size = (Math.abs(cubic) + Math.abs(mixed) + Math.abs(resonant)) / (2 * omega);

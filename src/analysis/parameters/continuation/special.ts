@@ -1,12 +1,14 @@
 import type { Diagnostic } from "../../../diagnostics/issue.js";
 import { compileHigherDerivatives, type HigherDerivatives } from "../../../model/higher.js";
-import { ROOT_RESIDUAL_TOL } from "../../phase/equilibria.js";
-import { classifyEquilibrium, CLASSIFY_REL_TOL, type Complex, type EquilibriumType } from "../../phase/stability.js";
-import { liesOnBranch, type TraceOptions, type TracedBranch } from "./branch.js";
+import { classifyEquilibrium, type Complex, type EquilibriumType } from "../../phase/stability.js";
+import {
+  ACROSS_BOUND_TOL, BOUND_CONTACT_TOL, CROSSING_NEIGHBOURHOOD, DUPLICATE_TOL, LOCATE_TOL, ROOT_RESIDUAL_TOL, TEST_FUNCTION_TOL,
+} from "../../constants.js";
+import { liesOnBranch, type StepOptions, type ContinuedBranch } from "./branch.js";
 import type { LocatedEvent } from "./detect.js";
-import { LOCATE_TOL } from "./locate.js";
 import { firstLyapunovCoefficient } from "./lyapunov.js";
-import { jacobianRows, scaledDistance, type ContinuationSystem, type CurvePoint } from "./system.js";
+import { jacobianRows, type ContinuationSystem, type CurvePoint } from "./system.js";
+import { scaledMaxDistance } from "../../numeric/distance.js";
 
 export type SpecialPointKind = "saddle-node" | "transcritical" | "hopf" | "boundary-crossing";
 
@@ -38,27 +40,6 @@ export interface SpecialPointResult {
   bound: { state: string; value: number } | null;
 }
 
-/** A point within this fraction of the window width of a state bound lies on it (covers location near a branch point, ~1e-8). */
-export const BOUND_CONTACT_TOL = 1e-7;
-/**
- * Two located points are one threshold when they agree to this (scaled) in every coordinate. On
- * a branch crossing another, the corrector stops converging near the crossing, so what that
- * branch locates there is good to ~1e-6 only; the branch lying on the bound locates it exactly.
- */
-export const DUPLICATE_TOL = 1e-4;
-/** A located point passes verification when its test function is this small against its scale (as CLASSIFY_REL_TOL). */
-export const TEST_FUNCTION_TOL = CLASSIFY_REL_TOL;
-/** Neighbourhood (scaled) in which a crossing branch must reach both sides of the threshold value. */
-const CROSSING_NEIGHBOURHOOD = 0.05;
-
-/**
- * A branch point is across a bound when the vanishing eigenvalue belongs to the state at the
- * bound (J_kk ≈ 0: that population's growth rate there, its invasion rate). The point is located
- * to ~1e-6 at worst (DUPLICATE_TOL), so J_kk is then ~1e-6 of the Jacobian's size; a rate that is
- * not at zero is of the order of it.
- */
-const ACROSS_BOUND_TOL = 1e-4;
-
 function boundAt(sys: ContinuationSystem, z: CurvePoint, tol: number, pred: (k: number) => boolean = () => true): { state: number; value: number } | null {
   const states = sys.model.spec.states;
   for (let k = 0; k < states.length; k++) {
@@ -77,14 +58,14 @@ function criticalBoundAt(sys: ContinuationSystem, z: CurvePoint): { state: numbe
 }
 
 /** Another branch passes through z and reaches parameter values on both sides of z's near it. */
-function crossedByAnother(sys: ContinuationSystem, branches: TracedBranch[], own: number, z: CurvePoint, trace: TraceOptions): number | null {
+function crossedByAnother(sys: ContinuationSystem, branches: ContinuedBranch[], own: number, z: CurvePoint, steps: StepOptions): number | null {
   for (let k = 0; k < branches.length; k++) {
-    if (k === own || !liesOnBranch(sys, branches[k], z, null, trace)) continue;
+    if (k === own || !liesOnBranch(sys, branches[k], z, null, steps)) continue;
     let below = false;
     let above = false;
     for (const p of branches[k].points) {
-      if (scaledDistance(sys, p.z, z) > CROSSING_NEIGHBOURHOOD) continue;
-      const dp = (p.z[2] - z[2]) / sys.scale[2];
+      if (scaledMaxDistance(p.z, z, sys.span) > CROSSING_NEIGHBOURHOOD) continue;
+      const dp = (p.z[2] - z[2]) / sys.span[2];
       if (dp < -LOCATE_TOL) below = true;
       if (dp > LOCATE_TOL) above = true;
     }
@@ -101,15 +82,15 @@ interface Candidate {
   exactlyOnBound: boolean;
 }
 
-function classify(sys: ContinuationSystem, branches: TracedBranch[], event: LocatedEvent, trace: TraceOptions, diagnostics: Diagnostic[]): Candidate | null {
+function classify(sys: ContinuationSystem, branches: ContinuedBranch[], event: LocatedEvent, steps: StepOptions, diagnostics: Diagnostic[]): Candidate | null {
   const exactlyOnBound = boundAt(sys, event.z, 0) !== null;
   switch (event.kind) {
-    case "fold": return { event, kind: "saddle-node", bound: null, exactlyOnBound };
+    case "saddle-node": return { event, kind: "saddle-node", bound: null, exactlyOnBound };
     case "hopf": return { event, kind: "hopf", bound: null, exactlyOnBound };
-    case "bound": return { event, kind: "boundary-crossing", bound: event.bound, exactlyOnBound };
-    case "branch-point": {
+    case "boundary-crossing": return { event, kind: "boundary-crossing", bound: event.bound, exactlyOnBound };
+    case "transcritical": {
       const bound = criticalBoundAt(sys, event.z);
-      if (bound || crossedByAnother(sys, branches, event.branch, event.z, trace) !== null) return { event, kind: "transcritical", bound, exactlyOnBound };
+      if (bound || crossedByAnother(sys, branches, event.branch, event.z, steps) !== null) return { event, kind: "transcritical", bound, exactlyOnBound };
       const name = sys.model.parameterNames[sys.parameterIndex];
       diagnostics.push({
         severity: "warning", stage: "continuation",
@@ -122,7 +103,7 @@ function classify(sys: ContinuationSystem, branches: TracedBranch[], event: Loca
 
 function feasible(sys: ContinuationSystem, z: CurvePoint): boolean {
   const [lo, hi] = sys.range;
-  const slack = LOCATE_TOL * sys.scale[2];
+  const slack = LOCATE_TOL * sys.span[2];
   if (!(z[2] >= lo - slack && z[2] <= hi + slack)) return false;
   return sys.model.spec.states.every((s, k) => {
     const tol = BOUND_CONTACT_TOL * sys.box.width[k];
@@ -143,7 +124,7 @@ function better(a: Candidate, b: Candidate): boolean {
 function group(sys: ContinuationSystem, candidates: Candidate[]): Candidate[][] {
   const groups: Candidate[][] = [];
   for (const c of candidates) {
-    const home = groups.find((g) => g.some((d) => mergeable(c.kind, d.kind) && scaledDistance(sys, c.event.z, d.event.z) <= DUPLICATE_TOL));
+    const home = groups.find((g) => g.some((d) => mergeable(c.kind, d.kind) && scaledMaxDistance(c.event.z, d.event.z, sys.span) <= DUPLICATE_TOL));
     if (home) home.push(c);
     else groups.push([c]);
   }
@@ -158,16 +139,16 @@ function group(sys: ContinuationSystem, candidates: Candidate[]): Candidate[][] 
  */
 export function buildSpecialPoints(
   sys: ContinuationSystem,
-  branches: TracedBranch[],
+  branches: ContinuedBranch[],
   events: LocatedEvent[],
-  trace: TraceOptions,
+  steps: StepOptions,
   diagnostics: Diagnostic[],
 ): SpecialPointResult[] {
   const model = sys.model;
   const parameter = model.parameterNames[sys.parameterIndex];
   const candidates = events
     .filter((e) => feasible(sys, e.z))
-    .map((e) => classify(sys, branches, e, trace, diagnostics))
+    .map((e) => classify(sys, branches, e, steps, diagnostics))
     .filter((c): c is Candidate => c !== null);
   let higher: HigherDerivatives | null = null;
   const results = group(sys, candidates).map((members) => {

@@ -1,11 +1,13 @@
 import type { Model, ParametricRhsFunction } from "../../../model/types.js";
 import { compileParameterDerivative } from "../../../model/higher.js";
 import { componentScales, windowOf, type Box } from "../../numeric/window.js";
+import { solveSmall } from "../../numeric/linear.js";
+import { CORRECTOR_MAX_JUMP, CORRECTOR_STEP_TOL, RANK_TOL, TANGENT_P_ZERO_TOL } from "../../constants.js";
 
 /**
  * The curve F(x, p) = 0 in (x0, x1, p) space. Points are kept in the model's own units (so a seed
  * on an axis keeps its exact 0); steps, tangents and distances are measured in scaled coordinates
- * u = z / scale, with the states scaled by the window widths and p by the range width, so that one
+ * u = z / span, with the states scaled by the window widths and p by the range width, so that one
  * step length and one angle mean the same in every model.
  */
 export interface ContinuationSystem {
@@ -13,8 +15,8 @@ export interface ContinuationSystem {
   parameterIndex: number;
   range: [number, number];
   box: Box;
-  /** Window widths, then the range width. */
-  scale: Float64Array;
+  /** Unit of each scaled coordinate: the window widths, then the range width. */
+  span: Float64Array;
   /** Size of each component of f over the window at the nominal values (for residuals). */
   fScale: Float64Array;
   dfdp: ParametricRhsFunction;
@@ -31,19 +33,12 @@ export interface ContinuationSystem {
 /** A point on the curve: the two states, then the parameter. */
 export type CurvePoint = Float64Array;
 
-/** Corrector stops when its scaled Newton step is this small: quadratic convergence leaves ~1e-22. */
-export const CORRECTOR_STEP_TOL = 1e-11;
-/** A corrector step longer than this (scaled) has left the basin of the branch being followed. */
-const CORRECTOR_MAX_JUMP = 0.5;
-/** Rows of [J | f_p] this close to parallel (|r0 × r1| / (|r0||r1|)) leave no unique tangent. */
-export const RANK_TOL = 1e-10;
-
 export function buildSystem(model: Model, parameterIndex: number, range: [number, number]): ContinuationSystem {
   const box = windowOf(model);
   const params = Float64Array.from(model.parameterValues);
-  const scale = Float64Array.from([...box.width, range[1] - range[0]]);
+  const span = Float64Array.from([...box.width, range[1] - range[0]]);
   const sys: ContinuationSystem = {
-    model, parameterIndex, range, box, scale,
+    model, parameterIndex, range, box, span,
     fScale: new Float64Array(2),
     dfdp: compileParameterDerivative(model, parameterIndex).evaluate,
     params, y: new Float64Array(2), f: new Float64Array(2), j: new Float64Array(4), fp: new Float64Array(2),
@@ -62,7 +57,7 @@ export function evaluate(sys: ContinuationSystem, z: ArrayLike<number>): void {
   sys.model.rhsParametric(sys.y, sys.params, sys.f);
   sys.model.jacobianParametric(sys.y, sys.params, sys.j);
   sys.dfdp(sys.y, sys.params, sys.fp);
-  const s = sys.scale;
+  const s = sys.span;
   for (let i = 0; i < 2; i++) {
     sys.a[3 * i] = sys.j[2 * i] * s[0];
     sys.a[3 * i + 1] = sys.j[2 * i + 1] * s[1];
@@ -96,13 +91,6 @@ export function jacobianRows(sys: ContinuationSystem, z: ArrayLike<number>): num
   return [[sys.j[0], sys.j[1]], [sys.j[2], sys.j[3]]];
 }
 
-/** Scaled distance max_k |z_k − w_k| / scale_k. */
-export function scaledDistance(sys: ContinuationSystem, z: ArrayLike<number>, w: ArrayLike<number>): number {
-  let d = 0;
-  for (let k = 0; k < 3; k++) d = Math.max(d, Math.abs(z[k] - w[k]) / sys.scale[k]);
-  return d;
-}
-
 export function dot3(a: ArrayLike<number>, b: ArrayLike<number>): number {
   return a[0] * b[0] + a[1] * b[1] + a[2] * b[2];
 }
@@ -111,9 +99,9 @@ export function cross3(a: ArrayLike<number>, b: ArrayLike<number>): Float64Array
   return Float64Array.from([a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0]]);
 }
 
-/** z + h · scale ∘ t: a step of scaled length h along the scaled direction t. */
+/** z + h · span ∘ t: a step of scaled length h along the scaled direction t. */
 export function stepAlong(sys: ContinuationSystem, z: ArrayLike<number>, t: ArrayLike<number>, h: number): CurvePoint {
-  return Float64Array.from([0, 1, 2].map((k) => z[k] + h * sys.scale[k] * t[k]));
+  return Float64Array.from([0, 1, 2].map((k) => z[k] + h * sys.span[k] * t[k]));
 }
 
 /**
@@ -133,7 +121,7 @@ export function tangentAt(sys: ContinuationSystem, z: ArrayLike<number>, orient:
   for (let k = 0; k < 3; k++) t[k] /= norm;
   let sign: number;
   if (orient) sign = dot3(t, orient) < 0 ? -1 : 1;
-  else if (Math.abs(t[2]) > 1e-12) sign = Math.sign(t[2]);
+  else if (Math.abs(t[2]) > TANGENT_P_ZERO_TOL) sign = Math.sign(t[2]);
   else {
     let lead = 0;
     for (let k = 1; k < 3; k++) if (Math.abs(t[k]) > Math.abs(t[lead])) lead = k;
@@ -141,28 +129,6 @@ export function tangentAt(sys: ContinuationSystem, z: ArrayLike<number>, orient:
   }
   for (let k = 0; k < 3; k++) t[k] = sign * t[k] + 0;
   return t;
-}
-
-/** Solves the 3 × 3 system m x = r (row-major m) by Gaussian elimination with partial pivoting. */
-function solve3(m: number[], r: number[]): number[] | null {
-  const a = [m.slice(0, 3).concat(r[0]), m.slice(3, 6).concat(r[1]), m.slice(6, 9).concat(r[2])];
-  for (let c = 0; c < 3; c++) {
-    let piv = c;
-    for (let i = c + 1; i < 3; i++) if (Math.abs(a[i][c]) > Math.abs(a[piv][c])) piv = i;
-    if (!(Math.abs(a[piv][c]) > 0) || !Number.isFinite(a[piv][c])) return null;
-    [a[c], a[piv]] = [a[piv], a[c]];
-    for (let i = c + 1; i < 3; i++) {
-      const factor = a[i][c] / a[c][c];
-      for (let k = c; k < 4; k++) a[i][k] -= factor * a[c][k];
-    }
-  }
-  const x = [0, 0, 0];
-  for (let i = 2; i >= 0; i--) {
-    let s = a[i][3];
-    for (let k = i + 1; k < 3; k++) s -= a[i][k] * x[k];
-    x[i] = s / a[i][i];
-  }
-  return x.every(Number.isFinite) ? x : null;
 }
 
 export interface Correction {
@@ -186,14 +152,14 @@ export function correct(
   maxIterations: number,
 ): Correction {
   const z = Float64Array.from(start);
-  const s = sys.scale;
+  const s = sys.span;
   for (let it = 1; it <= maxIterations; it++) {
     evaluate(sys, z);
     const g = normal[0] * (z[0] - anchor[0]) / s[0] + normal[1] * (z[1] - anchor[1]) / s[1] + normal[2] * (z[2] - anchor[2]) / s[2];
     // exactly on the curve and the hyperplane: nothing to correct, even where the matrix is singular
     if (sys.f[0] === 0 && sys.f[1] === 0 && g === 0) return { z, iterations: it, converged: true, residual: 0 };
     const m = [...sys.a, normal[0], normal[1], normal[2]];
-    const dz = solve3(m, [-sys.f[0], -sys.f[1], -g]);
+    const dz = solveSmall(m, [-sys.f[0], -sys.f[1], -g]);
     if (!dz) break;
     const size = Math.max(Math.abs(dz[0]), Math.abs(dz[1]), Math.abs(dz[2]));
     if (size > CORRECTOR_MAX_JUMP) break;

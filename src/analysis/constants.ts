@@ -1,0 +1,420 @@
+/**
+ * Every default and tolerance of analysis/, each with the reason for its value. Modules import
+ * their numbers from here; the dossier's methods section and `settings` in results.json restate
+ * them from here. "Scaled" means window-scaled: each state divided by its window width.
+ *
+ * Sections: equilibria · classification · nullclines · regions and field · integration ·
+ * flow and fates · capture regions · cycles · separatrices · basins · continuation ·
+ * invasion · assumptions · parameters & checks (outcomes, studies, maps, claims).
+ */
+import type { EquilibriumOptions } from "./phase/equilibria.js";
+import type { NullclineOptions } from "./phase/nullclines.js";
+import type { RegionOptions } from "./phase/regions.js";
+import type { DirectionFieldOptions } from "./phase/field.js";
+import type { TrajectoryOptions } from "./flow/trajectories.js";
+import type { BasinOptions } from "./basins/index.js";
+import type { StepOptions } from "./parameters/continuation/branch.js";
+import { DEFAULT_BASIN_COARSE, DEFAULT_BASIN_RESOLUTION } from "../spec/defaults.js";
+
+export { DEFAULT_BASIN_COARSE, DEFAULT_BASIN_RESOLUTION, DEFAULT_CLAIM_CONDITION_SAMPLES, DEFAULT_CLAIM_NEAR } from "../spec/defaults.js";
+
+// ── equilibria ──────────────────────────────────────────────────────────────────────────────
+
+/** Interior multistart grid (16 × 16 plus cell centres) and samples per edge for the 1-D boundary searches. */
+export const EQUILIBRIUM_GRID_SIZE = 16;
+export const EQUILIBRIUM_EDGE_SAMPLES = 400;
+export const DEFAULT_EQUILIBRIUM_OPTIONS: EquilibriumOptions = { gridSize: EQUILIBRIUM_GRID_SIZE, edgeSamples: EQUILIBRIUM_EDGE_SAMPLES };
+/** Accept a root when every residual, relative to that component's scale over the window, is below this. */
+export const ROOT_RESIDUAL_TOL = 1e-9;
+/** Two roots are one when they differ by less than this fraction of the window in every state. */
+export const DEDUP_REL_TOL = 1e-6;
+/** A root may lie this fraction of the window outside it and still count (then it is clipped). */
+export const WINDOW_SLACK = 1e-9;
+/** A coordinate this close to a bound (fraction of the window) is put exactly on it, if the residual stays small. */
+export const SNAP_REL_TOL = 1e-10;
+/** An edge is invariant for a state when its own derivative there stays below this fraction of its scale. */
+export const INVARIANT_EDGE_TOL = 1e-13;
+/** Newton may wander this far outside the window (fraction of its width) before the start is dropped. */
+export const NEWTON_ROAM = 0.5;
+/** Damped Newton from a grid start converges in tens of steps; the rest is room near tangencies. */
+export const NEWTON_MAX_ITERATIONS = 80;
+/** Backtracking halves the step down to this factor (12 halvings) before the start is given up. */
+export const NEWTON_MIN_DAMPING = 1 / 4096;
+/** Armijo sufficient decrease of the scaled residual per unit damping (common practice: 1e-4). */
+export const NEWTON_SUFFICIENT_DECREASE = 1e-4;
+/** Below this fraction of ROOT_RESIDUAL_TOL the residual is rounding noise: a step that does not raise it is accepted. */
+export const POLISH_RESIDUAL_FRACTION = 1e-3;
+/** A Newton step shorter than this (scaled) is a few ulps: the root is at full precision. */
+export const NEWTON_STEP_TOL = 1e-15;
+/** Converged iterations kept polishing before stopping: the second confirms the first gained nothing. */
+export const NEWTON_POLISH_STALLS = 2;
+/** Beyond this count we report a suspected continuum of equilibria instead of listing more. */
+export const MAX_EQUILIBRIA = 50;
+/** Bisection of a sign change along an edge: 200 halvings exceed the 2^-1074 range of doubles, so adjacency stops it first. */
+export const EDGE_BISECTION_MAX_ITERATIONS = 200;
+/** Intervals per side of the grid on which the component scales max |f_i| are sampled (25 × 25 nodes). */
+export const COMPONENT_SCALE_INTERVALS = 24;
+
+// ── classification ──────────────────────────────────────────────────────────────────────────
+
+/**
+ * Relative tolerance for calling trace, determinant or discriminant zero, against a scale for
+ * each that a change of units (J → D J D⁻¹, D diagonal) leaves unchanged: the spectral radius ρ,
+ * and the sizes of the terms that cancel (|a|, |d| for the trace; |ad|, |bc| for the determinant
+ * and the discriminant). Entries are evaluated at a point polished to ~1e-13 relative, so
+ * cancellation noise stays near 1e-12; 1e-8 leaves four digits of margin and sends a genuinely
+ * borderline case to "non-hyperbolic" (or "center") rather than guessing a side.
+ */
+export const CLASSIFY_REL_TOL = 1e-8;
+/** Eigenvector sign convention: a later component leads only when larger by more than rounding (relative to the norm). */
+export const EIGENVECTOR_LEAD_TOL = 1e-14;
+
+// ── nullclines ──────────────────────────────────────────────────────────────────────────────
+
+/** Grid nodes across the window per state, both edges included: about 1/160 of the window per cell. */
+export const DEFAULT_NULLCLINE_OPTIONS: NullclineOptions = { nx: 161, ny: 161 };
+/**
+ * Every vertex has |f_i| ≤ this × (max |f_i| over the grid). Traced vertices are bracketed to
+ * adjacent doubles (rounding level, far below this); break points are equilibria, which are
+ * accepted at ROOT_RESIDUAL_TOL, so the bound cannot be tighter than that.
+ */
+export const NULLCLINE_RESIDUAL_TOL = ROOT_RESIDUAL_TOL;
+/** f_i vanishes identically on a line when every finite sample on it is this small (relative to its scale), as for invariant edges. */
+export const VANISHING_LINE_TOL = INVARIANT_EDGE_TOL;
+/**
+ * An equilibrium lies on a nullcline curve when its distance to the nearest chord is below what the curve
+ * can bend away from that chord: SAGITTA_SAFETY × (chord length × turning angle at its ends) / 8,
+ * the sagitta of a circular arc, with a floor of MERGE_DISTANCE, and never beyond this many grid
+ * cells (window-scaled): curves closer together than that are not resolved by the grid anyway.
+ */
+export const EQUILIBRIUM_ON_CURVE_CELLS = 0.5;
+/** Margin on the arc estimate, for curvature that changes within one chord. */
+export const SAGITTA_SAFETY = 4;
+/** The other component counts as zero at a vertex when below this fraction of its scale. */
+export const DIRECTION_ZERO_TOL = 1e-12;
+/**
+ * Vertices this close (window-scaled) to a break point merge into it: 100 × the position error an
+ * equilibrium accepted at ROOT_RESIDUAL_TOL can carry, so no vertex beside it has a rounding-noise sign.
+ */
+export const MERGE_DISTANCE = 1e-7;
+/** A point this close (window-scaled) to a vanishing line is on it: the deflated value then comes from the derivative. */
+export const ON_LINE_TOL = 1e-12;
+/** Where two vanishing lines cross, the deflated value is read this far (window-scaled) inside the window. */
+export const CORNER_NUDGE = 1e-6;
+/** Halvings of a grid edge: 2^-80 of a cell is below one ulp, so the bracket has collapsed well before. */
+export const NULLCLINE_BISECTION_STEPS = 80;
+/** Sign changes of the other component are located to 2^-50 of a segment. */
+export const SIGN_BISECTION_STEPS = 50;
+/** A located sign change is a zero when |f_j| there is below this fraction of its scale (bisection leaves rounding level); otherwise it is a jump. */
+export const SIGN_CHANGE_ZERO_TOL = 1e-8;
+/** Newton from within a cell of the curve converges in a handful of steps; the rest is room near tangencies. */
+export const PROJECTION_STEPS = 30;
+/** A Newton step shorter than this (window-scaled) is a few ulps: the projection has converged. */
+export const PROJECTION_STEP_TOL = 1e-15;
+
+// ── regions and direction field ─────────────────────────────────────────────────────────────
+
+/** Cells across the window per state: fine enough that a region one percent wide holds a checkable point. */
+export const DEFAULT_REGION_OPTIONS: RegionOptions = { nx: 160, ny: 160 };
+/**
+ * Components covering less than this fraction of the window are dropped (and counted in a
+ * diagnostic): at the default grid that is under 26 cells, too thin to hold a checkable point,
+ * and most such slivers are cells the grid splits off where two nullclines meet.
+ */
+export const MIN_REGION_FRACTION = 1e-3;
+/** A cell whose component is within this fraction of its scale of zero lies on a nullcline and gets no label. */
+export const REGION_ZERO_TOL = 1e-12;
+/** Arrows across the window per state: readable at the size of a printed figure. */
+export const DEFAULT_DIRECTION_FIELD_OPTIONS: DirectionFieldOptions = { nx: 21, ny: 21 };
+
+// ── integration ─────────────────────────────────────────────────────────────────────────────
+
+/**
+ * Trajectory tolerances: 1e-9 relative, and 1e-11 of the window width absolute, so a state of
+ * size 10 and one of size 1e5 are both resolved to about nine digits.
+ */
+export const TRAJECTORY_RELATIVE_TOL = 1e-9;
+export const TRAJECTORY_ABSOLUTE_TOL_OF_WIDTH = 1e-11;
+/**
+ * Longest step as a fraction of the horizon, for the follower and the basin kernel alike: curves
+ * drawn from the step points need it small, and the algebraic-approach rule (ALGEBRAIC_STEPS
+ * steps in a row closing in) needs that many steps. A power of two, so h · this = h / 64 exactly.
+ */
+export const MAX_STEP_OF_HORIZON = 1 / 64;
+/** Accepted steps per trajectory: far above what a decided trajectory takes (a few thousand). */
+export const TRAJECTORY_MAX_STEPS = 200_000;
+/** Halvings of a step to locate an event on the dense interpolant: 2^-60 of a step is below rounding. */
+export const EVENT_BISECTION_STEPS = 60;
+
+// ── flow and fates (rules in flow/rules.ts) ─────────────────────────────────────────────────
+
+/** Beyond this many window widths outside the window, growth is called a blow-up ... */
+export const BLOWUP_WINDOWS = 1e6;
+/**
+ * ... if it is also faster than exponential: the e-folding time |z|/|z'| (window-scaled) is below
+ * this fraction of the time since the window exit. An exponential escape (a linear saddle) needs
+ * ln(1e6) ≈ 14 e-foldings to get that far, a fraction near 1/14, and it is a plain exit; in a
+ * finite-time blow-up, x ~ (t* − t)^−p, the e-folding time (t* − t)/p shrinks to nothing.
+ */
+export const BLOWUP_EFOLDING_FRACTION = 1e-2;
+/** A state may overshoot the window by this fraction of its width before it has left. */
+export const WINDOW_EXIT_SLACK = 1e-9;
+/** Saddle capture: within this scaled distance ... */
+export const SADDLE_NEAR = 1e-3;
+/** ... with the unstable component below this fraction of the distance. */
+export const SADDLE_UNSTABLE_FRACTION = 1e-6;
+/**
+ * Non-hyperbolic capture: within this scaled distance, closing in for ALGEBRAIC_STEPS steps in a
+ * row while heading at the equilibrium (cosine above ALGEBRAIC_HEADING). The heading test keeps
+ * a trajectory that merely passes by, as along the repelling side of a saddle-node, from counting.
+ */
+export const ALGEBRAIC_NEAR = 0.05;
+export const ALGEBRAIC_STEPS = 40;
+export const ALGEBRAIC_HEADING = 0.9;
+/** Closer than this (scaled) to a saddle or a non-hyperbolic equilibrium, a trajectory has arrived whatever its heading. */
+export const ARRIVAL_DISTANCE = 1e-12;
+/** Recurrence: consecutive ray crossings closer than this (scaled) ... */
+export const RECURRENCE_TOL = 1e-6;
+/** ... and farther than this from the equilibrium (else it is spiralling in or out). */
+export const RECURRENCE_MIN_RADIUS = 1e-3;
+/** Crossings of one ray needed at the horizon to see gaps shrink steadily (three gaps). */
+export const SLOW_RECURRENCE_CROSSINGS = 4;
+
+/** Portrait trajectories, separatrices and basin trajectories run this many slowest time scales (or the longest scenario horizon, if longer). */
+export const PORTRAIT_TIME_SCALES = 60;
+/** Portrait seeds and stored points: enough to draw the portrait, few enough to keep results.json small. */
+export const DEFAULT_TRAJECTORY_OPTIONS: TrajectoryOptions = {
+  maxPathPoints: 1200,
+  seriesPoints: 401,
+  seedsPerEdge: 6,
+  seedsAroundEquilibrium: 6,
+  seedRadius: 0.02,
+};
+/** Scenario paths keep every step while they are followed (thinned to maxPathPoints afterwards). */
+export const SCENARIO_PATH_POINTS = 200_000;
+
+// ── capture regions ─────────────────────────────────────────────────────────────────────────
+
+/** Radii tried, as fractions of the window, halving from the first. */
+export const CAPTURE_FIRST_RADIUS = 0.25;
+export const CAPTURE_MIN_RADIUS = 1e-7;
+/** Angles sampled on each ellipse, and the interior shells (fractions of the level) also checked. */
+export const CAPTURE_ANGLES = 72;
+export const CAPTURE_SHELLS = [1, 0.7, 0.45, 0.25, 0.1, 0.03];
+/** Sampling cannot prove dV/dt < 0 between samples: keep only this fraction of the verified level. */
+export const CAPTURE_SAFETY = 0.5;
+
+// ── cycles ──────────────────────────────────────────────────────────────────────────────────
+
+/** Shooting integrates tighter than trajectories: the period is reported to ~1e-9 relative. */
+export const SHOOT_RELATIVE_TOL = 1e-12;
+export const SHOOT_ABSOLUTE_TOL_OF_WIDTH = 1e-13;
+/** Newton (secant) on the return map stops when |P(r) − r| is below this, scaled. */
+export const SHOOT_RESIDUAL_TOL = 1e-11;
+export const SHOOT_MAX_ITERATIONS = 40;
+/** A solved orbit is accepted when its residual is within this factor of SHOOT_RESIDUAL_TOL (the secant may stop one step short). */
+export const SHOOT_ACCEPT_FACTOR = 1e3;
+/** Relative offset of the second secant start: far above rounding, far below the distance to another orbit. */
+export const SHOOT_SECANT_OFFSET = 1e-5;
+/** Each return is integrated for at most this many guessed periods ... */
+export const SHOOT_PERIODS = 3;
+/** ... in steps of at most this fraction of the guessed period, at most SHOOT_MAX_STEPS of them ... */
+export const SHOOT_MAX_STEP_OF_PERIOD = 1 / 16;
+export const SHOOT_MAX_STEPS = 100_000;
+/** ... and given up when the orbit strays more than this many window widths outside the window. */
+export const SHOOT_ESCAPE_WINDOWS = 1;
+/** Halvings locating the section crossing on the interpolant before the final secant step. */
+export const SECTION_BISECTION_STEPS = 80;
+/** |m − 1| below this: the multiplier alone cannot tell stable from unstable. */
+export const NEUTRAL_MULTIPLIER_TOL = 1e-6;
+/** Offset (scaled) of the central difference for the return map's slope: the cross-check of the multiplier. */
+export const RETURN_SLOPE_OFFSET = 1e-6;
+/** Return-map offsets (scaled) used to tell a family of closed orbits from a semi-stable orbit. */
+export const FAMILY_PROBE = 1e-3;
+/** Ends of the section ray that count as a genuine return (not the start) after this fraction of the guess period. */
+export const MIN_RETURN_FRACTION = 0.2;
+/** Points stored per orbit, evenly in time: enough to draw it smoothly. */
+export const ORBIT_SAMPLES = 240;
+/** Two solved orbits are one when their periods agree to this, relatively ... */
+export const SAME_CYCLE_PERIOD_TOL = 1e-6;
+/** ... and their extents to this fraction of the window. */
+export const SAME_CYCLE_EXTENT_TOL = 1e-5;
+
+// ── separatrices ────────────────────────────────────────────────────────────────────────────
+
+/**
+ * Offset from the saddle along the eigenvector, as a fraction of the window: small enough that
+ * the linear approximation holds (error ~ offset², here 1e-12), large enough to leave in a few
+ * dozen e-foldings.
+ */
+export const MANIFOLD_OFFSET = 1e-6;
+/** Separatrices are drawn from their step points: at least this many steps over the horizon keep the curve smooth. */
+export const MANIFOLD_MIN_STEPS = 4000;
+
+// ── basins ──────────────────────────────────────────────────────────────────────────────────
+
+export const DEFAULT_BASIN_OPTIONS: BasinOptions = { resolution: DEFAULT_BASIN_RESOLUTION, coarse: DEFAULT_BASIN_COARSE };
+/**
+ * Basin labels need the attractor reached, not an accurate path: 1e-7 relative and 1e-9 of the
+ * window keep every label decided by the verified capture regions.
+ */
+export const BASIN_RELATIVE_TOL = 1e-7;
+export const BASIN_ABSOLUTE_TOL_OF_WIDTH = 1e-9;
+/** A crossing of a stable cycle's section this close (scaled) to its fixed point, twice and closing in, labels the cycle. */
+export const CYCLE_CAPTURE_RADIUS = 1e-3;
+/** Crossings that close in on the cycle needed to label it. */
+export const CYCLE_CAPTURE_HITS = 2;
+/** The kernel's first step, as a fraction of the shorter of the horizon and the flow's time scale. */
+export const BASIN_INITIAL_STEP_OF_TIMESCALE = 1e-3;
+/** Accepted steps per basin trajectory (as TRAJECTORY_MAX_STEPS). */
+export const BASIN_MAX_STEPS = TRAJECTORY_MAX_STEPS;
+/** Steps allowed outside the window to tell a blow-up from a plain exit. */
+export const BASIN_MAX_STEPS_OUTSIDE = 2_000;
+/** Step size control of the Dormand–Prince pair (Hairer, Nørsett & Wanner, Solving ODEs I, 2nd ed., II.4): safety factor, growth and shrink limits, and exponent −1/5. */
+export const STEP_SAFETY = 0.9;
+export const STEP_MAX_GROWTH = 5;
+export const STEP_MIN_SHRINK = 0.2;
+export const STEP_ERROR_EXPONENT = -0.2;
+/** A step whose error estimate is NaN is retried this much shorter ... */
+export const NAN_STEP_SHRINK = 0.25;
+/** ... until it is below this: then the right-hand side is not finite nearby and the start is undecided. */
+export const KERNEL_MIN_STEP = 1e-300;
+
+// ── continuation ────────────────────────────────────────────────────────────────────────────
+
+/** Step lengths in scaled arclength: a first step and a longest one that draw a smooth diagram, an angle that follows turns. */
+export const DEFAULT_STEP_OPTIONS: StepOptions = {
+  initialStep: 0.005, maxStep: 0.02, minStep: 1e-9, maxAngle: 0.15, windowMargin: 0.25, maxSteps: 4000,
+};
+/** Evenly spaced seed values across the range, besides the nominal one. */
+export const CONTINUATION_SEED_VALUES = 5;
+/** At most this many branches are traced (a guard against a curve of equilibria). */
+export const CONTINUATION_MAX_BRANCHES = 40;
+/** Newton iterations per corrector while tracing; more means the step was too long. */
+export const CORRECTOR_ITERATIONS = 8;
+/** Step grows by this factor after an easy corrector (at most this many iterations)... */
+export const GROW = 1.5;
+export const EASY_ITERATIONS = 2;
+/** ...and shrinks after a hard one (at least this many). */
+export const SHRINK = 0.7;
+export const HARD_ITERATIONS = 5;
+/** A corrector that moved further than this fraction of the step has likely jumped to another branch. */
+export const MAX_CORRECTION = 0.3;
+/** A branch has closed when it returns within one step of its seed after at least this many steps ... */
+export const CLOSE_MIN_STEPS = 10;
+/** ... and more than this many step lengths of travel (so the seed's own neighbourhood does not count). */
+export const CLOSE_MIN_TRAVEL_STEPS = 3;
+/** Floor of the on-branch tolerance (scaled): a polygon of tiny steps still gets a tolerance above location error. */
+export const ON_BRANCH_MIN_TOL = 1e-6;
+/** Offset (scaled) from a branch point at which the crossing branch is sought. */
+export const SWITCH_OFFSET = 1e-2;
+/** Corrector stops when its scaled Newton step is this small: quadratic convergence leaves ~1e-22. */
+export const CORRECTOR_STEP_TOL = 1e-11;
+/** A corrector step longer than this (scaled) has left the basin of the branch being followed. */
+export const CORRECTOR_MAX_JUMP = 0.5;
+/** Rows of [J | f_p] this close to parallel (|r0 × r1| / (|r0||r1|)) leave no unique tangent. */
+export const RANK_TOL = 1e-10;
+/** A unit tangent whose parameter component is below this is vertical in p: its orientation comes from its largest component. */
+export const TANGENT_P_ZERO_TOL = 1e-12;
+/** Newton iterations per corrector while locating; near a branch point convergence is slow. */
+export const LOCATE_ITERATIONS = 30;
+/**
+ * Bracket width (scaled arclength) at which location stops: 1e-13 of the range width in p, so
+ * 1e-10 relative wherever |p| is above 1e-3 of the range width, with three digits to spare.
+ */
+export const LOCATE_TOL = 1e-13;
+export const LOCATE_MAX_ITERATIONS = 200;
+/** Rounding limits how finely s can be resolved: a few ulps of the largest scaled coordinate. */
+export const LOCATE_ULPS = 8 * Number.EPSILON;
+/** Along-branch offset (scaled arclength) at which the types on either side are read: far above the location error (1e-13), far below the spacing of distinct events. */
+export const SIDE_OFFSET = 1e-5;
+/**
+ * l1 is called zero when it is this small against the sum of the magnitudes of its three terms:
+ * the derivatives are exact symbolic values at a point located to ~1e-13, so cancellation noise
+ * stays near 1e-12 of the terms; 1e-8 keeps four digits of margin (as CLASSIFY_REL_TOL).
+ */
+export const LYAPUNOV_REL_TOL = 1e-8;
+/** A point within this fraction of the window width of a state bound lies on it (covers location near a branch point, ~1e-8). */
+export const BOUND_CONTACT_TOL = 1e-7;
+/**
+ * Two located points are one threshold when they agree to this (scaled) in every coordinate. On
+ * a branch crossing another, the corrector stops converging near the crossing, so what that
+ * branch locates there is good to ~1e-6 only; the branch lying on the bound locates it exactly.
+ */
+export const DUPLICATE_TOL = 1e-4;
+/** A located point passes verification when its test function is this small against its scale (as CLASSIFY_REL_TOL). */
+export const TEST_FUNCTION_TOL = CLASSIFY_REL_TOL;
+/** Neighbourhood (scaled) in which a crossing branch must reach both sides of the threshold value. */
+export const CROSSING_NEIGHBOURHOOD = 0.05;
+/**
+ * A branch point is across a bound when the vanishing eigenvalue belongs to the state at the
+ * bound (J_kk ≈ 0: that population's growth rate there, its invasion rate). The point is located
+ * to ~1e-6 at worst (DUPLICATE_TOL), so J_kk is then ~1e-6 of the Jacobian's size; a rate that is
+ * not at zero is of the order of it.
+ */
+export const ACROSS_BOUND_TOL = 1e-4;
+
+// ── invasion ────────────────────────────────────────────────────────────────────────────────
+
+/**
+ * Highest degree of a resident's numerator handled: a quadratic per-capita rate times the
+ * resident itself (f_j = x_j g_j, g_j quadratic, as with an Allee effect) is a cubic with a root at 0.
+ */
+export const MAX_POLYNOMIAL_DEGREE = 3;
+/** Agreement of a closed-form root with a numerical value, relative to the window. */
+export const ROOT_MATCH_REL_TOL = 1e-7;
+
+// ── assumptions ─────────────────────────────────────────────────────────────────────────────
+
+/** Samples per range in the search for where a condition flips. */
+export const FLIP_SAMPLES = 400;
+/** Bisection of a flip: as EDGE_BISECTION_MAX_ITERATIONS, adjacency of the bracket stops it first. */
+export const FLIP_BISECTION_MAX_ITERATIONS = 200;
+/** A condition's flip coincides with a located threshold when they agree to this, relatively. */
+export const ASSUMPTION_MATCH_TOL = 1e-6;
+/** Denominator floor of a relative difference: the smallest normal double's order, so a flip at 0 gives a finite number. */
+export const RELATIVE_DENOMINATOR_FLOOR = 1e-300;
+
+// ── parameters & checks (outcomes, studies, maps, claims) ───────────────────────────────────
+
+/** Outcome sampling searches equilibria on a coarser interior grid than the main search (8 × 8): outcomes are sampled hundreds of times. */
+export const OUTCOME_GRID_SIZE = 8;
+/** ... but the edges as finely as the main search, so boundary equilibria (one population absent) are not missed. */
+export const OUTCOME_EDGE_SAMPLES = EQUILIBRIUM_EDGE_SAMPLES;
+/** Path points a scenario keeps while its outcome is decided: only the end and a late point are read. */
+export const OUTCOME_PATH_POINTS = 16;
+/**
+ * An undecided trajectory ending this close (scaled) to a stable equilibrium, or closer to it at
+ * the horizon than at SLOW_ARRIVAL_LATE_FRACTION of its path, is counted as arriving there: near
+ * a threshold the approach slows down, and the outcome is still that equilibrium.
+ */
+export const SLOW_ARRIVAL_DISTANCE = 0.02;
+export const SLOW_ARRIVAL_LATE_FRACTION = 0.75;
+/** Outcome samples across each range, besides the located thresholds: catches changes no local bifurcation marks. */
+export const OUTCOME_SAMPLES = 12;
+/** A break found by sampling is bisected to this fraction of the range. */
+export const SWITCH_LOCATE_TOL = 1e-6;
+/** A numerical and a symbolic threshold are the same threshold when they agree to this, relatively. */
+export const SYMBOLIC_MATCH_TOL = 1e-6;
+/** Smallest magnitude a symbolic threshold is divided by in that test: keeps it finite at 0. */
+export const SYMBOLIC_MATCH_FLOOR = 1e-300;
+/** Outcome-map grid points per parameter axis: enough to show the shape of each outcome region at a few seconds' cost. */
+export const MAP_RESOLUTION = 24;
+/** condition-decides: sample points whose condition sides agree to this, relatively, are too close to call and skipped. */
+export const CONDITION_MARGIN_TOL = 1e-3;
+/** Bases of the Halton sequence that samples the parameter ranges, one prime per ranged parameter (reused beyond 16). */
+export const HALTON_PRIMES = [2, 3, 5, 7, 11, 13, 17, 19, 23, 29, 31, 37, 41, 43, 47, 53];
+
+// The threshold-curve tracer of the outcome maps (parameters/curves.ts).
+
+/** Steps of the threshold-curve tracer across the second parameter's range, each way from the start. */
+export const CURVE_STEPS = 60;
+/** Newton iterations per curve point: the linear predictor starts within a few iterations of it. */
+export const CURVE_NEWTON_ITERATIONS = 25;
+/** Newton on the defining system converges when the scaled step is below this. */
+export const CURVE_STEP_TOL = 1e-12;
+/** A curve may run this fraction of the first parameter's range beyond it before tracing stops. */
+export const CURVE_RANGE_SLACK = 0.05;
+/** On a bound, a state is on its invariant axis when its own derivative is this small against the other's (plus an underflow floor). */
+export const ON_AXIS_REL_TOL = 1e-12;
+export const ON_AXIS_ABS_FLOOR = 1e-300;

@@ -1,0 +1,27 @@
+import { formatEigenvalues, formatNumberHtml, formatUnit } from "../format.js";
+import { TYPE_WORDS } from "../words/index.js";
+import { m, matrixTex, numberTex, type ViewInput } from "./common.js";
+
+/** The equilibria table, each Jacobian typeset, and the trace–determinant figure. */
+export function buildEquilibriaView({ spec, results, figure }: ViewInput) {
+  const rows = results.equilibria.map((e) => ({
+    id: e.id,
+    coordinates: spec.states.map((s) => formatNumberHtml(e.point[s.name])),
+    trace: formatNumberHtml(e.trace),
+    determinant: formatNumberHtml(e.determinant),
+    discriminant: formatNumberHtml(e.discriminant),
+    eigenvalues: formatEigenvalues(e.eigenvalues, 5),
+    type: TYPE_WORDS[e.type],
+    hyperbolic: e.hyperbolic ? "yes" : "no",
+    boundary: e.onBoundary ? `on the boundary (${e.boundaryStates.join(", ")} at a bound)` : "interior",
+    jacobianMath: m(`J(${e.id}) = ${matrixTex(e.jacobian.map((r) => r.map((v) => numberTex(v))))}`, true),
+    undecidedNote: e.hyperbolic
+      ? ""
+      : "The linearisation does not decide this equilibrium's stability; higher-order terms do.",
+  }));
+  return {
+    equilibria: rows,
+    stateHeaders: spec.states.map((s) => (s.unit ? `${s.name} (${formatUnit(s.unit)})` : s.name)),
+    traceDeterminant: figure("trace-determinant"),
+  };
+}

@@ -1,0 +1,6 @@
+/** All dossier wording, as functions: fates and types, outcomes, deciding conditions, claims, methods. */
+export * from "./fates.js";
+export * from "./outcomes.js";
+export * from "./conditions.js";
+export * from "./claims.js";
+export * from "./methods.js";

@@ -12,7 +12,7 @@
 //
 // Every leaf (number, string, boolean, null) of the two results is compared exactly, after the
 // base's results are adapted to the new shape by the rules in ADAPT (fields that were renamed or
-// moved without changing their meaning). Fields in MOVED are left out on both sides: they were
+// moved without changing their meaning). Fields in ADDED are new and have no counterpart. Fields in MOVED are left out on both sides: they were
 // removed from results.json on purpose (English and TeX now written by report/). Fields in
 // ROUNDING may differ by rounding only (a numerical method swapped for an equivalent one); their
 // largest relative difference is printed. Exit 0 when nothing else differs.
@@ -21,6 +21,7 @@ import { existsSync, mkdirSync, readdirSync, readFileSync, symlinkSync, rmSync }
 import { basename, dirname, join, resolve } from "node:path";
 import { fileURLToPath } from "node:url";
 import { wordsFromStructure } from "./adapt-words.mjs";
+import { fatesAsRecords } from "./adapt-fates.mjs";
 
 const ROOT = resolve(dirname(fileURLToPath(import.meta.url)), "..");
 const BASE = "d4ec7a0";
@@ -28,11 +29,14 @@ const BASE = "d4ec7a0";
 /** Removed from results.json on purpose; the dossier builds these in report/. */
 const MOVED = [];
 
+/** New in results.json, with no counterpart in the base: [path pattern, why]. */
+const ADDED = [[/^format$/, "results format version (issue 14)"]];
+
 /** May differ by rounding only: [path pattern, largest relative difference accepted, why]. */
 const ROUNDING = [];
 
 /** Old shape → new shape, applied to the base's results before comparing. */
-const ADAPT = [wordsFromStructure];
+const ADAPT = [wordsFromStructure, fatesAsRecords];
 
 function parseArgs(argv) {
   const args = { base: BASE, only: null, fresh: false };
@@ -98,7 +102,8 @@ function compareOne(oldResults, newResults) {
     if (rule && rel <= rule[1]) report.rounding.set(rule[0].source, Math.max(rel, report.rounding.get(rule[0].source) ?? 0));
     else report.differing.push(`${path}: ${JSON.stringify(va)} → ${JSON.stringify(vb)}`);
   }
-  for (const path of b.keys()) if (!a.has(path) && !matches(MOVED, path)) report.onlyNew.push(path);
+  for (const path of b.keys())
+    if (!a.has(path) && !matches(MOVED, path) && !matches(ADDED, path)) report.onlyNew.push(path);
   return report;
 }
 

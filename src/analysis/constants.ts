@@ -74,7 +74,7 @@ export const EIGENVECTOR_LEAD_TOL = 1e-14;
 /** Grid nodes across the window per state, both edges included: about 1/160 of the window per cell. */
 export const DEFAULT_NULLCLINE_OPTIONS: NullclineOptions = { nx: 161, ny: 161 };
 /**
- * Every vertex has |f_i| ≤ this × (max |f_i| over the grid). Traced vertices are bracketed to
+ * Every vertex has |f_i| ≤ this × (max |f_i| over the grid). Contour vertices are bracketed to
  * adjacent doubles (rounding level, far below this); break points are equilibria, which are
  * accepted at ROOT_RESIDUAL_TOL, so the bound cannot be tighter than that.
  */
@@ -288,9 +288,9 @@ export const DEFAULT_STEP_OPTIONS: StepOptions = {
 };
 /** Evenly spaced seed values across the range, besides the nominal one. */
 export const CONTINUATION_SEED_VALUES = 5;
-/** At most this many branches are traced (a guard against a curve of equilibria). */
+/** At most this many branches are continued (a guard against a curve of equilibria). */
 export const CONTINUATION_MAX_BRANCHES = 40;
-/** Newton iterations per corrector while tracing; more means the step was too long. */
+/** Newton iterations per corrector while continuing a branch; more means the step was too long. */
 export const CORRECTOR_ITERATIONS = 8;
 /** Step grows by this factor after an easy corrector (at most this many iterations)... */
 export const GROW = 1.5;
@@ -363,6 +363,12 @@ export const ACROSS_BOUND_TOL = 1e-4;
 export const MAX_POLYNOMIAL_DEGREE = 3;
 /** Agreement of a closed-form root with a numerical value, relative to the window. */
 export const ROOT_MATCH_REL_TOL = 1e-7;
+/** The numerical screen agrees with an exact form to this, relatively (rounding only). */
+export const FORM_SCREEN_REL_TOL = 1e-8;
+/** Parameter values of the screen, as multiples of the nominal value (of 1 when that is 0). */
+export const FORM_SCREEN_FACTORS = [1, 1.7, 0.45, 2.9];
+/** At a threshold the rate vanishes to rounding, against the rate's size at the nominal values. */
+export const THRESHOLD_CHECK_REL_TOL = 1e-9;
 
 // ── assumptions ─────────────────────────────────────────────────────────────────────────────
 
@@ -405,15 +411,15 @@ export const CONDITION_MARGIN_TOL = 1e-3;
 /** Bases of the Halton sequence that samples the parameter ranges, one prime per ranged parameter (reused beyond 16). */
 export const HALTON_PRIMES = [2, 3, 5, 7, 11, 13, 17, 19, 23, 29, 31, 37, 41, 43, 47, 53];
 
-// The threshold-curve tracer of the outcome maps (parameters/curves.ts).
+// Continuation of the outcome maps' threshold curves (parameters/curves.ts).
 
-/** Steps of the threshold-curve tracer across the second parameter's range, each way from the start. */
+/** Steps of threshold-curve continuation across the second parameter's range, each way from the start. */
 export const CURVE_STEPS = 60;
 /** Newton iterations per curve point: the linear predictor starts within a few iterations of it. */
 export const CURVE_NEWTON_ITERATIONS = 25;
 /** Newton on the defining system converges when the scaled step is below this. */
 export const CURVE_STEP_TOL = 1e-12;
-/** A curve may run this fraction of the first parameter's range beyond it before tracing stops. */
+/** A curve may run this fraction of the first parameter's range beyond it before continuation stops. */
 export const CURVE_RANGE_SLACK = 0.05;
 /** On a bound, a state is on its invariant axis when its own derivative is this small against the other's (plus an underflow floor). */
 export const ON_AXIS_REL_TOL = 1e-12;

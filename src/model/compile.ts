@@ -116,7 +116,7 @@ export function compileModel(spec: NormalizedSpec): Parsed<Model> {
       parameterValues,
       equations,
       jacobian,
-      conditions: parsedConditions.assumptions.map((c) => compileCondition(describe, c)),
+      assumptionConditions: parsedConditions.assumptions.map((c) => compileCondition(describe, c)),
       claimConditions: parsedConditions.claims.map((c) => compileCondition(describe, c)),
       rhs: instantiateRhs(source.rhs),
       jacobianAt: instantiateRhs(source.jacobian),

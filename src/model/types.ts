@@ -48,7 +48,8 @@ export interface Model {
   equations: CompiledExpression[];
   /** jacobian[i][j] = ∂f_i/∂x_j. */
   jacobian: CompiledExpression[][];
-  conditions: CompiledCondition[];
+  /** Machine-checkable conditions of the spec's assumptions, indexed by assumption. */
+  assumptionConditions: CompiledCondition[];
   /** Conditions of condition-decides claims, indexed by claim. */
   claimConditions: CompiledCondition[];
   rhs: RhsFunction;

@@ -82,7 +82,7 @@ describe("compileModel", () => {
     const spec = buildSpec({ equations: { x: "r1*x", y: "-y" }, window: unit, parameters: { r1: 0.5, a12: 0.1, K2: 4 } });
     const model = compileModel({ ...spec, assumptions: [{ text: "coexistence", condition: "K2 < r1/a12" }] });
     if (!model.ok) throw new Error("did not compile");
-    const [condition] = model.value.conditions;
+    const [condition] = model.value.assumptionConditions;
     expect(condition.op).toBe("<");
     expect(condition.evaluate(model.value.parameterValues)).toEqual({ lhs: 4, rhs: 5, holds: true });
     expect(condition.evaluate([0.5, 0.2, 4])).toEqual({ lhs: 4, rhs: 2.5, holds: false });

@@ -6,7 +6,7 @@ import { ASSUMPTION_MATCH_TOL, FLIP_BISECTION_MAX_ITERATIONS, FLIP_SAMPLES, RELA
 /** Each assumption, with its machine-checkable condition evaluated at the nominal values. */
 export function evaluateAssumptions(model: Model): AssumptionResult[] {
   return model.spec.assumptions.map((a, index) => {
-    const condition = model.conditions.find((c) => c.assumption === index);
+    const condition = model.assumptionConditions.find((c) => c.assumption === index);
     if (!condition) return { index, text: a.text, condition: null, tex: null, lhs: null, rhs: null, holds: null, flips: [] };
     const { lhs, rhs, holds } = condition.evaluate(model.parameterValues);
     const finite = Number.isFinite(lhs) && Number.isFinite(rhs);
@@ -33,14 +33,13 @@ export interface AssumptionFlip {
   coincides: boolean;
 }
 
-
 /** Where each machine-checkable assumption flips across each studied range, beside the located thresholds. */
 export function findAssumptionFlips(
   model: Model,
   studies: { parameter: string; range: [number, number]; thresholds: { value: number; kind: string; decisive: boolean }[] }[],
 ): AssumptionFlip[][] {
   return model.spec.assumptions.map((_, index) => {
-    const condition = model.conditions.find((c) => c.assumption === index);
+    const condition = model.assumptionConditions.find((c) => c.assumption === index);
     if (!condition) return [];
     const flips: AssumptionFlip[] = [];
     for (const study of studies) {

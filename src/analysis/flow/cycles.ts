@@ -34,7 +34,6 @@ interface Return {
   orbit: TrajectoryPath | null;
 }
 
-
 function returnMap(model: Model, box: Box, center: [number, number], sense: 1 | -1, direction: 1 | -1, r: number, guessPeriod: number, keepOrbit: boolean): Return | null {
   const start: [number, number] = [center[0] + r * box.width[0], center[1]];
   const jac = new Float64Array(4);

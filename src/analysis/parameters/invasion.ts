@@ -4,7 +4,7 @@ import { differentiate } from "../../model/derivatives.js";
 import { emitExpression, PRELUDE } from "../../model/codegen.js";
 import { expressionToTex, expressionToText } from "../../model/tex.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
-import { MAX_POLYNOMIAL_DEGREE, ROOT_MATCH_REL_TOL } from "../constants.js";
+import { FORM_SCREEN_FACTORS, FORM_SCREEN_REL_TOL, MAX_POLYNOMIAL_DEGREE, ROOT_MATCH_REL_TOL, THRESHOLD_CHECK_REL_TOL } from "../constants.js";
 
 /**
  * Symbolic invasion conditions. Where f_i = x_i g_i (the axis x_i = 0 is invariant: population
@@ -99,7 +99,6 @@ function polynomialRoots(expr: MathNode, variable: string): MathNode[] | null {
   ];
 }
 
-
 export function findInvasionConditions(model: Model, equilibria: EquilibriumResult[]): InvasionConditionResult[] {
   const out: InvasionConditionResult[] = [];
   const names = model.stateNames;
@@ -157,13 +156,6 @@ function userNames(model: Model): Map<string, string> {
   model.parameterNames.forEach((n, k) => m.set(`P${k}`, n));
   return m;
 }
-
-/** The numerical screen agrees with an exact form to this, relatively (rounding only). */
-const FORM_SCREEN_REL_TOL = 1e-8;
-/** Parameter values of the screen, as multiples of the nominal value (of 1 when that is 0). */
-const FORM_SCREEN_FACTORS = [1, 1.7, 0.45, 2.9];
-/** At a threshold the rate vanishes to rounding, against the rate's size at the nominal values. */
-const THRESHOLD_CHECK_REL_TOL = 1e-9;
 
 const mentions = (node: MathNode, sym: string) => node.filter((n: any) => n.type === "SymbolNode" && n.name === sym).length > 0;
 

@@ -7,7 +7,7 @@ import { MAP_RESOLUTION } from "../constants.js";
 
 /**
  * Two-parameter outcome maps: a grid over both ranges labelled by outcome (the set of
- * attractors), with the threshold curves traced from the thresholds located in the
+ * attractors), with the threshold curves continued from the thresholds located in the
  * one-parameter studies, by natural-parameter continuation of the defining system
  * (equilibrium plus test function) in the second parameter.
  */
@@ -21,7 +21,7 @@ export interface OutcomeMapResult {
   legend: OutcomeResult[];
   /** Row-major from the lowest value of the second parameter. */
   cells: number[];
-  /** Each curve is traced from a threshold located in the one-parameter study of `origin.parameter`. */
+  /** Each curve is continued from a threshold located in the one-parameter study of `origin.parameter`. */
   curves: { kind: string; origin: { parameter: string; value: number }; points: [number, number][] }[];
 }
 
@@ -57,7 +57,7 @@ export function buildOutcomeMap(model: Model, pair: [string, string], studies: P
   for (const [which, study] of [[0, studies.find((s) => s.parameter === pair[0])], [1, studies.find((s) => s.parameter === pair[1])]] as const) {
     if (!study) continue;
     for (const t of study.thresholds.filter((q) => q.decisive && q.kind !== "boundary-crossing" || q.decisive && q.bound)) {
-      // trace in the other parameter; a threshold of the second parameter is traced with the roles swapped
+      // continue in the other parameter; a threshold of the second parameter is continued with the roles swapped
       const order: [number, number] = which === 0 ? [idx[0], idx[1]] : [idx[1], idx[0]];
       const orderRanges: [[number, number], [number, number]] = which === 0 ? ranges : [ranges[1], ranges[0]];
       const points = traceThresholdCurve(model, order, orderRanges, t);

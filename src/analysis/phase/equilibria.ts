@@ -28,7 +28,6 @@ export interface EquilibriumOptions {
   edgeSamples: number;
 }
 
-
 interface Workspace {
   f: Float64Array;
   j: Float64Array;
@@ -143,7 +142,6 @@ function boundaryStarts(model: Model, box: Box, fScale: number[], options: Equil
   }
   return starts;
 }
-
 
 /** Snap coordinates that sit at a bound to the bound exactly, when the residual allows. */
 function snapToBounds(model: Model, x: [number, number], box: Box, fScale: number[], ws: Workspace): [number, number] {

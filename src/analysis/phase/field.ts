@@ -15,7 +15,6 @@ export interface DirectionFieldOptions {
   ny: number;
 }
 
-
 export interface DirectionFieldResult {
   nx: number;
   ny: number;

@@ -34,7 +34,7 @@ export type NullclineEnd =
   | { kind: "window-edge"; state: string; bound: "min" | "max" }
   /** The model is non-finite beyond this end. */
   | { kind: "hole" }
-  /** Neither: the other component changes sign here without a listed equilibrium, or tracing failed (a pole). */
+  /** Neither: the other component changes sign here without a listed equilibrium, or bracketing failed (a pole). */
   | { kind: "interior" }
   /** The piece is a closed curve; its last point repeats its first. */
   | { kind: "loop" };

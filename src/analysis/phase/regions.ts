@@ -20,8 +20,6 @@ export interface RegionOptions {
   ny: number;
 }
 
-
-
 export type Sign = "+" | "-";
 
 export interface RegionResult {

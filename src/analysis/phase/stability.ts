@@ -22,7 +22,6 @@ export interface StabilityResult {
   stable: boolean | null;
 }
 
-
 /** Sign convention for eigenvectors: the largest-magnitude component is positive. */
 function normalizeVector(v: number[]): number[] {
   const norm = Math.hypot(...v);

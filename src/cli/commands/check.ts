@@ -21,7 +21,7 @@ export function runCheck(file: string): string {
     "Jacobian:",
     ...model.jacobian.map((row, i) => `  d(d${spec.states[i].name}/dt): ` + row.map((e, j) => `∂/∂${spec.states[j].name} = ${e.text}`).join("; ")),
     `scenarios: ${spec.scenarios.map((s) => s.name).join(", ") || "none"}`,
-    `assumptions: ${spec.assumptions.length} (${model.conditions.length} machine-checkable)`,
+    `assumptions: ${spec.assumptions.length} (${model.assumptionConditions.length} machine-checkable)`,
     "spec OK",
   ];
   return lines.join("\n");

@@ -8,7 +8,7 @@ import {
   SHRINK, SWITCH_OFFSET, CORRECTOR_ITERATIONS,
 } from "../../constants.js";
 
-/** How a traced direction stopped. */
+/** How continuation in one direction stopped. */
 export type BranchEnd =
   /** reached an end of the parameter range (the last point sits on it) */
   | "range"
@@ -164,7 +164,6 @@ export function liesOnBranch(sys: ContinuationSystem, branch: ContinuedBranch, z
   const along = branch.points[near.index].t;
   return Math.abs(dot3(t, along)) >= Math.cos(2 * options.maxAngle);
 }
-
 
 /**
  * A point on the other branch through the branch point z (where the rows of [J | f_p] are

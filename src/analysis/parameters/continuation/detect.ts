@@ -32,7 +32,6 @@ export interface LocatedEvent {
   bound: { state: number; value: number } | null;
 }
 
-
 interface Bracket {
   kind: EventKind;
   /** Consecutive points with nonzero test values of opposite sign (other points between them are exact zeros). */

@@ -28,7 +28,7 @@ export interface ContinuationOptions {
   seedValues: number;
   steps: StepOptions;
   equilibria: EquilibriumOptions;
-  /** At most this many branches are traced (a guard against a curve of equilibria). */
+  /** At most this many branches are continued (a guard against a curve of equilibria). */
   maxBranches: number;
 }
 
@@ -51,7 +51,7 @@ export interface BranchVertexResult {
 
 export interface BranchResult {
   index: number;
-  /** The equilibrium (or branch-switching point) the branch was traced from. */
+  /** The equilibrium (or branch-switching point) the branch was continued from. */
   seed: { value: number; point: Record<string, number> };
   /** How each end of points was reached. */
   ends: [BranchEnd, BranchEnd];

@@ -31,7 +31,6 @@ const real = (x: number): Cx => [x, 0];
 const inner = (p: CVec, v: CVec): Cx => add(mul(conj(p[0]), v[0]), mul(conj(p[1]), v[1]));
 const vnorm = (v: CVec) => Math.hypot(v[0][0], v[0][1], v[1][0], v[1][1]);
 
-
 export interface LyapunovResult {
   /** First Lyapunov coefficient; null when the Jacobian has no imaginary pair. */
   value: number | null;

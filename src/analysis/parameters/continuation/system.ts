@@ -48,7 +48,6 @@ export function buildSystem(model: Model, parameterIndex: number, range: [number
   return sys;
 }
 
-
 /** Fills sys.f, sys.j (natural units), sys.fp and the scaled continuation Jacobian sys.a at z. */
 export function evaluate(sys: ContinuationSystem, z: ArrayLike<number>): void {
   sys.y[0] = z[0];

@@ -30,7 +30,6 @@ function bracketRoot(g: (p: Point) => number, a: Point, b: Point, ga: number, gb
   return Math.abs(glo) <= Math.abs(ghi) ? at(lo) : at(hi);
 }
 
-
 export interface Grid { nx: number; ny: number; axes: number[][]; values: number[] }
 
 /** Marching squares on the deflated samples, each crossing bracketed on its grid edge, rings cut at the border and at holes. */

@@ -34,7 +34,6 @@ export function evaluator(model: Model): Evaluator {
   };
 }
 
-
 const product = (v: number[]) => v.reduce((a, b) => a * b, 1);
 
 /** f_i divided by the (window-scaled) distance to each vanishing line: the rest of its zero set, now sign-changing. */
@@ -79,7 +78,6 @@ export function deflate(ev: Evaluator, box: Box, i: number, lines: Line[]): Defl
   return { value, gradient };
 }
 
-
 /** Newton steps along the gradient of the deflated function, in window-scaled coordinates. */
 export function projectOnto(h: Deflated, box: Box, start: Point): Point {
   let x: Point = [start[0], start[1]];
@@ -96,7 +94,6 @@ export function projectOnto(h: Deflated, box: Box, start: Point): Point {
   }
   return x;
 }
-
 
 export function vanishingLines(ev: Evaluator, box: Box, i: number, scale: number, axes: number[][]): Line[] {
   const lines: Line[] = [];

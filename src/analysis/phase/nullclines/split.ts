@@ -98,7 +98,6 @@ export function splitByDirection(
   return [{ ...piece, sign: k1 >= 0 ? (signs[k1] as Sign) : 0 }];
 }
 
-
 /** Bisection on the segment a → b (points projected onto the nullcline) for a sign change of f_j. */
 export function locateSignChange(a: Point, b: Point, sa: Sign, project: (p: Point) => Point, ev: Evaluator, j: number, accept: (p: Point) => boolean = () => true): Point | null {
   let best: Point | null = null;

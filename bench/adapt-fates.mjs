@@ -24,7 +24,10 @@ function renameKey(object, from, to) {
 }
 
 export function fatesAsRecords(old) {
-  for (const s of old.scenarios ?? []) { fixEdge(s.fate); fixEdge(s.exit); }
+  for (const s of old.scenarios ?? []) {
+    fixEdge(s.fate);
+    fixEdge(s.exit);
+  }
   for (const t of old.trajectories ?? []) fixEdge(t.fate);
   for (const s of old.separatrices ?? []) {
     renameKey(s, "branch", "side");

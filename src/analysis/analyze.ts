@@ -6,9 +6,21 @@ import { evaluateAssumptions } from "./checks/assumptions.js";
 import type { Results } from "./types.js";
 import { windowOf } from "./numeric/window.js";
 import { buildFlowContext } from "./flow/follow.js";
-import { CycleRegistry, flowTimeScale, integratePortrait, integrateScenarios, type TrajectoryOptions } from "./flow/trajectories.js";
+import {
+  CycleRegistry,
+  flowTimeScale,
+  integratePortrait,
+  integrateScenarios,
+  type TrajectoryOptions,
+} from "./flow/trajectories.js";
 import { findSeparatrices } from "./flow/manifolds.js";
-import { assembleBasinResult, planBasins, startRefinement, type BasinOptions, type BasinPlan } from "./basins/index.js";
+import {
+  assembleBasinResult,
+  planBasins,
+  startRefinement,
+  type BasinOptions,
+  type BasinPlan,
+} from "./basins/index.js";
 import { instantiateBasinKernel } from "./basins/kernel.js";
 import { runRefinementAsync, runRefinementSync, type BatchEvaluator } from "./basins/refine.js";
 import { findNullclines, type NullclineOptions } from "./phase/nullclines.js";
@@ -20,8 +32,16 @@ import { findAssumptionFlips } from "./checks/assumptions.js";
 import { checkClaims } from "./checks/claims.js";
 import { computeDirectionField, type DirectionFieldOptions } from "./phase/field.js";
 import {
-  BASIN_ABSOLUTE_TOL_OF_WIDTH, BASIN_RELATIVE_TOL, DEFAULT_BASIN_OPTIONS, DEFAULT_DIRECTION_FIELD_OPTIONS, DEFAULT_EQUILIBRIUM_OPTIONS,
-  DEFAULT_NULLCLINE_OPTIONS, DEFAULT_REGION_OPTIONS, DEFAULT_TRAJECTORY_OPTIONS, PORTRAIT_TIME_SCALES, TRAJECTORY_ABSOLUTE_TOL_OF_WIDTH,
+  BASIN_ABSOLUTE_TOL_OF_WIDTH,
+  BASIN_RELATIVE_TOL,
+  DEFAULT_BASIN_OPTIONS,
+  DEFAULT_DIRECTION_FIELD_OPTIONS,
+  DEFAULT_EQUILIBRIUM_OPTIONS,
+  DEFAULT_NULLCLINE_OPTIONS,
+  DEFAULT_REGION_OPTIONS,
+  DEFAULT_TRAJECTORY_OPTIONS,
+  PORTRAIT_TIME_SCALES,
+  TRAJECTORY_ABSOLUTE_TOL_OF_WIDTH,
   TRAJECTORY_RELATIVE_TOL,
 } from "./constants.js";
 
@@ -46,7 +66,10 @@ export const DEFAULT_ANALYSIS_OPTIONS: AnalysisOptions = {
 export type ProgressReporter = (stage: string, done: number, total: number) => void;
 
 /** Options as the spec may set them: the spec's `analysis` block over the defaults. */
-export function optionsForModel(model: Model, base: AnalysisOptions = DEFAULT_ANALYSIS_OPTIONS): AnalysisOptions {
+export function optionsForModel(
+  model: Model,
+  base: AnalysisOptions = DEFAULT_ANALYSIS_OPTIONS,
+): AnalysisOptions {
   const basins = model.spec.analysis.basins;
   return { ...base, basins: { ...base.basins, ...basins } };
 }
@@ -86,8 +109,33 @@ function settingsOf(options: AnalysisOptions, portraitHorizon: number): Results[
   };
 }
 
-/** Steps 1–5 of the analysis: everything but the basin map, plus the basin map's plan. */
-function analyzeCore(model: Model, options: AnalysisOptions, progress?: ProgressReporter): { results: Omit<Results, "basins">; plan: BasinPlan } {
+/** Step 6: symbolic invasion rates, thresholds by continuation, outcome intervals, outcome maps. */
+function analyzeParameters(
+  model: Model,
+  equilibria: Results["equilibria"],
+  diagnostics: Diagnostic[],
+  progress?: ProgressReporter,
+): Results["conditions"] {
+  progress?.("thresholds", 0, 1);
+  const invasion = findInvasionConditions(model, equilibria);
+  const studied = model.spec.analysis.parameters;
+  const studies = studied.map((name, k) => {
+    const p = model.spec.parameters.find((q) => q.name === name)!;
+    const study = studyParameter(model, name, p.range!, invasion, diagnostics);
+    progress?.("thresholds", k + 1, studied.length + model.spec.analysis.parameterPairs.length);
+    return study;
+  });
+  const maps = model.spec.analysis.parameterPairs.map((pair) => buildOutcomeMap(model, pair, studies));
+  progress?.("thresholds", 1, 1);
+  return { invasion, studies, maps };
+}
+
+/** Steps 1–8 of the analysis: everything but the basin map, plus the basin map's plan. */
+function analyzeCore(
+  model: Model,
+  options: AnalysisOptions,
+  progress?: ProgressReporter,
+): { results: Omit<Results, "basins">; plan: BasinPlan } {
   const diagnostics: Diagnostic[] = [];
   // 1. equilibria and their stability
   progress?.("equilibria", 0, 1);
@@ -110,23 +158,30 @@ function analyzeCore(model: Model, options: AnalysisOptions, progress?: Progress
   const longest = Math.max(0, ...model.spec.scenarios.map((s) => s.horizon));
   const timeScale = flowTimeScale(equilibria);
   const portraitHorizon = Math.max(longest, PORTRAIT_TIME_SCALES * timeScale);
-  const separatrices = findSeparatrices(model, equilibria, box, forward, backward, registry, portraitHorizon, options.trajectories.maxPathPoints);
+  const separatrices = findSeparatrices(
+    model,
+    equilibria,
+    box,
+    forward,
+    backward,
+    registry,
+    portraitHorizon,
+    options.trajectories.maxPathPoints,
+  );
   progress?.("trajectories", 2, 3);
-  const trajectories = integratePortrait(model, equilibria, box, registry, options.trajectories, portraitHorizon, diagnostics);
+  const trajectories = integratePortrait(
+    model,
+    equilibria,
+    box,
+    registry,
+    options.trajectories,
+    portraitHorizon,
+    diagnostics,
+  );
   progress?.("trajectories", 3, 3);
 
   // 6. deciding conditions: symbolic invasion rates, thresholds by continuation, outcome intervals, maps
-  progress?.("thresholds", 0, 1);
-  const invasion = findInvasionConditions(model, equilibria);
-  const studied = model.spec.analysis.parameters;
-  const studies = studied.map((name, k) => {
-    const p = model.spec.parameters.find((q) => q.name === name)!;
-    const study = studyParameter(model, name, p.range!, invasion, diagnostics);
-    progress?.("thresholds", k + 1, studied.length + model.spec.analysis.parameterPairs.length);
-    return study;
-  });
-  const maps = model.spec.analysis.parameterPairs.map((pair) => buildOutcomeMap(model, pair, studies));
-  progress?.("thresholds", 1, 1);
+  const { invasion, studies, maps } = analyzeParameters(model, equilibria, diagnostics, progress);
   const flips = findAssumptionFlips(model, studies);
   const assumptions = evaluateAssumptions(model).map((a, k) => ({ ...a, flips: flips[k] }));
 
@@ -134,7 +189,16 @@ function analyzeCore(model: Model, options: AnalysisOptions, progress?: Progress
   const claims = checkClaims({ model, equilibria, scenarios, studies });
 
   // 8. the basin map's kernel, for the attractors now known
-  const plan = planBasins(model, equilibria, registry.cycles, box, portraitHorizon, timeScale, options.basins, diagnostics);
+  const plan = planBasins(
+    model,
+    equilibria,
+    registry.cycles,
+    box,
+    portraitHorizon,
+    timeScale,
+    options.basins,
+    diagnostics,
+  );
   const results: Omit<Results, "basins"> = {
     keel: KEEL_VERSION,
     format: RESULTS_FORMAT,
@@ -165,7 +229,11 @@ function withBasins(core: Omit<Results, "basins">, basins: Results["basins"]): R
 }
 
 /** Model → Results, every pass in this thread. Pure and deterministic. */
-export function analyze(model: Model, options: AnalysisOptions = optionsForModel(model), progress?: ProgressReporter): Results {
+export function analyze(
+  model: Model,
+  options: AnalysisOptions = optionsForModel(model),
+  progress?: ProgressReporter,
+): Results {
   const { results, plan } = analyzeCore(model, options, progress);
   const kernel = instantiateBasinKernel(plan.kernelSource);
   progress?.("basins", 0, 1);

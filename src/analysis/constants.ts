@@ -16,14 +16,22 @@ import type { BasinOptions } from "./basins/index.js";
 import type { StepOptions } from "./parameters/continuation/branch.js";
 import { DEFAULT_BASIN_COARSE, DEFAULT_BASIN_RESOLUTION } from "../spec/defaults.js";
 
-export { DEFAULT_BASIN_COARSE, DEFAULT_BASIN_RESOLUTION, DEFAULT_CLAIM_CONDITION_SAMPLES, DEFAULT_CLAIM_NEAR } from "../spec/defaults.js";
+export {
+  DEFAULT_BASIN_COARSE,
+  DEFAULT_BASIN_RESOLUTION,
+  DEFAULT_CLAIM_CONDITION_SAMPLES,
+  DEFAULT_CLAIM_NEAR,
+} from "../spec/defaults.js";
 
 // ── equilibria ──────────────────────────────────────────────────────────────────────────────
 
 /** Interior multistart grid (16 × 16 plus cell centres) and samples per edge for the 1-D boundary searches. */
 export const EQUILIBRIUM_GRID_SIZE = 16;
 export const EQUILIBRIUM_EDGE_SAMPLES = 400;
-export const DEFAULT_EQUILIBRIUM_OPTIONS: EquilibriumOptions = { gridSize: EQUILIBRIUM_GRID_SIZE, edgeSamples: EQUILIBRIUM_EDGE_SAMPLES };
+export const DEFAULT_EQUILIBRIUM_OPTIONS: EquilibriumOptions = {
+  gridSize: EQUILIBRIUM_GRID_SIZE,
+  edgeSamples: EQUILIBRIUM_EDGE_SAMPLES,
+};
 /** Accept a root when every residual, relative to that component's scale over the window, is below this. */
 export const ROOT_RESIDUAL_TOL = 1e-9;
 /** Two roots are one when they differ by less than this fraction of the window in every state. */
@@ -253,7 +261,10 @@ export const MANIFOLD_MIN_STEPS = 4000;
 
 // ── basins ──────────────────────────────────────────────────────────────────────────────────
 
-export const DEFAULT_BASIN_OPTIONS: BasinOptions = { resolution: DEFAULT_BASIN_RESOLUTION, coarse: DEFAULT_BASIN_COARSE };
+export const DEFAULT_BASIN_OPTIONS: BasinOptions = {
+  resolution: DEFAULT_BASIN_RESOLUTION,
+  coarse: DEFAULT_BASIN_COARSE,
+};
 /**
  * Basin labels need the attractor reached, not an accurate path: 1e-7 relative and 1e-9 of the
  * window keep every label decided by the verified capture regions.
@@ -284,7 +295,12 @@ export const KERNEL_MIN_STEP = 1e-300;
 
 /** Step lengths in scaled arclength: a first step and a longest one that draw a smooth diagram, an angle that follows turns. */
 export const DEFAULT_STEP_OPTIONS: StepOptions = {
-  initialStep: 0.005, maxStep: 0.02, minStep: 1e-9, maxAngle: 0.15, windowMargin: 0.25, maxSteps: 4000,
+  initialStep: 0.005,
+  maxStep: 0.02,
+  minStep: 1e-9,
+  maxAngle: 0.15,
+  windowMargin: 0.25,
+  maxSteps: 4000,
 };
 /** Evenly spaced seed values across the range, besides the nominal one. */
 export const CONTINUATION_SEED_VALUES = 5;

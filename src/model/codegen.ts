@@ -6,9 +6,20 @@ import type { MathNode } from "mathjs";
  * States read from locals s0, s1; parameters are either literals (bound) or p[j] (parametric).
  */
 const FUNCTIONS: Record<string, string> = {
-  exp: "Math.exp", log: "Math.log", sqrt: "Math.sqrt", abs: "Math.abs", min: "Math.min", max: "Math.max",
-  sin: "Math.sin", cos: "Math.cos", tan: "Math.tan", tanh: "Math.tanh", cosh: "Math.cosh", sinh: "Math.sinh",
-  sign: "Math.sign", pow: "Math.pow",
+  exp: "Math.exp",
+  log: "Math.log",
+  sqrt: "Math.sqrt",
+  abs: "Math.abs",
+  min: "Math.min",
+  max: "Math.max",
+  sin: "Math.sin",
+  cos: "Math.cos",
+  tan: "Math.tan",
+  tanh: "Math.tanh",
+  cosh: "Math.cosh",
+  sinh: "Math.sinh",
+  sign: "Math.sign",
+  pow: "Math.pow",
 };
 
 export interface CodegenOptions {
@@ -47,17 +58,27 @@ export function emitExpression(node: MathNode, options: CodegenOptions = {}): st
       case "OperatorNode": {
         const args = (n.args as MathNode[]).map(emit);
         switch (n.fn) {
-          case "add": return `(${args.join(" + ")})`;
-          case "subtract": return `(${args[0]} - ${args[1]})`;
-          case "multiply": return `(${args.join(" * ")})`;
+          case "add":
+            return `(${args.join(" + ")})`;
+          case "subtract":
+            return `(${args[0]} - ${args[1]})`;
+          case "multiply":
+            return `(${args.join(" * ")})`;
           case "divide": {
             // keys are the denominators as emitted without reciprocals
-            const local = options.reciprocals?.get(options.reciprocals.size ? emitExpression(n.args[1], { parameterValues: options.parameterValues }) : "");
+            const local = options.reciprocals?.get(
+              options.reciprocals.size
+                ? emitExpression(n.args[1], { parameterValues: options.parameterValues })
+                : "",
+            );
             return local ? `(${args[0]} * ${local})` : `(${args[0]} / ${args[1]})`;
           }
-          case "unaryMinus": return `(-${args[0]})`;
-          case "unaryPlus": return args[0];
-          case "pow": return emitPow(n.args[0], n.args[1], emit);
+          case "unaryMinus":
+            return `(-${args[0]})`;
+          case "unaryPlus":
+            return args[0];
+          case "pow":
+            return emitPow(n.args[0], n.args[1], emit);
         }
         throw new Error(`unexpected operator ${n.fn}`);
       }

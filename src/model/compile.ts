@@ -5,7 +5,14 @@ import { buildNameTable, parseCondition, parseExpression } from "./expressions.j
 import { differentiate } from "./derivatives.js";
 import { emitBody, emitExpression, PRELUDE, type CodegenOptions } from "./codegen.js";
 import { expressionToTex, expressionToText, nameToTex } from "./tex.js";
-import type { CompiledCondition, CompiledExpression, GeneratedSource, Model, ParametricRhsFunction, RhsFunction } from "./types.js";
+import type {
+  CompiledCondition,
+  CompiledExpression,
+  GeneratedSource,
+  Model,
+  ParametricRhsFunction,
+  RhsFunction,
+} from "./types.js";
 
 const COMPARISON_TEX = { "<": "<", "<=": "\\le", ">": ">", ">=": "\\ge" } as const;
 
@@ -32,7 +39,11 @@ type NameTable = ReturnType<typeof buildNameTable>;
 type Describe = (node: MathNode) => CompiledExpression;
 
 /** The conditions of assumptions and of condition-decides claims, parsed; their issues go to `issues`. */
-function parseConditions(spec: NormalizedSpec, names: NameTable, issues: SpecIssue[]): { assumptions: ParsedCondition[]; claims: ParsedCondition[] } {
+function parseConditions(
+  spec: NormalizedSpec,
+  names: NameTable,
+  issues: SpecIssue[],
+): { assumptions: ParsedCondition[]; claims: ParsedCondition[] } {
   const assumptions: ParsedCondition[] = [];
   spec.assumptions.forEach((a, index) => {
     if (a.condition === null) return;
@@ -54,8 +65,14 @@ function compileCondition(describe: Describe, { index, text, result }: ParsedCon
   if (!result.ok) throw new Error("unreachable: condition issues returned above");
   const lhs = describe(result.lhs);
   const rhs = describe(result.rhs);
-  const evalSide = instantiate<(p: ArrayLike<number>) => number>(["p"], `return ${emitExpression(result.lhs, {})};`);
-  const evalOther = instantiate<(p: ArrayLike<number>) => number>(["p"], `return ${emitExpression(result.rhs, {})};`);
+  const evalSide = instantiate<(p: ArrayLike<number>) => number>(
+    ["p"],
+    `return ${emitExpression(result.lhs, {})};`,
+  );
+  const evalOther = instantiate<(p: ArrayLike<number>) => number>(
+    ["p"],
+    `return ${emitExpression(result.rhs, {})};`,
+  );
   const op = result.op;
   return {
     assumption: index,

@@ -1,4 +1,12 @@
-import { derivative, simplify, ConstantNode, FunctionNode, OperatorNode, SymbolNode, type MathNode } from "mathjs";
+import {
+  derivative,
+  simplify,
+  ConstantNode,
+  FunctionNode,
+  OperatorNode,
+  SymbolNode,
+  type MathNode,
+} from "mathjs";
 
 /**
  * Symbolic partial derivatives by mathjs. mathjs cannot differentiate min and max and gives
@@ -38,18 +46,29 @@ function raw(node: MathNode, variable: string): MathNode {
     case "OperatorNode": {
       const [a, b] = n.args as MathNode[];
       switch (n.fn) {
-        case "unaryPlus": return raw(a, variable);
-        case "unaryMinus": return op("-", "unaryMinus", [raw(a, variable)]);
-        case "add": return op("+", "add", [raw(a, variable), raw(b, variable)]);
-        case "subtract": return op("-", "subtract", [raw(a, variable), raw(b, variable)]);
+        case "unaryPlus":
+          return raw(a, variable);
+        case "unaryMinus":
+          return op("-", "unaryMinus", [raw(a, variable)]);
+        case "add":
+          return op("+", "add", [raw(a, variable), raw(b, variable)]);
+        case "subtract":
+          return op("-", "subtract", [raw(a, variable), raw(b, variable)]);
         case "multiply":
-          return op("+", "add", [op("*", "multiply", [raw(a, variable), b]), op("*", "multiply", [a, raw(b, variable)])]);
+          return op("+", "add", [
+            op("*", "multiply", [raw(a, variable), b]),
+            op("*", "multiply", [a, raw(b, variable)]),
+          ]);
         case "divide":
           return op("/", "divide", [
-            op("-", "subtract", [op("*", "multiply", [raw(a, variable), b]), op("*", "multiply", [a, raw(b, variable)])]),
+            op("-", "subtract", [
+              op("*", "multiply", [raw(a, variable), b]),
+              op("*", "multiply", [a, raw(b, variable)]),
+            ]),
             op("^", "pow", [b, num(2)]),
           ]);
-        case "pow": return powRule(a, b, variable);
+        case "pow":
+          return powRule(a, b, variable);
       }
       throw new Error(`no derivative rule for operator ${n.fn}`);
     }
@@ -64,7 +83,8 @@ function raw(node: MathNode, variable: string): MathNode {
         let dacc = raw(args[0], variable);
         for (const next of args.slice(1)) {
           const dnext = raw(next, variable);
-          dacc = name === "min" ? call("ifle", [acc, next, dacc, dnext]) : call("ifle", [acc, next, dnext, dacc]);
+          dacc =
+            name === "min" ? call("ifle", [acc, next, dacc, dnext]) : call("ifle", [acc, next, dnext, dacc]);
           acc = call(name, [acc, next]);
         }
         return dacc;
@@ -73,7 +93,9 @@ function raw(node: MathNode, variable: string): MathNode {
       const placeholder = "U__";
       const outer = derivative(call(name, [new SymbolNode(placeholder)]), placeholder, { simplify: false });
       const inner = args[0];
-      const outerAt = outer.transform((m: any) => (m.type === "SymbolNode" && m.name === placeholder ? inner : m));
+      const outerAt = outer.transform((m: any) =>
+        m.type === "SymbolNode" && m.name === placeholder ? inner : m,
+      );
       return op("*", "multiply", [outerAt, raw(inner, variable)]);
     }
   }

@@ -17,8 +17,14 @@ export interface NameTable {
 export function buildNameTable(states: string[], parameters: string[]): NameTable {
   const internal = new Map<string, string>();
   const user = new Map<string, string>();
-  states.forEach((n, i) => { internal.set(n, `S${i}`); user.set(`S${i}`, n); });
-  parameters.forEach((n, i) => { internal.set(n, `P${i}`); user.set(`P${i}`, n); });
+  states.forEach((n, i) => {
+    internal.set(n, `S${i}`);
+    user.set(`S${i}`, n);
+  });
+  parameters.forEach((n, i) => {
+    internal.set(n, `P${i}`);
+    user.set(`P${i}`, n);
+  });
   return { internal, user, states: new Set(states), parameters: new Set(parameters) };
 }
 
@@ -34,7 +40,13 @@ interface CheckContext {
   allowStates: boolean;
 }
 
-function fail(ctx: CheckContext, code: string, message: string, column: number, length = 1): ExpressionResult {
+function fail(
+  ctx: CheckContext,
+  code: string,
+  message: string,
+  column: number,
+  length = 1,
+): ExpressionResult {
   return { ok: false, issue: { code, path: ctx.path, message, source: { text: ctx.text, column, length } } };
 }
 
@@ -49,7 +61,8 @@ function checkStructure(ctx: CheckContext, tokens: Token[]): ExpressionResult | 
     else if (tok.kind === "rparen" && !open.pop())
       return fail(ctx, "unmatched_parenthesis", messages.unmatchedParenthesis(), tok.column);
   }
-  if (open.length) return fail(ctx, "unclosed_parenthesis", messages.unclosedParenthesis(), open[open.length - 1].column);
+  if (open.length)
+    return fail(ctx, "unclosed_parenthesis", messages.unclosedParenthesis(), open[open.length - 1].column);
   const last = tokens[tokens.length - 1];
   if (last.kind === "op" || last.kind === "comma" || last.kind === "compare")
     return fail(ctx, "ends_early", messages.endsEarly(last.text), ctx.text.trimEnd().length + 1);
@@ -63,25 +76,53 @@ function checkTokens(ctx: CheckContext, tokens: Token[]): ExpressionResult | nul
     const next = tokens[k + 1];
     if (tok.kind === "number" && !Number.isFinite(Number(tok.text)))
       return fail(ctx, "number_not_finite", messages.numberNotFinite(tok.text), tok.column, tok.text.length);
-    const endsOperand = tok.kind === "number" || tok.kind === "rparen" || (tok.kind === "name" && next?.kind !== "lparen");
+    const endsOperand =
+      tok.kind === "number" || tok.kind === "rparen" || (tok.kind === "name" && next?.kind !== "lparen");
     if (tok.kind === "name") {
       const isCall = next?.kind === "lparen";
       const declared = ctx.names.internal.has(tok.text);
-      if (isCall && declared) return fail(ctx, "not_a_function", messages.nameIsNotFunction(tok.text), tok.column, tok.text.length);
+      if (isCall && declared)
+        return fail(ctx, "not_a_function", messages.nameIsNotFunction(tok.text), tok.column, tok.text.length);
       if (isCall && !isAllowedFunction(tok.text))
-        return fail(ctx, "function_not_allowed", messages.functionNotAllowed(tok.text, Object.keys(ALLOWED_FUNCTIONS)), tok.column, tok.text.length);
+        return fail(
+          ctx,
+          "function_not_allowed",
+          messages.functionNotAllowed(tok.text, Object.keys(ALLOWED_FUNCTIONS)),
+          tok.column,
+          tok.text.length,
+        );
       if (!isCall && isAllowedFunction(tok.text) && !declared)
-        return fail(ctx, "function_needs_call", messages.functionNeedsCall(tok.text), tok.column, tok.text.length);
+        return fail(
+          ctx,
+          "function_needs_call",
+          messages.functionNeedsCall(tok.text),
+          tok.column,
+          tok.text.length,
+        );
       if (!isCall && !declared) {
-        const message = tok.text === "t" ? messages.timeNotAllowed()
-          : messages.unknownName(tok.text, ctx.allowStates ? "a state or a parameter" : "a parameter");
+        const message =
+          tok.text === "t"
+            ? messages.timeNotAllowed()
+            : messages.unknownName(tok.text, ctx.allowStates ? "a state or a parameter" : "a parameter");
         return fail(ctx, "unknown_name", message, tok.column, tok.text.length);
       }
       if (!isCall && !ctx.allowStates && ctx.names.states.has(tok.text))
-        return fail(ctx, "state_in_condition", messages.stateInCondition(tok.text), tok.column, tok.text.length);
+        return fail(
+          ctx,
+          "state_in_condition",
+          messages.stateInCondition(tok.text),
+          tok.column,
+          tok.text.length,
+        );
     }
     if (endsOperand && next && (next.kind === "number" || next.kind === "name" || next.kind === "lparen"))
-      return fail(ctx, "implicit_multiplication", messages.implicitMultiplication(), next.column, next.text.length);
+      return fail(
+        ctx,
+        "implicit_multiplication",
+        messages.implicitMultiplication(),
+        next.column,
+        next.text.length,
+      );
   }
   return null;
 }
@@ -97,20 +138,32 @@ function checkTree(ctx: CheckContext, root: MathNode, tokens: Token[]): Expressi
     const n = node as MathNode & Record<string, any>;
     switch (n.type) {
       case "ConstantNode":
-        if (typeof n.value !== "number" || !Number.isFinite(n.value)) problem = fail(ctx, "syntax", messages.syntax("only finite numbers are accepted"), 1);
+        if (typeof n.value !== "number" || !Number.isFinite(n.value))
+          problem = fail(ctx, "syntax", messages.syntax("only finite numbers are accepted"), 1);
         return;
       case "SymbolNode":
         return; // names were checked token by token; function names appear here as call targets
       case "ParenthesisNode":
         return;
       case "OperatorNode":
-        if (!OPERATORS.has(n.fn) || n.implicit) problem = fail(ctx, "operator_not_allowed", messages.syntax(`the operator '${n.op}' is not accepted`), 1);
+        if (!OPERATORS.has(n.fn) || n.implicit)
+          problem = fail(
+            ctx,
+            "operator_not_allowed",
+            messages.syntax(`the operator '${n.op}' is not accepted`),
+            1,
+          );
         return;
       case "FunctionNode": {
         const name = n.fn?.name as string | undefined;
         const col = callNames[callsSeen++]?.column ?? 1;
         if (!name || !isAllowedFunction(name)) {
-          problem = fail(ctx, "function_not_allowed", messages.functionNotAllowed(String(name), Object.keys(ALLOWED_FUNCTIONS)), col);
+          problem = fail(
+            ctx,
+            "function_not_allowed",
+            messages.functionNotAllowed(String(name), Object.keys(ALLOWED_FUNCTIONS)),
+            col,
+          );
           return;
         }
         const [lo, hi] = ALLOWED_FUNCTIONS[name];
@@ -150,7 +203,8 @@ export function parseExpression(
 ): ExpressionResult {
   const ctx: CheckContext = { text, path, names, allowStates: options.allowStates ?? true };
   const lexed = lexExpression(text, false);
-  if (!lexed.ok) return fail(ctx, "unexpected_character", messages.unexpectedCharacter(lexed.char), lexed.column);
+  if (!lexed.ok)
+    return fail(ctx, "unexpected_character", messages.unexpectedCharacter(lexed.char), lexed.column);
   const tokenProblem = checkTokens(ctx, lexed.tokens) ?? checkStructure(ctx, lexed.tokens);
   if (tokenProblem) return tokenProblem;
   let root: MathNode;
@@ -159,7 +213,12 @@ export function parseExpression(
   } catch (err) {
     const e = err as Error & { char?: number };
     const detail = e.message.replace(/\s*\(char \d+\)\s*$/, "");
-    return fail(ctx, "syntax", messages.syntax(detail), typeof e.char === "number" ? Math.max(1, Math.min(e.char, text.length)) : 1);
+    return fail(
+      ctx,
+      "syntax",
+      messages.syntax(detail),
+      typeof e.char === "number" ? Math.max(1, Math.min(e.char, text.length)) : 1,
+    );
   }
   const treeProblem = checkTree(ctx, root, lexed.tokens);
   if (treeProblem) return treeProblem;
@@ -169,14 +228,19 @@ export function parseExpression(
 export type Comparison = "<" | "<=" | ">" | ">=";
 
 export type ConditionResult =
-  | { ok: true; lhs: MathNode; rhs: MathNode; op: Comparison }
-  | { ok: false; issue: SpecIssue };
+  { ok: true; lhs: MathNode; rhs: MathNode; op: Comparison } | { ok: false; issue: SpecIssue };
 
 /** Parses an inequality `lhs OP rhs` between parameter expressions. */
 export function parseCondition(text: string, path: (string | number)[], names: NameTable): ConditionResult {
   const lexed = lexExpression(text, true);
   const ctx: CheckContext = { text, path, names, allowStates: false };
-  if (!lexed.ok) return fail(ctx, "unexpected_character", messages.unexpectedCharacter(lexed.char), lexed.column) as ConditionResult;
+  if (!lexed.ok)
+    return fail(
+      ctx,
+      "unexpected_character",
+      messages.unexpectedCharacter(lexed.char),
+      lexed.column,
+    ) as ConditionResult;
   const comparisons = lexed.tokens.filter((t) => t.kind === "compare");
   if (comparisons.length !== 1) {
     const col = comparisons[1]?.column ?? 1;
@@ -189,7 +253,12 @@ export function parseCondition(text: string, path: (string | number)[], names: N
     left.issue.source = { ...left.issue.source!, text };
     return left;
   }
-  const right = parseExpression(" ".repeat(at + cmp.text.length) + text.slice(at + cmp.text.length), path, names, { allowStates: false });
+  const right = parseExpression(
+    " ".repeat(at + cmp.text.length) + text.slice(at + cmp.text.length),
+    path,
+    names,
+    { allowStates: false },
+  );
   if (!right.ok) {
     right.issue.source = { ...right.issue.source!, text };
     return right;

@@ -31,7 +31,11 @@ function compileTrees(nodes: MathNode[], dimension: number): CompiledDerivatives
 
 /** ∂f_i/∂p_j for every state i, with parameter j given by its index in model.parameterNames. */
 export function compileParameterDerivative(model: Model, parameterIndex: number): CompiledDerivatives {
-  if (!Number.isInteger(parameterIndex) || parameterIndex < 0 || parameterIndex >= model.parameterNames.length) {
+  if (
+    !Number.isInteger(parameterIndex) ||
+    parameterIndex < 0 ||
+    parameterIndex >= model.parameterNames.length
+  ) {
     throw new Error(`compileParameterDerivative: no parameter with index ${parameterIndex}`);
   }
   const nodes = model.equations.map((e) => differentiate(e.node, `P${parameterIndex}`));
@@ -43,7 +47,11 @@ export function compileParameterDerivative(model: Model, parameterIndex: number)
  * Jacobian moves with the parameter, for Newton on systems that hold a test function of J.
  */
 export function compileParameterJacobian(model: Model, parameterIndex: number): CompiledDerivatives {
-  if (!Number.isInteger(parameterIndex) || parameterIndex < 0 || parameterIndex >= model.parameterNames.length) {
+  if (
+    !Number.isInteger(parameterIndex) ||
+    parameterIndex < 0 ||
+    parameterIndex >= model.parameterNames.length
+  ) {
     throw new Error(`compileParameterJacobian: no parameter with index ${parameterIndex}`);
   }
   const nodes = model.jacobian.flat().map((e) => differentiate(e.node, `P${parameterIndex}`));
@@ -57,11 +65,13 @@ const keyOf = (i: number, indices: number[]) => `${i}:${[...indices].sort((a, b)
 function secondTrees(model: Model, cache: Map<string, MathNode>): MathNode[] {
   const n = model.dimension;
   const second: MathNode[] = [];
-  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) for (let k = 0; k < n; k++) {
-    const key = keyOf(i, [j, k]);
-    if (!cache.has(key)) cache.set(key, differentiate(model.jacobian[i][j].node, `S${k}`));
-    second.push(cache.get(key)!);
-  }
+  for (let i = 0; i < n; i++)
+    for (let j = 0; j < n; j++)
+      for (let k = 0; k < n; k++) {
+        const key = keyOf(i, [j, k]);
+        if (!cache.has(key)) cache.set(key, differentiate(model.jacobian[i][j].node, `S${k}`));
+        second.push(cache.get(key)!);
+      }
   return second;
 }
 
@@ -81,13 +91,16 @@ export function compileHigherDerivatives(model: Model): HigherDerivatives {
   const cache = new Map<string, MathNode>();
   const second = secondTrees(model, cache);
   const third: MathNode[] = [];
-  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) for (let k = 0; k < n; k++) for (let l = 0; l < n; l++) {
-    const key = keyOf(i, [j, k, l]);
-    if (!cache.has(key)) {
-      const [a, b, c] = [j, k, l].sort((x, y) => x - y);
-      cache.set(key, differentiate(cache.get(keyOf(i, [a, b]))!, `S${c}`));
-    }
-    third.push(cache.get(key)!);
-  }
+  for (let i = 0; i < n; i++)
+    for (let j = 0; j < n; j++)
+      for (let k = 0; k < n; k++)
+        for (let l = 0; l < n; l++) {
+          const key = keyOf(i, [j, k, l]);
+          if (!cache.has(key)) {
+            const [a, b, c] = [j, k, l].sort((x, y) => x - y);
+            cache.set(key, differentiate(cache.get(keyOf(i, [a, b]))!, `S${c}`));
+          }
+          third.push(cache.get(key)!);
+        }
   return { second: compileTrees(second, n), third: compileTrees(third, n) };
 }

@@ -13,7 +13,8 @@ export function withParameters(model: Model, values: ArrayLike<number>): Model {
   }
   const p = Float64Array.from(values);
   p.forEach((v, j) => {
-    if (!Number.isFinite(v)) throw new Error(`withParameters: ${model.parameterNames[j]} = ${v} is not finite`);
+    if (!Number.isFinite(v))
+      throw new Error(`withParameters: ${model.parameterNames[j]} = ${v} is not finite`);
   });
   const rhsParametric = model.rhsParametric;
   const jacobianParametric = model.jacobianParametric;
@@ -26,8 +27,16 @@ export function withParameters(model: Model, values: ArrayLike<number>): Model {
     jacobianAt: (y, out) => jacobianParametric(y, p, out),
     source: {
       ...model.source,
-      rhs: emitBody(model.equations.map((e) => e.node), n, bound),
-      jacobian: emitBody(model.jacobian.flat().map((e) => e.node), n, bound),
+      rhs: emitBody(
+        model.equations.map((e) => e.node),
+        n,
+        bound,
+      ),
+      jacobian: emitBody(
+        model.jacobian.flat().map((e) => e.node),
+        n,
+        bound,
+      ),
     },
   };
 }

@@ -1,9 +1,36 @@
 import type { MathNode } from "mathjs";
 
 const GREEK = new Set([
-  "alpha", "beta", "gamma", "delta", "epsilon", "zeta", "eta", "theta", "iota", "kappa", "lambda", "mu",
-  "nu", "xi", "rho", "sigma", "upsilon", "chi", "psi", "omega", "Gamma", "Delta", "Theta", "Lambda",
-  "Xi", "Sigma", "Upsilon", "Phi", "Psi", "Omega",
+  "alpha",
+  "beta",
+  "gamma",
+  "delta",
+  "epsilon",
+  "zeta",
+  "eta",
+  "theta",
+  "iota",
+  "kappa",
+  "lambda",
+  "mu",
+  "nu",
+  "xi",
+  "rho",
+  "sigma",
+  "upsilon",
+  "chi",
+  "psi",
+  "omega",
+  "Gamma",
+  "Delta",
+  "Theta",
+  "Lambda",
+  "Xi",
+  "Sigma",
+  "Upsilon",
+  "Phi",
+  "Psi",
+  "Omega",
 ]);
 
 /** A user name in TeX: `a12` → a_{12}, `K_max` → K_{\mathrm{max}}, `beta` → \beta. */
@@ -31,7 +58,8 @@ export function expressionToTex(node: MathNode, userNames: Map<string, string>):
         const [a, b, da, db] = n.args.map((x: MathNode) => x.toTex(options));
         return `\\begin{cases} ${da} & ${a} \\le ${b} \\\\ ${db} & \\text{otherwise} \\end{cases}`;
       }
-      if (n.type === "FunctionNode" && n.fn.name === "sign") return `\\operatorname{sgn}\\left(${n.args[0].toTex(options)}\\right)`;
+      if (n.type === "FunctionNode" && n.fn.name === "sign")
+        return `\\operatorname{sgn}\\left(${n.args[0].toTex(options)}\\right)`;
       return undefined;
     },
   });
@@ -41,7 +69,7 @@ export function expressionToTex(node: MathNode, userNames: Map<string, string>):
 export function expressionToText(node: MathNode, userNames: Map<string, string>): string {
   return node.toString({
     parenthesis: "auto",
-    handler: (n: any, options: any) => {
+    handler: (n: any, _options: any) => {
       if (n.type === "SymbolNode" && userNames.has(n.name)) return userNames.get(n.name)!;
       return undefined;
     },

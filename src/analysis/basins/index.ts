@@ -5,11 +5,24 @@ import type { CycleResult } from "../flow/cycles.js";
 import type { Box } from "../numeric/window.js";
 import { findCaptureRegions } from "../flow/capture.js";
 import { generateBasinKernel, type BasinTargets, type KernelSettings } from "./kernel.js";
-import { BASIN_ABSOLUTE_TOL_OF_WIDTH, BASIN_INITIAL_STEP_OF_TIMESCALE, BASIN_MAX_STEPS, BASIN_MAX_STEPS_OUTSIDE, BASIN_RELATIVE_TOL } from "../constants.js";
-import { basinRefinement, encodeRuns, labelFractions, type BasinGrid, type BasinGridOptions } from "./refine.js";
+import {
+  BASIN_ABSOLUTE_TOL_OF_WIDTH,
+  BASIN_INITIAL_STEP_OF_TIMESCALE,
+  BASIN_MAX_STEPS,
+  BASIN_MAX_STEPS_OUTSIDE,
+  BASIN_RELATIVE_TOL,
+} from "../constants.js";
+import {
+  basinRefinement,
+  encodeRuns,
+  labelFractions,
+  type BasinGrid,
+  type BasinGridOptions,
+} from "./refine.js";
 import { labelName, LABEL_BLOW_UP, LABEL_LEFT_WINDOW, LABEL_UNDECIDED } from "./labels.js";
 
-export interface BasinOptions extends BasinGridOptions {}
+/** The basin map's options are those of its grid refinement. */
+export type BasinOptions = BasinGridOptions;
 
 export interface BasinResult {
   attractors: string[];
@@ -36,7 +49,16 @@ export interface BasinPlan {
 }
 
 /** Which attractors a basin map can label, and the kernel that labels them. */
-export function planBasins(model: Model, equilibria: EquilibriumResult[], cycles: CycleResult[], box: Box, horizon: number, timeScale: number, options: BasinOptions, diagnostics: Diagnostic[]): BasinPlan {
+export function planBasins(
+  model: Model,
+  equilibria: EquilibriumResult[],
+  cycles: CycleResult[],
+  box: Box,
+  horizon: number,
+  timeScale: number,
+  options: BasinOptions,
+  diagnostics: Diagnostic[],
+): BasinPlan {
   const regions = findCaptureRegions(model, equilibria, box, 1);
   const attractors: string[] = [];
   const targets: BasinTargets = { attractors, sinks: [], slowSinks: [], cycles: [] };
@@ -44,7 +66,11 @@ export function planBasins(model: Model, equilibria: EquilibriumResult[], cycles
     if (e.stable !== true) continue;
     const region = regions.find((r) => r.equilibrium === e.id);
     if (!region) {
-      diagnostics.push({ severity: "warning", stage: "basins", message: `no capture region could be verified for ${e.id}; its basin is reported as undecided` });
+      diagnostics.push({
+        severity: "warning",
+        stage: "basins",
+        message: `no capture region could be verified for ${e.id}; its basin is reported as undecided`,
+      });
       continue;
     }
     targets.sinks.push({ label: attractors.length, region });
@@ -52,7 +78,10 @@ export function planBasins(model: Model, equilibria: EquilibriumResult[], cycles
   }
   for (const e of equilibria) {
     if (e.hyperbolic) continue;
-    targets.slowSinks.push({ label: attractors.length, center: [e.point[model.stateNames[0]], e.point[model.stateNames[1]]] });
+    targets.slowSinks.push({
+      label: attractors.length,
+      center: [e.point[model.stateNames[0]], e.point[model.stateNames[1]]],
+    });
     attractors.push(e.id);
   }
   for (const c of cycles) {
@@ -87,7 +116,9 @@ export function assembleBasinResult(plan: BasinPlan, grid: BasinGrid): BasinResu
   const legend = legendLabels.map((l) => labelName(l, attractors));
   const indexOf = new Map(legendLabels.map((l, k) => [l, k]));
   const fractions = labelFractions(grid.labels, attractors);
-  const captureRadius = Object.fromEntries(plan.targets.sinks.map((s) => [attractors[s.label], s.region.radius]));
+  const captureRadius = Object.fromEntries(
+    plan.targets.sinks.map((s) => [attractors[s.label], s.region.radius]),
+  );
   return {
     attractors,
     fractions,
@@ -96,7 +127,12 @@ export function assembleBasinResult(plan: BasinPlan, grid: BasinGrid): BasinResu
     coarse: plan.options.coarse,
     trajectories: grid.trajectories,
     uniformTrajectories: grid.resolution * grid.resolution,
-    grid: { nx: grid.resolution, ny: grid.resolution, legend, runs: encodeRuns(grid.labels, (l) => indexOf.get(l)!) },
+    grid: {
+      nx: grid.resolution,
+      ny: grid.resolution,
+      legend,
+      runs: encodeRuns(grid.labels, (l) => indexOf.get(l)!),
+    },
     captureRadius,
   };
 }

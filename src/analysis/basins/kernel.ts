@@ -4,10 +4,22 @@ import type { Box } from "../numeric/window.js";
 import type { CaptureRegion } from "../flow/capture.js";
 import { LABEL_BLOW_UP, LABEL_LEFT_WINDOW, LABEL_UNDECIDED } from "./labels.js";
 import {
-  KERNEL_MIN_STEP, MAX_STEP_OF_HORIZON, NAN_STEP_SHRINK, STEP_ERROR_EXPONENT, STEP_MAX_GROWTH, STEP_MIN_SHRINK, STEP_SAFETY,
+  KERNEL_MIN_STEP,
+  MAX_STEP_OF_HORIZON,
+  NAN_STEP_SHRINK,
+  STEP_ERROR_EXPONENT,
+  STEP_MAX_GROWTH,
+  STEP_MIN_SHRINK,
+  STEP_SAFETY,
 } from "../constants.js";
 import {
-  emitAlgebraicStep, emitCaptureTest, emitCycleCapture, emitHasLeftWindow, emitIsBlowUp, emitIsFarOutside, emitOutsideBy,
+  emitAlgebraicStep,
+  emitCaptureTest,
+  emitCycleCapture,
+  emitHasLeftWindow,
+  emitIsBlowUp,
+  emitIsFarOutside,
+  emitOutsideBy,
 } from "../flow/rules.js";
 
 /**
@@ -51,20 +63,31 @@ const A = [
 const E = [71 / 57600, 0, -71 / 16695, 71 / 1920, -17253 / 339200, 22 / 525, -1 / 40];
 
 /** Kernel code testing each attractor of `targets` after a step inside the window (fate rules 4, 6, 7), and the per-start state they keep. */
-function emitAttractorTests(box: Box, targets: BasinTargets): { sinkTests: string; slowTests: string; cycleTests: string; perStart: string } {
+function emitAttractorTests(
+  box: Box,
+  targets: BasinTargets,
+): { sinkTests: string; slowTests: string; cycleTests: string; perStart: string } {
   const L = literal;
-  const sinkTests = targets.sinks.map(({ label, region }) => {
-    const { setup, test } = emitCaptureTest(region, box);
-    return `{ ${setup}
+  const sinkTests = targets.sinks
+    .map(({ label, region }) => {
+      const { setup, test } = emitCaptureTest(region, box);
+      return `{ ${setup}
         if (${test}) { label = ${label}; break; } }`;
-  }).join("\n      ");
-  const slowTests = targets.slowSinks.map(({ label, center }, i) => `{
+    })
+    .join("\n      ");
+  const slowTests = targets.slowSinks
+    .map(
+      ({ label, center }, i) => `{
         const q0 = (${L(center[0])} - x) * ${L(1 / box.width[0])}, q1 = (${L(center[1])} - y) * ${L(1 / box.width[1])};
         const d = Math.sqrt(q0 * q0 + q1 * q1);
         const v0 = k1a * ${L(1 / box.width[0])}, v1 = k1b * ${L(1 / box.width[1])};
         const heading = (v0 * q0 + v1 * q1) / ((Math.sqrt(v0 * v0 + v1 * v1) * d) || 1);
-        ${emitAlgebraicStep(i, label)} }`).join("\n      ");
-  const cycleTests = targets.cycles.map(({ label, center, sense, radius }, i) => `{
+        ${emitAlgebraicStep(i, label)} }`,
+    )
+    .join("\n      ");
+  const cycleTests = targets.cycles
+    .map(
+      ({ label, center, sense, radius }, i) => `{
         const before = yPrev - ${L(center[1])}, after = y - ${L(center[1])};
         if (${sense === 1 ? "before < 0 && after >= 0" : "before > 0 && after <= 0"}) {
           const w = before / (before - after);
@@ -73,7 +96,9 @@ function emitAttractorTests(box: Box, targets: BasinTargets): { sinkTests: strin
           if (r > 0) {
             ${emitCycleCapture(i, label, radius)}
           }
-        } }`).join("\n      ");
+        } }`,
+    )
+    .join("\n      ");
   const perStart = [
     ...targets.slowSinks.map((_, i) => `let slowCount${i} = 0, slowLast${i} = Infinity;`),
     ...targets.cycles.map((_, i) => `let cycleHits${i} = 0, cycleGap${i} = Infinity;`),
@@ -81,10 +106,19 @@ function emitAttractorTests(box: Box, targets: BasinTargets): { sinkTests: strin
   return { sinkTests, slowTests, cycleTests, perStart };
 }
 
-export function generateBasinKernel(model: Model, box: Box, targets: BasinTargets, settings: KernelSettings): string {
-  const values = Array.from(model.parameterValues);
-  const f0 = emitExpression(model.equations[0].node, { parameterValues: values });
-  const f1 = emitExpression(model.equations[1].node, { parameterValues: values });
+/** Σ c_j k_j of one component ("a": first state, "b": second), zero coefficients left out. */
+function combination(coefficients: number[], comp: "a" | "b"): string {
+  return coefficients
+    .map((c, j) => (c === 0 ? "" : `${literal(c)} * k${j + 1}${comp}`))
+    .filter(Boolean)
+    .join(" + ");
+}
+
+/**
+ * Kernel code for one trial step of size h from (x, y): the Dormand–Prince stages, the 5th-order
+ * solution (xn, yn), its derivative k7, and the scaled error components sa, sb.
+ */
+function emitTrialStep(f0: string, f1: string, atol: [number, number], rtol: number): string {
   const L = literal;
   const stage = (k: number) => {
     // stage k (1-based, k ≥ 2): s = y + h Σ a_kj k_j, then k_k = f(s)
@@ -92,9 +126,30 @@ export function generateBasinKernel(model: Model, box: Box, targets: BasinTarget
       A[k - 1].map((a, j) => (a === 0 ? "" : ` + h * ${L(a)} * k${j + 1}${comp}`)).join("");
     return `{ const s0 = x${terms("a")}, s1 = y${terms("b")}; k${k}a = ${f0}; k${k}b = ${f1}; }`;
   };
+  return `${[2, 3, 4, 5, 6].map(stage).join("\n      ")}
+      const xn = x + h * (${combination(A[6], "a")});
+      const yn = y + h * (${combination(A[6], "b")});
+      { const s0 = xn, s1 = yn; k7a = ${f0}; k7b = ${f1}; }
+      const ea = h * (${combination(E, "a")});
+      const eb = h * (${combination(E, "b")});
+      const sa = ea / (${L(atol[0])} + ${L(rtol)} * Math.max(Math.abs(x), Math.abs(xn)));
+      const sb = eb / (${L(atol[1])} + ${L(rtol)} * Math.max(Math.abs(y), Math.abs(yn)));`;
+}
+
+export function generateBasinKernel(
+  model: Model,
+  box: Box,
+  targets: BasinTargets,
+  settings: KernelSettings,
+): string {
+  const values = Array.from(model.parameterValues);
+  const f0 = emitExpression(model.equations[0].node, { parameterValues: values });
+  const f1 = emitExpression(model.equations[1].node, { parameterValues: values });
+  const L = literal;
   const { sinkTests, slowTests, cycleTests, perStart } = emitAttractorTests(box, targets);
   const [w0, w1] = box.width;
-  const atol0 = settings.absoluteOfWidth * w0, atol1 = settings.absoluteOfWidth * w1;
+  const atol0 = settings.absoluteOfWidth * w0,
+    atol1 = settings.absoluteOfWidth * w1;
   const rtol = settings.relativeTolerance;
   const maxStep = settings.horizon * MAX_STEP_OF_HORIZON;
   return `${PRELUDE}
@@ -112,18 +167,7 @@ return function basinKernel(starts, out) {
       if (!(k1a === k1a && k1b === k1b) || k1a === Infinity || k1a === -Infinity || k1b === Infinity || k1b === -Infinity) { label = outside > 0 ? ${LABEL_LEFT_WINDOW} : ${LABEL_UNDECIDED}; break; }
       if (t >= ${L(settings.horizon)} || steps >= ${settings.maxSteps}) { label = outside > 0 ? ${LABEL_LEFT_WINDOW} : ${LABEL_UNDECIDED}; break; }
       if (t + h > ${L(settings.horizon)}) h = ${L(settings.horizon)} - t;
-      ${stage(2)}
-      ${stage(3)}
-      ${stage(4)}
-      ${stage(5)}
-      ${stage(6)}
-      const xn = x + h * (${A[6].map((a, j) => (a === 0 ? "" : `${L(a)} * k${j + 1}a`)).filter(Boolean).join(" + ")});
-      const yn = y + h * (${A[6].map((a, j) => (a === 0 ? "" : `${L(a)} * k${j + 1}b`)).filter(Boolean).join(" + ")});
-      { const s0 = xn, s1 = yn; k7a = ${f0}; k7b = ${f1}; }
-      const ea = h * (${E.map((e, j) => (e === 0 ? "" : `${L(e)} * k${j + 1}a`)).filter(Boolean).join(" + ")});
-      const eb = h * (${E.map((e, j) => (e === 0 ? "" : `${L(e)} * k${j + 1}b`)).filter(Boolean).join(" + ")});
-      const sa = ea / (${L(atol0)} + ${L(rtol)} * Math.max(Math.abs(x), Math.abs(xn)));
-      const sb = eb / (${L(atol1)} + ${L(rtol)} * Math.max(Math.abs(y), Math.abs(yn)));
+      ${emitTrialStep(f0, f1, [atol0, atol1], rtol)}
       const err = Math.sqrt(0.5 * (sa * sa + sb * sb));
       if (!(err === err)) { h *= ${L(NAN_STEP_SHRINK)}; if (h < ${L(KERNEL_MIN_STEP)}) { label = ${LABEL_UNDECIDED}; break; } continue; }
       // step factor 0.9 err^(-1/5) through exp and log: V8's Math.pow costs several multiplies

@@ -31,16 +31,21 @@ export interface BasinGrid {
  * A generator, so one implementation serves both drivers: it yields each level's starts and
  * receives their labels (from the kernel in this thread, or from a worker pool).
  */
-export function* basinRefinement(box: Box, options: BasinGridOptions): Generator<Float64Array, BasinGrid, Int32Array> {
+export function* basinRefinement(
+  box: Box,
+  options: BasinGridOptions,
+): Generator<Float64Array, BasinGrid, Int32Array> {
   const n = options.resolution;
   const levels = Math.round(Math.log2(n / options.coarse));
-  if (options.coarse * 2 ** levels !== n) throw new Error(`basin resolution ${n} is not coarse ${options.coarse} times a power of two`);
+  if (options.coarse * 2 ** levels !== n)
+    throw new Error(`basin resolution ${n} is not coarse ${options.coarse} times a power of two`);
   const labels = new Int32Array(n * n);
   let trajectories = 0;
   // cells of the current level, as (i, j) of their lower-left fine cell, and their size in fine cells
   let cells: number[] = [];
   let size = n / options.coarse;
-  for (let j = 0; j < options.coarse; j++) for (let i = 0; i < options.coarse; i++) cells.push(i * size, j * size);
+  for (let j = 0; j < options.coarse; j++)
+    for (let i = 0; i < options.coarse; i++) cells.push(i * size, j * size);
 
   for (let level = 0; level <= levels; level++) {
     const count = cells.length / 2;
@@ -52,14 +57,16 @@ export function* basinRefinement(box: Box, options: BasinGridOptions): Generator
     const found: Int32Array = yield starts;
     trajectories += count;
     for (let k = 0; k < count; k++) {
-      const i0 = cells[2 * k], j0 = cells[2 * k + 1];
+      const i0 = cells[2 * k],
+        j0 = cells[2 * k + 1];
       for (let j = j0; j < j0 + size; j++) labels.fill(found[k], j * n + i0, j * n + i0 + size);
     }
     if (level === levels) break;
     const next: number[] = [];
     const half = size / 2;
     for (let k = 0; k < count; k++) {
-      const i0 = cells[2 * k], j0 = cells[2 * k + 1];
+      const i0 = cells[2 * k],
+        j0 = cells[2 * k + 1];
       if (!touchesOtherLabel(labels, n, i0, j0, size)) continue;
       next.push(i0, j0, i0 + half, j0, i0, j0 + half, i0 + half, j0 + half);
     }
@@ -68,15 +75,18 @@ export function* basinRefinement(box: Box, options: BasinGridOptions): Generator
     if (cells.length === 0) break;
   }
   let boundaryCells = 0;
-  for (let j = 0; j < n; j++) for (let i = 0; i < n; i++) if (touchesOtherLabel(labels, n, i, j, 1)) boundaryCells++;
+  for (let j = 0; j < n; j++)
+    for (let i = 0; i < n; i++) if (touchesOtherLabel(labels, n, i, j, 1)) boundaryCells++;
   return { resolution: n, labels, trajectories, boundaryCells };
 }
 
 /** Whether the block [i0, i0+size) × [j0, j0+size) borders (8-neighbourhood) a cell with another label. */
 function touchesOtherLabel(labels: Int32Array, n: number, i0: number, j0: number, size: number): boolean {
   const own = labels[j0 * n + i0];
-  const iLo = Math.max(0, i0 - 1), iHi = Math.min(n - 1, i0 + size);
-  const jLo = Math.max(0, j0 - 1), jHi = Math.min(n - 1, j0 + size);
+  const iLo = Math.max(0, i0 - 1),
+    iHi = Math.min(n - 1, i0 + size);
+  const jLo = Math.max(0, j0 - 1),
+    jHi = Math.min(n - 1, j0 + size);
   for (let j = jLo; j <= jHi; j++) {
     const inside = j >= j0 && j < j0 + size;
     for (let i = iLo; i <= iHi; i++) {
@@ -124,13 +134,19 @@ export function labelFractions(labels: Int32Array, attractors: string[]): Record
   return Object.fromEntries(keys.map((k) => [labelName(k, attractors), counts.get(k)! / labels.length]));
 }
 
-export function runRefinementSync(gen: Generator<Float64Array, BasinGrid, Int32Array>, evaluate: SyncBatchEvaluator): BasinGrid {
+export function runRefinementSync(
+  gen: Generator<Float64Array, BasinGrid, Int32Array>,
+  evaluate: SyncBatchEvaluator,
+): BasinGrid {
   let step = gen.next(undefined as unknown as Int32Array);
   while (!step.done) step = gen.next(evaluate(step.value));
   return step.value;
 }
 
-export async function runRefinementAsync(gen: Generator<Float64Array, BasinGrid, Int32Array>, evaluate: BatchEvaluator): Promise<BasinGrid> {
+export async function runRefinementAsync(
+  gen: Generator<Float64Array, BasinGrid, Int32Array>,
+  evaluate: BatchEvaluator,
+): Promise<BasinGrid> {
   let step = gen.next(undefined as unknown as Int32Array);
   while (!step.done) step = gen.next(await evaluate(step.value));
   return step.value;

@@ -2,7 +2,13 @@ import { Matrix, solve } from "ml-matrix";
 import type { Model } from "../../model/types.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
 import type { Box } from "../numeric/window.js";
-import { CAPTURE_ANGLES, CAPTURE_FIRST_RADIUS, CAPTURE_MIN_RADIUS, CAPTURE_SAFETY, CAPTURE_SHELLS } from "../constants.js";
+import {
+  CAPTURE_ANGLES,
+  CAPTURE_FIRST_RADIUS,
+  CAPTURE_MIN_RADIUS,
+  CAPTURE_SAFETY,
+  CAPTURE_SHELLS,
+} from "../constants.js";
 
 /**
  * A neighbourhood of an attracting equilibrium checked to lie in its basin: the sublevel set
@@ -41,7 +47,12 @@ function lyapunovMatrix(a: number, b: number, c: number, d: number): [number, nu
  * Capture regions for equilibria attracting in the given time direction: sinks for forward
  * time (direction 1), sources for backward time (direction −1).
  */
-export function findCaptureRegions(model: Model, equilibria: EquilibriumResult[], box: Box, direction: 1 | -1): CaptureRegion[] {
+export function findCaptureRegions(
+  model: Model,
+  equilibria: EquilibriumResult[],
+  box: Box,
+  direction: 1 | -1,
+): CaptureRegion[] {
   const regions: CaptureRegion[] = [];
   const y = new Float64Array(2);
   const f = new Float64Array(2);
@@ -51,7 +62,12 @@ export function findCaptureRegions(model: Model, equilibria: EquilibriumResult[]
     if (!attracting) continue;
     const [w0, w1] = box.width;
     const [[a, b], [c, d]] = e.jacobian;
-    const p = lyapunovMatrix(direction * a, direction * b * (w1 / w0), direction * c * (w0 / w1), direction * d);
+    const p = lyapunovMatrix(
+      direction * a,
+      direction * b * (w1 / w0),
+      direction * c * (w0 / w1),
+      direction * d,
+    );
     if (!p) continue;
     const center: [number, number] = [e.point[model.stateNames[0]], e.point[model.stateNames[1]]];
     const minEig = 0.5 * (p[0] + p[3]) - Math.hypot(0.5 * (p[0] - p[3]), p[1]);
@@ -63,15 +79,18 @@ export function findCaptureRegions(model: Model, equilibria: EquilibriumResult[]
       for (const shell of CAPTURE_SHELLS) {
         for (let k = 0; k < CAPTURE_ANGLES && ok; k++) {
           const th = (2 * Math.PI * k) / CAPTURE_ANGLES;
-          const u0 = Math.cos(th), u1 = Math.sin(th);
+          const u0 = Math.cos(th),
+            u1 = Math.sin(th);
           const quad = p[0] * u0 * u0 + 2 * p[1] * u0 * u1 + p[3] * u1 * u1;
           const scale = Math.sqrt((shell * level) / quad);
-          const z0 = u0 * scale, z1 = u1 * scale;
+          const z0 = u0 * scale,
+            z1 = u1 * scale;
           y[0] = center[0] + z0 * w0;
           y[1] = center[1] + z1 * w1;
           model.rhs(y, f);
           if (!Number.isFinite(f[0]) || !Number.isFinite(f[1])) continue;
-          const zd0 = (direction * f[0]) / w0, zd1 = (direction * f[1]) / w1;
+          const zd0 = (direction * f[0]) / w0,
+            zd1 = (direction * f[1]) / w1;
           const vdot = 2 * (z0 * (p[0] * zd0 + p[1] * zd1) + z1 * (p[1] * zd0 + p[3] * zd1));
           if (!(vdot < 0)) ok = false;
         }

@@ -17,8 +17,16 @@ export interface FlowContext {
   tolerances: IntegrationTolerances;
 }
 
-export function buildFlowContext(model: Model, equilibria: EquilibriumResult[], box: Box, direction: 1 | -1): FlowContext {
-  const pointOf = (e: EquilibriumResult): [number, number] => [e.point[model.stateNames[0]], e.point[model.stateNames[1]]];
+export function buildFlowContext(
+  model: Model,
+  equilibria: EquilibriumResult[],
+  box: Box,
+  direction: 1 | -1,
+): FlowContext {
+  const pointOf = (e: EquilibriumResult): [number, number] => [
+    e.point[model.stateNames[0]],
+    e.point[model.stateNames[1]],
+  ];
   const scaled = (v: number[]): [number, number] => {
     const s: [number, number] = [v[0] / box.width[0], v[1] / box.width[1]];
     const n = Math.hypot(s[0], s[1]);
@@ -28,7 +36,8 @@ export function buildFlowContext(model: Model, equilibria: EquilibriumResult[], 
     .filter((e) => e.type === "saddle" && e.eigenvectors.length === 2)
     .map((e) => {
       // eigenvalues are sorted ascending: [stable, unstable]; in backward time they swap roles
-      const [vs, vu] = direction === 1 ? [e.eigenvectors[0], e.eigenvectors[1]] : [e.eigenvectors[1], e.eigenvectors[0]];
+      const [vs, vu] =
+        direction === 1 ? [e.eigenvectors[0], e.eigenvectors[1]] : [e.eigenvectors[1], e.eigenvectors[0]];
       return { id: e.id, center: pointOf(e), stable: scaled(vs), unstable: scaled(vu) };
     });
   return {

@@ -1,12 +1,26 @@
 import type { Model } from "../../model/types.js";
 import type { Recurrence, TrajectoryPath } from "./follow.js";
-import { integrateFlow, tolerancesFor } from "../numeric/integrate.js";
+import { integrateFlow, tolerancesFor, type StepInfo } from "../numeric/integrate.js";
 import type { Box } from "../numeric/window.js";
 import { bisectPredicate } from "../numeric/roots.js";
 import {
-  FAMILY_PROBE, MIN_RETURN_FRACTION, NEUTRAL_MULTIPLIER_TOL, ORBIT_SAMPLES, RETURN_SLOPE_OFFSET, SAME_CYCLE_EXTENT_TOL,
-  SAME_CYCLE_PERIOD_TOL, SECTION_BISECTION_STEPS, SHOOT_ABSOLUTE_TOL_OF_WIDTH, SHOOT_ACCEPT_FACTOR, SHOOT_ESCAPE_WINDOWS,
-  SHOOT_MAX_ITERATIONS, SHOOT_MAX_STEP_OF_PERIOD, SHOOT_MAX_STEPS, SHOOT_PERIODS, SHOOT_RELATIVE_TOL, SHOOT_RESIDUAL_TOL,
+  FAMILY_PROBE,
+  MIN_RETURN_FRACTION,
+  NEUTRAL_MULTIPLIER_TOL,
+  ORBIT_SAMPLES,
+  RETURN_SLOPE_OFFSET,
+  SAME_CYCLE_EXTENT_TOL,
+  SAME_CYCLE_PERIOD_TOL,
+  SECTION_BISECTION_STEPS,
+  SHOOT_ABSOLUTE_TOL_OF_WIDTH,
+  SHOOT_ACCEPT_FACTOR,
+  SHOOT_ESCAPE_WINDOWS,
+  SHOOT_MAX_ITERATIONS,
+  SHOOT_MAX_STEP_OF_PERIOD,
+  SHOOT_MAX_STEPS,
+  SHOOT_PERIODS,
+  SHOOT_RELATIVE_TOL,
+  SHOOT_RESIDUAL_TOL,
   SHOOT_SECANT_OFFSET,
 } from "../constants.js";
 
@@ -34,7 +48,45 @@ interface Return {
   orbit: TrajectoryPath | null;
 }
 
-function returnMap(model: Model, box: Box, center: [number, number], sense: 1 | -1, direction: 1 | -1, r: number, guessPeriod: number, keepOrbit: boolean): Return | null {
+/** The section crossing in [t0, t1] on the interpolant (bisection, then one secant step for the last bits), when it lies on the ray. */
+function sectionCrossing(
+  dense: StepInfo["dense"],
+  t0: number,
+  t1: number,
+  center: [number, number],
+  sense: 1 | -1,
+): { t: number; x0: number } | null {
+  const side = (m: number) => sense * (dense(1, m) - center[1]) >= 0;
+  const { lo: a, hi: b } = bisectPredicate(t0, t1, side, SECTION_BISECTION_STEPS);
+  const fa = dense(1, a) - center[1],
+    fb = dense(1, b) - center[1];
+  const tc = fb !== fa ? b - (fb * (b - a)) / (fb - fa) : b;
+  const x0 = dense(0, tc);
+  return x0 > center[0] ? { t: tc, x0 } : null;
+}
+
+/** The orbit has strayed more than SHOOT_ESCAPE_WINDOWS window widths outside the window. */
+function strayed(box: Box, y: ArrayLike<number>): boolean {
+  for (let k = 0; k < box.lo.length; k++) {
+    if (
+      y[k] < box.lo[k] - SHOOT_ESCAPE_WINDOWS * box.width[k] ||
+      y[k] > box.hi[k] + SHOOT_ESCAPE_WINDOWS * box.width[k]
+    )
+      return true;
+  }
+  return false;
+}
+
+function returnMap(
+  model: Model,
+  box: Box,
+  center: [number, number],
+  sense: 1 | -1,
+  direction: 1 | -1,
+  r: number,
+  guessPeriod: number,
+  keepOrbit: boolean,
+): Return | null {
   const start: [number, number] = [center[0] + r * box.width[0], center[1]];
   const jac = new Float64Array(4);
   const y = new Float64Array(2);
@@ -51,7 +103,8 @@ function returnMap(model: Model, box: Box, center: [number, number], sense: 1 | 
     // ∮ trace J dt as an error-controlled third component: the Floquet multiplier's exponent
     quadrature: {
       integrand: (state) => {
-        y[0] = state[0]; y[1] = state[1];
+        y[0] = state[0];
+        y[1] = state[1];
         model.jacobianAt(y, jac);
         return jac[0] + jac[3];
       },
@@ -62,35 +115,61 @@ function returnMap(model: Model, box: Box, center: [number, number], sense: 1 | 
       const before = prevSecond - center[1];
       const after = end[1] - center[1];
       prevSecond = end[1];
-      const crossed = t1 > MIN_RETURN_FRACTION * guessPeriod && (sense === -1 ? before > 0 && after <= 0 : before < 0 && after >= 0);
-      let hit: { t: number; x0: number } | null = null;
-      if (crossed) {
-        const { lo: a, hi: b } = bisectPredicate(t0, t1, (m) => sense * (dense(1, m) - center[1]) >= 0, SECTION_BISECTION_STEPS);
-        // one secant refinement on the interpolant for the last bits
-        const fa = dense(1, a) - center[1], fb = dense(1, b) - center[1];
-        const tc = fb !== fa ? b - (fb * (b - a)) / (fb - fa) : b;
-        const x0 = dense(0, tc);
-        if (x0 > center[0]) {
-          hit = { t: tc, x0 };
-          stepEnd = tc;
-        }
-      }
+      const crossed =
+        t1 > MIN_RETURN_FRACTION * guessPeriod &&
+        (sense === -1 ? before > 0 && after <= 0 : before < 0 && after >= 0);
+      const hit = crossed ? sectionCrossing(dense, t0, t1, center, sense) : null;
+      if (hit) stepEnd = hit.t;
       if (keepOrbit) {
         while (nextSample <= stepEnd) {
-          samples.t.push(nextSample); samples.x.push(dense(0, nextSample)); samples.y.push(dense(1, nextSample));
+          samples.t.push(nextSample);
+          samples.x.push(dense(0, nextSample));
+          samples.y.push(dense(1, nextSample));
           nextSample += sampleDt;
         }
       }
       if (hit) {
-        if (keepOrbit) { samples.t.push(hit.t); samples.x.push(hit.x0); samples.y.push(center[1]); }
-        result = { r: (hit.x0 - center[0]) / box.width[0], period: hit.t, traceIntegral: dense(2, hit.t), orbit: keepOrbit ? samples : null };
+        if (keepOrbit) {
+          samples.t.push(hit.t);
+          samples.x.push(hit.x0);
+          samples.y.push(center[1]);
+        }
+        result = {
+          r: (hit.x0 - center[0]) / box.width[0],
+          period: hit.t,
+          traceIntegral: dense(2, hit.t),
+          orbit: keepOrbit ? samples : null,
+        };
         return false;
       }
-      const outside = end.some((v, k) => v < box.lo[k] - SHOOT_ESCAPE_WINDOWS * box.width[k] || v > box.hi[k] + SHOOT_ESCAPE_WINDOWS * box.width[k]);
-      return !outside;
+      return !strayed(box, end);
     },
   });
   return result;
+}
+
+/**
+ * Stability from the multiplier; where it is within NEUTRAL_MULTIPLIER_TOL of 1, from the return
+ * map FAMILY_PROBE either side (flat both ways: a family of closed orbits, "neutral").
+ */
+function stabilityOf(
+  multiplier: number,
+  probe: (r: number) => Return | null,
+  rStar: number,
+  direction: 1 | -1,
+): CycleResult["stability"] {
+  if (multiplier < 1 - NEUTRAL_MULTIPLIER_TOL) return "stable";
+  if (multiplier > 1 + NEUTRAL_MULTIPLIER_TOL) return "unstable";
+  const rOut = rStar + FAMILY_PROBE;
+  const rIn = Math.max(rStar - FAMILY_PROBE, rStar / 2);
+  const out = probe(rOut);
+  const inn = probe(rIn);
+  const gOut = out ? out.r - rOut : NaN;
+  const gIn = inn ? inn.r - rIn : NaN;
+  const flat = SHOOT_ACCEPT_FACTOR * SHOOT_RESIDUAL_TOL;
+  if (Math.abs(gOut) < flat && Math.abs(gIn) < flat) return "neutral";
+  if (Math.sign(gOut) === Math.sign(gIn)) return "semi-stable";
+  return direction * gOut < 0 ? "stable" : "unstable";
 }
 
 /**
@@ -99,11 +178,17 @@ function returnMap(model: Model, box: Box, center: [number, number], sense: 1 | 
  * stability from the non-trivial Floquet multiplier (Liouville: exp of the integral of the trace
  * of J over one period, for planar flows).
  */
-export function solvePeriodicOrbit(model: Model, box: Box, recurrence: Recurrence, center: [number, number], direction: 1 | -1): Omit<CycleResult, "id"> | null {
+export function solvePeriodicOrbit(
+  model: Model,
+  box: Box,
+  recurrence: Recurrence,
+  center: [number, number],
+  direction: 1 | -1,
+): Omit<CycleResult, "id"> | null {
   const { sense } = recurrence;
   let period = recurrence.period;
   let r0 = (recurrence.point[0] - center[0]) / box.width[0];
-  let p0 = returnMap(model, box, center, sense, direction, r0, period, false);
+  const p0 = returnMap(model, box, center, sense, direction, r0, period, false);
   if (!p0) return null;
   let g0 = p0.r - r0;
   let r1 = r0 * (1 + SHOOT_SECANT_OFFSET);
@@ -113,7 +198,9 @@ export function solvePeriodicOrbit(model: Model, box: Box, recurrence: Recurrenc
     const g1 = p1.r - r1;
     if (g1 === g0) break;
     const r2 = r1 - (g1 * (r1 - r0)) / (g1 - g0);
-    r0 = r1; g0 = g1; period = p1.period;
+    r0 = r1;
+    g0 = g1;
+    period = p1.period;
     r1 = r2;
     if (!(r1 > 0)) return null;
     if (Math.abs(g0) <= SHOOT_RESIDUAL_TOL) break;
@@ -131,37 +218,41 @@ export function solvePeriodicOrbit(model: Model, box: Box, recurrence: Recurrenc
   const minus = returnMap(model, box, center, sense, direction, rStar - h, final.period, false);
   let slope = plus && minus ? (plus.r - minus.r) / (2 * h) : NaN;
   if (direction === -1 && Number.isFinite(slope)) slope = 1 / slope; // the backward return map is the inverse
-  let stability: CycleResult["stability"];
-  if (multiplier < 1 - NEUTRAL_MULTIPLIER_TOL) stability = "stable";
-  else if (multiplier > 1 + NEUTRAL_MULTIPLIER_TOL) stability = "unstable";
-  else {
-    const out = returnMap(model, box, center, sense, direction, rStar + FAMILY_PROBE, final.period, false);
-    const inn = returnMap(model, box, center, sense, direction, Math.max(rStar - FAMILY_PROBE, rStar / 2), final.period, false);
-    const gOut = out ? out.r - (rStar + FAMILY_PROBE) : NaN;
-    const gIn = inn ? inn.r - Math.max(rStar - FAMILY_PROBE, rStar / 2) : NaN;
-    const flat = SHOOT_ACCEPT_FACTOR * SHOOT_RESIDUAL_TOL;
-    if (Math.abs(gOut) < flat && Math.abs(gIn) < flat) stability = "neutral";
-    else if (Math.sign(gOut) === Math.sign(gIn)) stability = "semi-stable";
-    else stability = direction * gOut < 0 ? "stable" : "unstable";
-  }
+  const probe = (r: number) => returnMap(model, box, center, sense, direction, r, final.period, false);
+  const stability = stabilityOf(multiplier, probe, rStar, direction);
   const names = model.stateNames;
-  const xs = final.orbit.x, ys = final.orbit.y;
+  const xs = final.orbit.x,
+    ys = final.orbit.y;
   return {
     period: final.period,
     stability,
     floquetMultiplier: multiplier,
     returnMapSlope: slope,
-    extent: { [names[0]]: [Math.min(...xs), Math.max(...xs)], [names[1]]: [Math.min(...ys), Math.max(...ys)] },
+    extent: {
+      [names[0]]: [Math.min(...xs), Math.max(...xs)],
+      [names[1]]: [Math.min(...ys), Math.max(...ys)],
+    },
     around: recurrence.around,
-    section: { point: { [names[0]]: center[0] + rStar * box.width[0], [names[1]]: center[1] }, sense: (sense * direction) as 1 | -1 },
+    section: {
+      point: { [names[0]]: center[0] + rStar * box.width[0], [names[1]]: center[1] },
+      sense: (sense * direction) as 1 | -1,
+    },
     residual,
     orbit: final.orbit,
   };
 }
 
 /** Whether two solved orbits are the same closed curve. */
-export function sameCycle(a: Omit<CycleResult, "id">, b: Omit<CycleResult, "id">, box: Box, names: string[]): boolean {
+export function sameCycle(
+  a: Omit<CycleResult, "id">,
+  b: Omit<CycleResult, "id">,
+  box: Box,
+  names: string[],
+): boolean {
   if (Math.abs(a.period - b.period) > SAME_CYCLE_PERIOD_TOL * Math.max(a.period, b.period)) return false;
-  return names.every((n, k) =>
-    Math.abs(a.extent[n][0] - b.extent[n][0]) < SAME_CYCLE_EXTENT_TOL * box.width[k] && Math.abs(a.extent[n][1] - b.extent[n][1]) < SAME_CYCLE_EXTENT_TOL * box.width[k]);
+  return names.every(
+    (n, k) =>
+      Math.abs(a.extent[n][0] - b.extent[n][0]) < SAME_CYCLE_EXTENT_TOL * box.width[k] &&
+      Math.abs(a.extent[n][1] - b.extent[n][1]) < SAME_CYCLE_EXTENT_TOL * box.width[k],
+  );
 }

@@ -5,10 +5,25 @@ import { edgeBeyond, type WindowEdge } from "../numeric/window.js";
 import { bisectPredicate } from "../numeric/roots.js";
 import { scaledDistance } from "../numeric/distance.js";
 import { solve2 } from "../numeric/linear.js";
-import { continueAlgebraicRun, hasArrived, hasLeftWindow, isBlowUp, isFarOutside, outsideBy, type AlgebraicRun } from "./rules.js";
 import {
-  ARRIVAL_DISTANCE, EVENT_BISECTION_STEPS, MAX_STEP_OF_HORIZON, RECURRENCE_MIN_RADIUS, RECURRENCE_TOL, SADDLE_NEAR,
-  SADDLE_UNSTABLE_FRACTION, SLOW_RECURRENCE_CROSSINGS, TRAJECTORY_MAX_STEPS,
+  continueAlgebraicRun,
+  hasArrived,
+  hasLeftWindow,
+  isBlowUp,
+  isFarOutside,
+  outsideBy,
+  type AlgebraicRun,
+} from "./rules.js";
+import {
+  ARRIVAL_DISTANCE,
+  EVENT_BISECTION_STEPS,
+  MAX_STEP_OF_HORIZON,
+  RECURRENCE_MIN_RADIUS,
+  RECURRENCE_TOL,
+  SADDLE_NEAR,
+  SADDLE_UNSTABLE_FRACTION,
+  SLOW_RECURRENCE_CROSSINGS,
+  TRAJECTORY_MAX_STEPS,
 } from "../constants.js";
 
 export { buildFlowContext, type FlowContext } from "./context.js";
@@ -89,7 +104,12 @@ interface RayCrossings {
 }
 
 /** Bisection on the dense interpolant for the first time in [t0, t1] where pred turns true. */
-function locate(dense: StepInfo["dense"], t0: number, t1: number, pred: (x: [number, number]) => boolean): { t: number; x: [number, number] } {
+function locate(
+  dense: StepInfo["dense"],
+  t0: number,
+  t1: number,
+  pred: (x: [number, number]) => boolean,
+): { t: number; x: [number, number] } {
   const { hi } = bisectPredicate(t0, t1, (m) => pred([dense(0, m), dense(1, m)]), EVENT_BISECTION_STEPS);
   return { t: hi, x: [dense(0, hi), dense(1, hi)] };
 }
@@ -108,12 +128,17 @@ class TrajectoryFollower {
   private readonly prev: [number, number];
   private readonly f = new Float64Array(2);
 
-  constructor(private readonly ctx: FlowContext, start: readonly [number, number], private readonly detectRecurrence: boolean) {
+  constructor(
+    private readonly ctx: FlowContext,
+    start: readonly [number, number],
+    private readonly detectRecurrence: boolean,
+  ) {
     this.path = { t: [0], x: [start[0]], y: [start[1]] };
     this.prev = [start[0], start[1]];
     // a start already inside a capture region has arrived (the last region that holds it)
     for (const region of ctx.captures) {
-      if (isCaptured(region, start, ctx.box)) this.fate = { kind: "equilibrium", target: region.equilibrium, t: 0, approach: "linear" };
+      if (isCaptured(region, start, ctx.box))
+        this.fate = { kind: "equilibrium", target: region.equilibrium, t: 0, approach: "linear" };
     }
   }
 
@@ -126,18 +151,27 @@ class TrajectoryFollower {
   step(info: StepInfo): boolean {
     const { t1, y } = info;
     this.steps++;
-    this.path.t.push(t1); this.path.x.push(y[0]); this.path.y.push(y[1]);
+    this.path.t.push(t1);
+    this.path.x.push(y[0]);
+    this.path.y.push(y[1]);
     const out = outsideBy(this.ctx.box, y);
     if (hasLeftWindow(out) && !this.exit) this.exit = this.locateExit(info);
     if (isFarOutside(out)) {
       this.testBlowUp(t1, y);
       return false; // else the fate is the exit, in settle()
     }
-    if (!this.exit && (this.captured(t1, y) || this.onStableManifold(t1, y) || this.approachedAlgebraically(t1, y) || this.recurs(info))) {
+    if (
+      !this.exit &&
+      (this.captured(t1, y) ||
+        this.onStableManifold(t1, y) ||
+        this.approachedAlgebraically(t1, y) ||
+        this.recurs(info))
+    ) {
       return false;
     }
     // outside: integrate on only to tell blow-up from exit
-    this.prev[0] = y[0]; this.prev[1] = y[1];
+    this.prev[0] = y[0];
+    this.prev[1] = y[1];
     return true;
   }
 
@@ -151,7 +185,9 @@ class TrajectoryFollower {
   private testBlowUp(t1: number, y: number[]): void {
     const { model, box } = this.ctx;
     model.rhs(y, this.f);
-    const eFolding = Math.hypot(y[0] / box.width[0], y[1] / box.width[1]) / Math.hypot(this.f[0] / box.width[0], this.f[1] / box.width[1]);
+    const eFolding =
+      Math.hypot(y[0] / box.width[0], y[1] / box.width[1]) /
+      Math.hypot(this.f[0] / box.width[0], this.f[1] / box.width[1]);
     if (isBlowUp(eFolding, t1 - this.exit!.t)) this.fate = { kind: "blow-up", t: t1, point: this.record(y) };
   }
 
@@ -169,7 +205,8 @@ class TrajectoryFollower {
       const d = scaledDistance(y, s.center, box.width);
       if (d >= SADDLE_NEAR) continue;
       // components in the eigenbasis (scaled): solve [vs vu] [α β]ᵀ = z
-      const z0 = (y[0] - s.center[0]) / box.width[0], z1 = (y[1] - s.center[1]) / box.width[1];
+      const z0 = (y[0] - s.center[0]) / box.width[0],
+        z1 = (y[1] - s.center[1]) / box.width[1];
       const beta = solve2(s.stable[0], s.unstable[0], s.stable[1], s.unstable[1], z0, z1)?.[1] ?? NaN;
       if (Math.abs(beta) <= SADDLE_UNSTABLE_FRACTION * d || d < ARRIVAL_DISTANCE) {
         this.fate = { kind: "equilibrium", target: s.id, t: t1, approach: "stable-manifold" };
@@ -185,8 +222,10 @@ class TrajectoryFollower {
     for (const e of this.ctx.nonHyperbolic) {
       const d = scaledDistance(y, e.center, box.width);
       model.rhs(y, this.f);
-      const v0 = (direction * this.f[0]) / box.width[0], v1 = (direction * this.f[1]) / box.width[1];
-      const q0 = (e.center[0] - y[0]) / box.width[0], q1 = (e.center[1] - y[1]) / box.width[1];
+      const v0 = (direction * this.f[0]) / box.width[0],
+        v1 = (direction * this.f[1]) / box.width[1];
+      const q0 = (e.center[0] - y[0]) / box.width[0],
+        q1 = (e.center[1] - y[1]) / box.width[1];
       const heading = (v0 * q0 + v1 * q1) / (Math.hypot(v0, v1) * Math.hypot(q0, q1) || 1);
       const run = continueAlgebraicRun(this.runs.get(e.id) ?? null, d, heading);
       if (!run) {
@@ -243,16 +282,29 @@ class TrajectoryFollower {
     } else if (integration.status === "non-finite") {
       this.fate = { kind: "undecided", t: integration.tEnd, reason: "the right-hand side became non-finite" };
     } else if (integration.status === "step-limit") {
-      this.fate = { kind: "undecided", t: integration.tEnd, reason: "the integrator's step limit was reached" };
+      this.fate = {
+        kind: "undecided",
+        t: integration.tEnd,
+        reason: "the integrator's step limit was reached",
+      };
     } else {
       this.recurrence = findSlowRecurrence(this.rays);
-      if (!this.recurrence) this.fate = { kind: "undecided", t: integration.tEnd, reason: "no equilibrium or periodic orbit was reached by the horizon" };
+      if (!this.recurrence)
+        this.fate = {
+          kind: "undecided",
+          t: integration.tEnd,
+          reason: "no equilibrium or periodic orbit was reached by the horizon",
+        };
     }
   }
 }
 
 /** Follows one trajectory from `start` (state coordinates) in the context's time direction. */
-export function followTrajectory(ctx: FlowContext, start: readonly [number, number], options: FollowOptions): FollowResult {
+export function followTrajectory(
+  ctx: FlowContext,
+  start: readonly [number, number],
+  options: FollowOptions,
+): FollowResult {
   const follower = new TrajectoryFollower(ctx, start, options.detectRecurrence);
   let evaluations = 0;
   if (!follower.fate) {
@@ -267,7 +319,11 @@ export function followTrajectory(ctx: FlowContext, start: readonly [number, numb
     follower.settle(integration);
   }
   const { recurrence, exit, steps } = follower;
-  const fate = follower.fate ?? { kind: "undecided", t: recurrence!.t, reason: "recurrent: periodic-orbit candidate" };
+  const fate = follower.fate ?? {
+    kind: "undecided",
+    t: recurrence!.t,
+    reason: "recurrent: periodic-orbit candidate",
+  };
   return { fate, recurrence, path: thinPath(follower.path, options.maxPathPoints), exit, steps, evaluations };
 }
 

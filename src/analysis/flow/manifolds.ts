@@ -1,6 +1,12 @@
 import type { Model } from "../../model/types.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
-import { followTrajectory, type Fate, type FlowContext, type FollowResult, type TrajectoryPath } from "./follow.js";
+import {
+  followTrajectory,
+  type Fate,
+  type FlowContext,
+  type FollowResult,
+  type TrajectoryPath,
+} from "./follow.js";
 import { settleFate, type CycleRegistry } from "./trajectories.js";
 import type { Box, WindowEdge } from "../numeric/window.js";
 import { MANIFOLD_MIN_STEPS, MANIFOLD_OFFSET } from "../constants.js";
@@ -28,7 +34,12 @@ export interface SeparatrixResult {
 function separatrixFate(fate: Fate, follow: FollowResult, names: string[]): SeparatrixFate {
   if (fate.kind === "equilibrium" || fate.kind === "cycle") return { kind: fate.kind, target: fate.target };
   if (fate.kind === "left-window") return { kind: "left-window", point: fate.point, edge: fate.edge };
-  if (follow.exit) return { kind: "left-window", point: { [names[0]]: follow.exit.point[0], [names[1]]: follow.exit.point[1] }, edge: follow.exit.edge };
+  if (follow.exit)
+    return {
+      kind: "left-window",
+      point: { [names[0]]: follow.exit.point[0], [names[1]]: follow.exit.point[1] },
+      edge: follow.exit.edge,
+    };
   return { kind: "undecided", reason: fate.kind === "blow-up" ? "blow-up" : fate.reason };
 }
 
@@ -62,10 +73,22 @@ export function findSeparatrices(
         const rec = { [names[0]]: start[0], [names[1]]: start[1] };
         const outside = start.some((x, k) => x < box.lo[k] || x > box.hi[k]);
         if (outside) {
-          out.push({ saddle: e.id, manifold, side, start: rec, fate: { kind: "outside-window" }, path: { t: [], x: [], y: [] } });
+          out.push({
+            saddle: e.id,
+            manifold,
+            side,
+            start: rec,
+            fate: { kind: "outside-window" },
+            path: { t: [], x: [], y: [] },
+          });
           continue;
         }
-        const follow = followTrajectory(ctx, start, { horizon, maxPathPoints, detectRecurrence: true, maxStep: horizon / MANIFOLD_MIN_STEPS });
+        const follow = followTrajectory(ctx, start, {
+          horizon,
+          maxPathPoints,
+          detectRecurrence: true,
+          maxStep: horizon / MANIFOLD_MIN_STEPS,
+        });
         const fate = separatrixFate(settleFate(ctx, follow, registry), follow, names);
         // the path starts at the saddle itself so the drawn curve reaches it
         const path = { t: [0, ...follow.path.t], x: [c[0], ...follow.path.x], y: [c[1], ...follow.path.y] };

@@ -2,8 +2,15 @@ import { literal as L } from "../../model/codegen.js";
 import type { Box } from "../numeric/window.js";
 import type { CaptureRegion } from "./capture.js";
 import {
-  ALGEBRAIC_HEADING, ALGEBRAIC_NEAR, ALGEBRAIC_STEPS, ARRIVAL_DISTANCE, BLOWUP_EFOLDING_FRACTION, BLOWUP_WINDOWS,
-  CYCLE_CAPTURE_HITS, CYCLE_CAPTURE_RADIUS, WINDOW_EXIT_SLACK,
+  ALGEBRAIC_HEADING,
+  ALGEBRAIC_NEAR,
+  ALGEBRAIC_STEPS,
+  ARRIVAL_DISTANCE,
+  BLOWUP_EFOLDING_FRACTION,
+  BLOWUP_WINDOWS,
+  CYCLE_CAPTURE_HITS,
+  CYCLE_CAPTURE_RADIUS,
+  WINDOW_EXIT_SLACK,
 } from "../constants.js";
 
 /**
@@ -52,11 +59,14 @@ export const hasLeftWindow = (outside: number) => outside > WINDOW_EXIT_SLACK;
 /** Rule 2: far enough out to test for a blow-up ... */
 export const isFarOutside = (outside: number) => outside > BLOWUP_WINDOWS;
 /** ... and growing faster than exponentially. */
-export const isBlowUp = (eFolding: number, sinceExit: number) => eFolding < BLOWUP_EFOLDING_FRACTION * sinceExit;
+export const isBlowUp = (eFolding: number, sinceExit: number) =>
+  eFolding < BLOWUP_EFOLDING_FRACTION * sinceExit;
 
 /** Kernel code for rule 3: declares `off`, the overshoot of (x, y) beyond the window. */
 export function emitOutsideBy(box: Box): string {
-  const [lo0, lo1] = box.lo, [hi0, hi1] = box.hi, [w0, w1] = box.width;
+  const [lo0, lo1] = box.lo,
+    [hi0, hi1] = box.hi,
+    [w0, w1] = box.width;
   return `const out0 = Math.max((${L(lo0)} - x) * ${L(1 / w0)}, (x - ${L(hi0)}) * ${L(1 / w0)});
       const out1 = Math.max((${L(lo1)} - y) * ${L(1 / w1)}, (y - ${L(hi1)}) * ${L(1 / w1)});
       const off = Math.max(out0, out1);`;
@@ -64,7 +74,8 @@ export function emitOutsideBy(box: Box): string {
 
 export const emitHasLeftWindow = (outside: string) => `${outside} > ${L(WINDOW_EXIT_SLACK)}`;
 export const emitIsFarOutside = (outside: string) => `${outside} > ${L(BLOWUP_WINDOWS)}`;
-export const emitIsBlowUp = (eFolding: string, sinceExit: string) => `${eFolding} < ${L(BLOWUP_EFOLDING_FRACTION)} * (${sinceExit})`;
+export const emitIsBlowUp = (eFolding: string, sinceExit: string) =>
+  `${eFolding} < ${L(BLOWUP_EFOLDING_FRACTION)} * (${sinceExit})`;
 
 /** Rule 4 as kernel code: true when (x, y) lies in the capture region (the follower calls isCaptured). */
 export function emitCaptureTest(region: CaptureRegion, box: Box): { setup: string; test: string } {
@@ -83,7 +94,11 @@ export interface AlgebraicRun {
 }
 
 /** Rule 6, one step: the run continues when near, heading in and closer than before; else it ends (null). */
-export function continueAlgebraicRun(run: AlgebraicRun | null, distance: number, heading: number): AlgebraicRun | null {
+export function continueAlgebraicRun(
+  run: AlgebraicRun | null,
+  distance: number,
+  heading: number,
+): AlgebraicRun | null {
   if (distance < ALGEBRAIC_NEAR && heading > ALGEBRAIC_HEADING && (!run || distance < run.last)) {
     return { last: distance, count: (run?.count ?? 0) + 1 };
   }
@@ -91,7 +106,8 @@ export function continueAlgebraicRun(run: AlgebraicRun | null, distance: number,
 }
 
 /** Rule 6 (and rule 5's floor): arrived after ALGEBRAIC_STEPS closing steps, or within ARRIVAL_DISTANCE. */
-export const hasArrived = (count: number, distance: number) => count >= ALGEBRAIC_STEPS || distance < ARRIVAL_DISTANCE;
+export const hasArrived = (count: number, distance: number) =>
+  count >= ALGEBRAIC_STEPS || distance < ARRIVAL_DISTANCE;
 
 /** Rule 6 as kernel code for slow sink i (run state slowCount${i}, slowLast${i}); `d` and `heading` are in scope. */
 export function emitAlgebraicStep(i: number, label: number): string {

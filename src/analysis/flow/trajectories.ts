@@ -1,7 +1,15 @@
 import type { Model } from "../../model/types.js";
 import type { Diagnostic } from "../../diagnostics/issue.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
-import { buildFlowContext, followTrajectory, thinPath, type Fate, type FlowContext, type FollowResult, type TrajectoryPath } from "./follow.js";
+import {
+  buildFlowContext,
+  followTrajectory,
+  thinPath,
+  type Fate,
+  type FlowContext,
+  type FollowResult,
+  type TrajectoryPath,
+} from "./follow.js";
 import { integrateFlow } from "../numeric/integrate.js";
 import { sameCycle, solvePeriodicOrbit, type CycleResult } from "./cycles.js";
 import type { Box, WindowEdge } from "../numeric/window.js";
@@ -46,7 +54,10 @@ export interface TrajectoryOptions {
 /** Registry of solved periodic orbits, filled in a fixed order so ids are deterministic. */
 export class CycleRegistry {
   readonly cycles: CycleResult[] = [];
-  constructor(private readonly model: Model, private readonly box: Box) {}
+  constructor(
+    private readonly model: Model,
+    private readonly box: Box,
+  ) {}
 
   /** Confirms a recurrence by shooting; returns the id of the (new or known) cycle, or null. */
   resolve(ctx: FlowContext, follow: FollowResult): string | null {
@@ -54,7 +65,10 @@ export class CycleRegistry {
     if (!rec) return null;
     const around = ctx.equilibria.find((e) => e.id === rec.around);
     if (!around) return null;
-    const center: [number, number] = [around.point[this.model.stateNames[0]], around.point[this.model.stateNames[1]]];
+    const center: [number, number] = [
+      around.point[this.model.stateNames[0]],
+      around.point[this.model.stateNames[1]],
+    ];
     const solved = solvePeriodicOrbit(this.model, this.box, rec, center, ctx.direction);
     if (!solved) return null;
     const known = this.cycles.find((c) => sameCycle(c, solved, this.box, this.model.stateNames));
@@ -70,7 +84,11 @@ export function settleFate(ctx: FlowContext, follow: FollowResult, registry: Cyc
   if (!follow.recurrence) return follow.fate;
   const id = registry.resolve(ctx, follow);
   if (id) return { kind: "cycle", target: id, t: follow.recurrence.t };
-  return { kind: "undecided", t: follow.recurrence.t, reason: "recurrent, but no periodic orbit could be solved for" };
+  return {
+    kind: "undecided",
+    t: follow.recurrence.t,
+    reason: "recurrent, but no periodic orbit could be solved for",
+  };
 }
 
 function recordOf(model: Model, x: ArrayLike<number>): Record<string, number> {
@@ -85,7 +103,14 @@ function recordOf(model: Model, x: ArrayLike<number>): Record<string, number> {
  * Grid times the second pass does not reach (it can stop early where the right-hand side turns
  * non-finite) fall back to the chord.
  */
-function denseSeries(model: Model, ctx: FlowContext, start: [number, number], path: TrajectoryPath, horizon: number, points: number): TrajectoryPath {
+function denseSeries(
+  model: Model,
+  ctx: FlowContext,
+  start: [number, number],
+  path: TrajectoryPath,
+  horizon: number,
+  points: number,
+): TrajectoryPath {
   const chord = evenSeries(path, points);
   const tEnd = path.t[path.t.length - 1];
   if (points < 2 || !(tEnd > 0)) return chord;
@@ -97,12 +122,18 @@ function denseSeries(model: Model, ctx: FlowContext, start: [number, number], pa
     maxSteps: TRAJECTORY_MAX_STEPS,
     onStep: ({ t1, dense }) => {
       for (let i = out.t.length; i < points && chord.t[i] <= t1; i++) {
-        out.t.push(chord.t[i]); out.x.push(dense(0, chord.t[i])); out.y.push(dense(1, chord.t[i]));
+        out.t.push(chord.t[i]);
+        out.x.push(dense(0, chord.t[i]));
+        out.y.push(dense(1, chord.t[i]));
       }
       return out.t.length < points;
     },
   });
-  for (let i = out.t.length; i < points; i++) { out.t.push(chord.t[i]); out.x.push(chord.x[i]); out.y.push(chord.y[i]); }
+  for (let i = out.t.length; i < points; i++) {
+    out.t.push(chord.t[i]);
+    out.x.push(chord.x[i]);
+    out.y.push(chord.y[i]);
+  }
   return out;
 }
 
@@ -114,7 +145,8 @@ function evenSeries(path: TrajectoryPath, points: number): TrajectoryPath {
   for (let i = 0; i < points; i++) {
     const t = points === 1 ? 0 : (tEnd * i) / (points - 1);
     while (k < path.t.length - 2 && path.t[k + 1] < t) k++;
-    const t0 = path.t[k], t1 = path.t[Math.min(k + 1, path.t.length - 1)];
+    const t0 = path.t[k],
+      t1 = path.t[Math.min(k + 1, path.t.length - 1)];
     const w = t1 > t0 ? (t - t0) / (t1 - t0) : 0;
     out.t.push(t);
     out.x.push(path.x[k] + w * (path.x[Math.min(k + 1, path.t.length - 1)] - path.x[k]));
@@ -124,10 +156,19 @@ function evenSeries(path: TrajectoryPath, points: number): TrajectoryPath {
 }
 
 /** Each scenario, integrated forward to its horizon or until its fate is decided. */
-export function integrateScenarios(model: Model, ctx: FlowContext, registry: CycleRegistry, options: TrajectoryOptions): ScenarioResult[] {
+export function integrateScenarios(
+  model: Model,
+  ctx: FlowContext,
+  registry: CycleRegistry,
+  options: TrajectoryOptions,
+): ScenarioResult[] {
   return model.spec.scenarios.map((sc) => {
     const start: [number, number] = [sc.initial[model.stateNames[0]], sc.initial[model.stateNames[1]]];
-    const follow = followTrajectory(ctx, start, { horizon: sc.horizon, maxPathPoints: SCENARIO_PATH_POINTS, detectRecurrence: true });
+    const follow = followTrajectory(ctx, start, {
+      horizon: sc.horizon,
+      maxPathPoints: SCENARIO_PATH_POINTS,
+      detectRecurrence: true,
+    });
     const fate = settleFate(ctx, follow, registry);
     const full = follow.path;
     // the fate is decided; the time series still runs to the horizon so a reader sees the approach
@@ -144,7 +185,9 @@ export function integrateScenarios(model: Model, ctx: FlowContext, registry: Cyc
       fate,
       path: thinPath(full, options.maxPathPoints),
       series: denseSeries(model, ctx, start, full, sc.horizon, options.seriesPoints),
-      exit: follow.exit ? { t: follow.exit.t, point: recordOf(model, follow.exit.point), edge: follow.exit.edge } : null,
+      exit: follow.exit
+        ? { t: follow.exit.t, point: recordOf(model, follow.exit.point), edge: follow.exit.edge }
+        : null,
       steps: follow.steps,
     };
   });
@@ -159,7 +202,9 @@ function extendToHorizon(model: Model, ctx: FlowContext, path: TrajectoryPath, h
     maxStep: horizon * MAX_STEP_OF_HORIZON,
     maxSteps: TRAJECTORY_MAX_STEPS,
     onStep: ({ t1, y }) => {
-      path.t.push(t0 + t1); path.x.push(y[0]); path.y.push(y[1]);
+      path.t.push(t0 + t1);
+      path.x.push(y[0]);
+      path.y.push(y[1]);
     },
   });
 }
@@ -167,10 +212,11 @@ function extendToHorizon(model: Model, ctx: FlowContext, path: TrajectoryPath, h
 /** A time scale of the flow: the inverse of the slowest non-zero eigenvalue real part. */
 export function flowTimeScale(equilibria: EquilibriumResult[]): number {
   let slowest = Infinity;
-  for (const e of equilibria) for (const ev of e.eigenvalues) {
-    const rate = Math.hypot(ev.re, ev.im);
-    if (rate > 0) slowest = Math.min(slowest, Math.abs(ev.re) > 0 ? Math.abs(ev.re) : rate);
-  }
+  for (const e of equilibria)
+    for (const ev of e.eigenvalues) {
+      const rate = Math.hypot(ev.re, ev.im);
+      if (rate > 0) slowest = Math.min(slowest, Math.abs(ev.re) > 0 ? Math.abs(ev.re) : rate);
+    }
   return Number.isFinite(slowest) ? 1 / slowest : 1;
 }
 
@@ -179,7 +225,15 @@ export function flowTimeScale(equilibria: EquilibriumResult[]): number {
  * window edge and from a small circle around each repelling equilibrium; backward from a small
  * circle around each stable focus (finds unstable cycles around it).
  */
-export function integratePortrait(model: Model, equilibria: EquilibriumResult[], box: Box, registry: CycleRegistry, options: TrajectoryOptions, horizon: number, diagnostics: Diagnostic[]): PortraitTrajectory[] {
+export function integratePortrait(
+  model: Model,
+  equilibria: EquilibriumResult[],
+  box: Box,
+  registry: CycleRegistry,
+  options: TrajectoryOptions,
+  horizon: number,
+  diagnostics: Diagnostic[],
+): PortraitTrajectory[] {
   const forward = buildFlowContext(model, equilibria, box, 1);
   const backward = buildFlowContext(model, equilibria, box, -1);
   const seeds: { seed: string; ctx: FlowContext; x: [number, number] }[] = [];
@@ -202,18 +256,40 @@ export function integratePortrait(model: Model, equilibria: EquilibriumResult[],
     const c: [number, number] = [e.point[model.stateNames[0]], e.point[model.stateNames[1]]];
     for (let k = 0; k < options.seedsAroundEquilibrium; k++) {
       const th = (2 * Math.PI * (k + 0.25)) / options.seedsAroundEquilibrium;
-      const x: [number, number] = [c[0] + options.seedRadius * box.width[0] * Math.cos(th), c[1] + options.seedRadius * box.width[1] * Math.sin(th)];
+      const x: [number, number] = [
+        c[0] + options.seedRadius * box.width[0] * Math.cos(th),
+        c[1] + options.seedRadius * box.width[1] * Math.sin(th),
+      ];
       if (x[0] < box.lo[0] || x[0] > box.hi[0] || x[1] < box.lo[1] || x[1] > box.hi[1]) continue;
-      seeds.push({ seed: `${repelling ? "around" : "backward around"} ${e.id} #${k + 1}`, ctx: repelling ? forward : backward, x });
+      seeds.push({
+        seed: `${repelling ? "around" : "backward around"} ${e.id} #${k + 1}`,
+        ctx: repelling ? forward : backward,
+        x,
+      });
     }
   }
   const out: PortraitTrajectory[] = [];
   for (const s of seeds) {
-    const follow = followTrajectory(s.ctx, s.x, { horizon, maxPathPoints: options.maxPathPoints, detectRecurrence: true });
+    const follow = followTrajectory(s.ctx, s.x, {
+      horizon,
+      maxPathPoints: options.maxPathPoints,
+      detectRecurrence: true,
+    });
     const fate = settleFate(s.ctx, follow, registry);
-    out.push({ seed: s.seed, direction: s.ctx.direction === 1 ? "forward" : "backward", start: recordOf(model, s.x), fate, path: follow.path });
+    out.push({
+      seed: s.seed,
+      direction: s.ctx.direction === 1 ? "forward" : "backward",
+      start: recordOf(model, s.x),
+      fate,
+      path: follow.path,
+    });
   }
   const undecided = out.filter((t) => t.fate.kind === "undecided").length;
-  if (undecided) diagnostics.push({ severity: "info", stage: "trajectories", message: `${undecided} of ${out.length} portrait trajectories were undecided at the horizon (${horizon.toPrecision(3)})` });
+  if (undecided)
+    diagnostics.push({
+      severity: "info",
+      stage: "trajectories",
+      message: `${undecided} of ${out.length} portrait trajectories were undecided at the horizon (${horizon.toPrecision(3)})`,
+    });
   return out;
 }

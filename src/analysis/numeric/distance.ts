@@ -10,7 +10,11 @@ export function scaledDistance(p: ArrayLike<number>, q: ArrayLike<number>, span:
 }
 
 /** Largest scaled component difference max_k |p_k − q_k| / span_k. */
-export function scaledMaxDistance(p: ArrayLike<number>, q: ArrayLike<number>, span: ArrayLike<number>): number {
+export function scaledMaxDistance(
+  p: ArrayLike<number>,
+  q: ArrayLike<number>,
+  span: ArrayLike<number>,
+): number {
   let d = 0;
   for (let k = 0; k < span.length; k++) d = Math.max(d, Math.abs(p[k] - q[k]) / span[k]);
   return d;
@@ -29,7 +33,11 @@ export interface SegmentDistance {
  * largest scaled component).
  */
 export function segmentDistance(
-  p: ArrayLike<number>, a: ArrayLike<number>, b: ArrayLike<number>, span: ArrayLike<number>, norm: "euclidean" | "max" = "euclidean",
+  p: ArrayLike<number>,
+  a: ArrayLike<number>,
+  b: ArrayLike<number>,
+  span: ArrayLike<number>,
+  norm: "euclidean" | "max" = "euclidean",
 ): SegmentDistance {
   const n = span.length;
   const d = Array.from(span, (s, k) => (b[k] - a[k]) / s);

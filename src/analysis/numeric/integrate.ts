@@ -13,7 +13,11 @@ export interface IntegrationTolerances {
   absolute: number[];
 }
 
-export function tolerancesFor(width: number[], relative = TRAJECTORY_RELATIVE_TOL, absoluteOfWidth = TRAJECTORY_ABSOLUTE_TOL_OF_WIDTH): IntegrationTolerances {
+export function tolerancesFor(
+  width: number[],
+  relative = TRAJECTORY_RELATIVE_TOL,
+  absoluteOfWidth = TRAJECTORY_ABSOLUTE_TOL_OF_WIDTH,
+): IntegrationTolerances {
   return { relative, absolute: width.map((w) => absoluteOfWidth * w) };
 }
 
@@ -50,13 +54,20 @@ export interface IntegrationResult {
   evaluations: number;
 }
 
-export function integrateFlow(rhs: RhsFunction, y0: readonly number[], tEnd: number, options: FlowOptions): IntegrationResult {
+export function integrateFlow(
+  rhs: RhsFunction,
+  y0: readonly number[],
+  tEnd: number,
+  options: FlowOptions,
+): IntegrationResult {
   const quad = options.quadrature;
   const n = y0.length;
   const solver = new Solver(quad ? n + 1 : n);
   solver.denseOutput = true;
   solver.relativeTolerance = options.tolerances.relative;
-  solver.absoluteTolerance = quad ? [...options.tolerances.absolute, quad.absolute] : options.tolerances.absolute;
+  solver.absoluteTolerance = quad
+    ? [...options.tolerances.absolute, quad.absolute]
+    : options.tolerances.absolute;
   solver.maxStepSize = options.maxStep;
   solver.maxSteps = options.maxSteps;
   const buffer = new Float64Array(n);
@@ -77,7 +88,13 @@ export function integrateFlow(rhs: RhsFunction, y0: readonly number[], tEnd: num
   };
   let lastT = 0;
   let lastY = Array.from(y0);
-  const observer = (step: number, t0: number, t1: number, y: number[], dense?: (c: number, x: number) => number) => {
+  const observer = (
+    step: number,
+    t0: number,
+    t1: number,
+    y: number[],
+    dense?: (c: number, x: number) => number,
+  ) => {
     if (nonFinite) return false;
     lastT = t1;
     lastY = y.slice(0, n);
@@ -89,6 +106,17 @@ export function integrateFlow(rhs: RhsFunction, y0: readonly number[], tEnd: num
     return undefined;
   };
   const result = solver.solve(f, 0, quad ? [...y0, 0] : Array.from(y0), tEnd, observer);
-  const status: IntegrationStatus = nonFinite ? "non-finite" : stopped ? "stopped" : result.outcome === 1 ? "step-limit" : "finished";
-  return { status, tEnd: status === "finished" ? result.xEnd : lastT, y: status === "finished" ? result.y : lastY, evaluations };
+  const status: IntegrationStatus = nonFinite
+    ? "non-finite"
+    : stopped
+      ? "stopped"
+      : result.outcome === 1
+        ? "step-limit"
+        : "finished";
+  return {
+    status,
+    tEnd: status === "finished" ? result.xEnd : lastT,
+    y: status === "finished" ? result.y : lastY,
+    evaluations,
+  };
 }

@@ -4,7 +4,14 @@
  * Solves [[a, b], [c, d]] x = (r0, r1) by Cramer's rule: allocation-free in inner loops. Null
  * when the determinant is zero or not finite.
  */
-export function solve2(a: number, b: number, c: number, d: number, r0: number, r1: number): [number, number] | null {
+export function solve2(
+  a: number,
+  b: number,
+  c: number,
+  d: number,
+  r0: number,
+  r1: number,
+): [number, number] | null {
   const det = a * d - b * c;
   if (!Number.isFinite(det) || det === 0) return null;
   return [(d * r0 - b * r1) / det, (-c * r0 + a * r1) / det];

@@ -17,14 +17,22 @@ export interface NewtonSettings {
  * elimination with partial pivoting. Null when F or the step is not finite, the Jacobian is
  * singular, or it has not converged within maxIterations.
  */
-export function newtonSolve(system: SquareSystem, u0: ArrayLike<number>, span: ArrayLike<number>, settings: NewtonSettings): Float64Array | null {
+export function newtonSolve(
+  system: SquareSystem,
+  u0: ArrayLike<number>,
+  span: ArrayLike<number>,
+  settings: NewtonSettings,
+): Float64Array | null {
   const n = u0.length;
   const u = Float64Array.from(u0);
   const r = new Float64Array(n);
   const jac = new Float64Array(n * n);
   for (let it = 0; it < settings.maxIterations; it++) {
     if (!system(u, r, jac) || r.some((v) => !Number.isFinite(v))) return null;
-    const step = solveSmall(jac, Array.from(r, (v) => -v));
+    const step = solveSmall(
+      jac,
+      Array.from(r, (v) => -v),
+    );
     if (!step) return null;
     let size = 0;
     for (let c = 0; c < n; c++) {

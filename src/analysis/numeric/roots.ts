@@ -14,8 +14,14 @@ export interface Bracket {
   hi: number;
 }
 
-export function bisect(lo: number, hi: number, side: (m: number) => BisectionSide, maxSteps: number): Bracket {
-  let a = lo, b = hi;
+export function bisect(
+  lo: number,
+  hi: number,
+  side: (m: number) => BisectionSide,
+  maxSteps: number,
+): Bracket {
+  let a = lo,
+    b = hi;
   for (let step = 0; step < maxSteps; step++) {
     const m = 0.5 * (a + b);
     if (m === a || m === b) break;
@@ -29,6 +35,11 @@ export function bisect(lo: number, hi: number, side: (m: number) => BisectionSid
 }
 
 /** Bisection for the first point of [lo, hi] where `pred` holds (false at lo, true at hi): the bracket's upper end is on the true side. */
-export function bisectPredicate(lo: number, hi: number, pred: (m: number) => boolean, maxSteps: number): Bracket {
+export function bisectPredicate(
+  lo: number,
+  hi: number,
+  pred: (m: number) => boolean,
+  maxSteps: number,
+): Bracket {
   return bisect(lo, hi, (m) => (pred(m) ? "lower" : "upper"), maxSteps);
 }

@@ -27,8 +27,14 @@ export function edgeBeyond(stateNames: readonly string[], box: Box, x: ArrayLike
   for (let k = 0; k < box.lo.length; k++) {
     const below = (box.lo[k] - x[k]) / box.width[k];
     const above = (x[k] - box.hi[k]) / box.width[k];
-    if (below > worst) { worst = below; edge = { state: stateNames[k], value: box.lo[k] }; }
-    if (above > worst) { worst = above; edge = { state: stateNames[k], value: box.hi[k] }; }
+    if (below > worst) {
+      worst = below;
+      edge = { state: stateNames[k], value: box.lo[k] };
+    }
+    if (above > worst) {
+      worst = above;
+      edge = { state: stateNames[k], value: box.hi[k] };
+    }
   }
   return edge;
 }
@@ -39,11 +45,12 @@ export function componentScales(model: Model, box: Box): number[] {
   const f = new Float64Array(2);
   const scale = [0, 0];
   const n = COMPONENT_SCALE_INTERVALS;
-  for (let a = 0; a <= n; a++) for (let b = 0; b <= n; b++) {
-    y[0] = box.lo[0] + (box.width[0] * a) / n;
-    y[1] = box.lo[1] + (box.width[1] * b) / n;
-    model.rhs(y, f);
-    for (let k = 0; k < 2; k++) if (Number.isFinite(f[k])) scale[k] = Math.max(scale[k], Math.abs(f[k]));
-  }
+  for (let a = 0; a <= n; a++)
+    for (let b = 0; b <= n; b++) {
+      y[0] = box.lo[0] + (box.width[0] * a) / n;
+      y[1] = box.lo[1] + (box.width[1] * b) / n;
+      model.rhs(y, f);
+      for (let k = 0; k < 2; k++) if (Number.isFinite(f[k])) scale[k] = Math.max(scale[k], Math.abs(f[k]));
+    }
   return scale.map((s) => (s > 0 ? s : 1));
 }

@@ -4,7 +4,13 @@ import { differentiate } from "../../model/derivatives.js";
 import { emitExpression, PRELUDE } from "../../model/codegen.js";
 import { expressionToTex, expressionToText } from "../../model/tex.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
-import { FORM_SCREEN_FACTORS, FORM_SCREEN_REL_TOL, MAX_POLYNOMIAL_DEGREE, ROOT_MATCH_REL_TOL, THRESHOLD_CHECK_REL_TOL } from "../constants.js";
+import {
+  FORM_SCREEN_FACTORS,
+  FORM_SCREEN_REL_TOL,
+  MAX_POLYNOMIAL_DEGREE,
+  ROOT_MATCH_REL_TOL,
+  THRESHOLD_CHECK_REL_TOL,
+} from "../constants.js";
 
 /**
  * Symbolic invasion conditions. Where f_i = x_i g_i (the axis x_i = 0 is invariant: population
@@ -99,7 +105,10 @@ function polynomialRoots(expr: MathNode, variable: string): MathNode[] | null {
   ];
 }
 
-export function findInvasionConditions(model: Model, equilibria: EquilibriumResult[]): InvasionConditionResult[] {
+export function findInvasionConditions(
+  model: Model,
+  equilibria: EquilibriumResult[],
+): InvasionConditionResult[] {
   const out: InvasionConditionResult[] = [];
   const names = model.stateNames;
   const p = model.parameterValues;
@@ -123,23 +132,42 @@ export function findInvasionConditions(model: Model, equilibria: EquilibriumResu
       } else {
         const restricted = substitute(model.equations[j].node, symbol(i), new ConstantNode(spec.min));
         const roots = polynomialRoots(restricted, symbol(j)) ?? [];
-        const match = roots.find((r) => Math.abs(evaluateAt(r, p) - residentValue) <= ROOT_MATCH_REL_TOL * width);
+        const match = roots.find(
+          (r) => Math.abs(evaluateAt(r, p) - residentValue) <= ROOT_MATCH_REL_TOL * width,
+        );
         if (match) {
           rateNode = substitute(onAxis, symbol(j), match);
-          resident = { state: names[j], text: expressionToText(match, userNames(model)), tex: expressionToTex(match, userNames(model)), closedForm: true };
+          resident = {
+            state: names[j],
+            text: expressionToText(match, userNames(model)),
+            tex: expressionToTex(match, userNames(model)),
+            closedForm: true,
+          };
         } else {
-          resident = { state: names[j], text: String(residentValue), tex: String(residentValue), closedForm: false };
+          resident = {
+            state: names[j],
+            text: String(residentValue),
+            tex: String(residentValue),
+            closedForm: false,
+          };
         }
       }
       let simplified: MathNode;
-      try { simplified = simplify(rateNode); } catch { simplified = rateNode; }
+      try {
+        simplified = simplify(rateNode);
+      } catch {
+        simplified = rateNode;
+      }
       const value = evaluateAt(simplified, p, [e.point[names[0]], e.point[names[1]]]);
       const numericEigenvalue = e.jacobian[i][i];
       out.push({
         equilibrium: e.id,
         absent: names[i],
         resident,
-        rate: { text: expressionToText(simplified, userNames(model)), tex: expressionToTex(simplified, userNames(model)) },
+        rate: {
+          text: expressionToText(simplified, userNames(model)),
+          tex: expressionToTex(simplified, userNames(model)),
+        },
         value,
         numericEigenvalue,
         invades: value > 0,
@@ -157,13 +185,17 @@ function userNames(model: Model): Map<string, string> {
   return m;
 }
 
-const mentions = (node: MathNode, sym: string) => node.filter((n: any) => n.type === "SymbolNode" && n.name === sym).length > 0;
+const mentions = (node: MathNode, sym: string) =>
+  node.filter((n: any) => n.type === "SymbolNode" && n.name === sym).length > 0;
 
 /** Whether the rate, as a function of parameter k alone, is affine in u(p): equal difference quotients at the screen's values. */
 function affineIn(rateAt: CompiledNode, p: ArrayLike<number>, k: number, u: (v: number) => number): boolean {
   const base = p[k] === 0 ? 1 : p[k];
   const q = Float64Array.from(p);
-  const [first, ...rest] = FORM_SCREEN_FACTORS.map((f) => { q[k] = base * f; return { w: u(q[k]), g: rateAt(q, 0, 0) }; });
+  const [first, ...rest] = FORM_SCREEN_FACTORS.map((f) => {
+    q[k] = base * f;
+    return { w: u(q[k]), g: rateAt(q, 0, 0) };
+  });
   const slopes = rest.map((pt) => (pt.g - first.g) / (pt.w - first.w));
   if (!slopes.every(Number.isFinite)) return false;
   const size = Math.max(...slopes.map(Math.abs), Math.abs(first.g), Number.MIN_VALUE);
@@ -191,8 +223,12 @@ function linearThresholds(model: Model, rate: MathNode): ParameterThreshold[] {
       slope = derivative(rate, sym);
       threshold = linear
         ? simplify(`-(${substitute(rate, sym, new ConstantNode(0)).toString()}) / (${slope.toString()})`)
-        : simplify(`(${sym})^2 * (${slope.toString()}) / (${rate.toString()} + ${sym} * (${slope.toString()}))`);
-    } catch { return; }
+        : simplify(
+            `(${sym})^2 * (${slope.toString()}) / (${rate.toString()} + ${sym} * (${slope.toString()}))`,
+          );
+    } catch {
+      return;
+    }
     if (mentions(threshold, sym)) return;
     // d rate / dp has one sign: B, or −B/p²
     const rising = evaluateAt(slope, p);
@@ -200,7 +236,13 @@ function linearThresholds(model: Model, rate: MathNode): ParameterThreshold[] {
     if (!Number.isFinite(value) || !(rising !== 0)) return;
     const q = Float64Array.from(p);
     q[k] = value;
-    if (!(Math.abs(rateAt(q, 0, 0)) <= THRESHOLD_CHECK_REL_TOL * Math.max(Math.abs(nominalRate), Math.abs(rising * (value - p[k]))))) return;
+    if (
+      !(
+        Math.abs(rateAt(q, 0, 0)) <=
+        THRESHOLD_CHECK_REL_TOL * Math.max(Math.abs(nominalRate), Math.abs(rising * (value - p[k])))
+      )
+    )
+      return;
     out.push({
       parameter: name,
       text: expressionToText(threshold, userNames(model)),

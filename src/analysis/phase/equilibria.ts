@@ -5,9 +5,20 @@ import { componentScales, windowOf, type Box } from "../numeric/window.js";
 import { bisect } from "../numeric/roots.js";
 import { solve2 } from "../numeric/linear.js";
 import {
-  DEDUP_REL_TOL, DEFAULT_EQUILIBRIUM_OPTIONS, EDGE_BISECTION_MAX_ITERATIONS, MAX_EQUILIBRIA, NEWTON_MAX_ITERATIONS,
-  NEWTON_MIN_DAMPING, NEWTON_POLISH_STALLS, NEWTON_ROAM, NEWTON_STEP_TOL, NEWTON_SUFFICIENT_DECREASE,
-  POLISH_RESIDUAL_FRACTION, ROOT_RESIDUAL_TOL, SNAP_REL_TOL, WINDOW_SLACK,
+  DEDUP_REL_TOL,
+  DEFAULT_EQUILIBRIUM_OPTIONS,
+  EDGE_BISECTION_MAX_ITERATIONS,
+  MAX_EQUILIBRIA,
+  NEWTON_MAX_ITERATIONS,
+  NEWTON_MIN_DAMPING,
+  NEWTON_POLISH_STALLS,
+  NEWTON_ROAM,
+  NEWTON_STEP_TOL,
+  NEWTON_SUFFICIENT_DECREASE,
+  POLISH_RESIDUAL_FRACTION,
+  ROOT_RESIDUAL_TOL,
+  SNAP_REL_TOL,
+  WINDOW_SLACK,
 } from "../constants.js";
 
 export interface EquilibriumResult extends StabilityResult {
@@ -35,7 +46,8 @@ interface Workspace {
 }
 
 function scaledResidual(model: Model, x: ArrayLike<number>, fScale: number[], ws: Workspace): number {
-  ws.y[0] = x[0]; ws.y[1] = x[1];
+  ws.y[0] = x[0];
+  ws.y[1] = x[1];
   model.rhs(ws.y, ws.f);
   const r0 = Math.abs(ws.f[0]) / fScale[0];
   const r1 = Math.abs(ws.f[1]) / fScale[1];
@@ -43,13 +55,20 @@ function scaledResidual(model: Model, x: ArrayLike<number>, fScale: number[], ws
 }
 
 /** Damped Newton with backtracking on the scaled residual; returns the root or null. */
-function dampedNewton(model: Model, start: [number, number], box: Box, fScale: number[], ws: Workspace): [number, number] | null {
+function dampedNewton(
+  model: Model,
+  start: [number, number],
+  box: Box,
+  fScale: number[],
+  ws: Workspace,
+): [number, number] | null {
   let x: [number, number] = [start[0], start[1]];
   let r = scaledResidual(model, x, fScale, ws);
   if (!Number.isFinite(r)) return null;
   let stalled = 0;
   for (let it = 0; it < NEWTON_MAX_ITERATIONS; it++) {
-    ws.y[0] = x[0]; ws.y[1] = x[1];
+    ws.y[0] = x[0];
+    ws.y[1] = x[1];
     model.rhs(ws.y, ws.f);
     model.jacobianAt(ws.y, ws.j);
     const [f0, f1] = [ws.f[0], ws.f[1]];
@@ -62,7 +81,10 @@ function dampedNewton(model: Model, start: [number, number], box: Box, fScale: n
     while (lambda >= NEWTON_MIN_DAMPING) {
       const trial: [number, number] = [x[0] + lambda * dx0, x[1] + lambda * dx1];
       const rt = scaledResidual(model, trial, fScale, ws);
-      if (rt < r * (1 - NEWTON_SUFFICIENT_DECREASE * lambda) || (r < ROOT_RESIDUAL_TOL * POLISH_RESIDUAL_FRACTION && rt <= r)) {
+      if (
+        rt < r * (1 - NEWTON_SUFFICIENT_DECREASE * lambda) ||
+        (r < ROOT_RESIDUAL_TOL * POLISH_RESIDUAL_FRACTION && rt <= r)
+      ) {
         x = trial;
         const improved = rt < r;
         r = rt;
@@ -99,22 +121,38 @@ function rootsAlong(g: (t: number) => number, lo: number, hi: number, samples: n
     if (gs[k] === 0) roots.push(ts[k]);
     if (k < samples && Number.isFinite(gs[k]) && Number.isFinite(gs[k + 1]) && gs[k] * gs[k + 1] < 0) {
       let ga = gs[k];
-      const { lo, hi } = bisect(ts[k], ts[k + 1], (m) => {
-        const gm = g(m);
-        if (gm === 0) return "root";
-        if (gm * ga < 0) return "lower";
-        ga = gm;
-        return "upper";
-      }, EDGE_BISECTION_MAX_ITERATIONS);
+      const { lo, hi } = bisect(
+        ts[k],
+        ts[k + 1],
+        (m) => {
+          const gm = g(m);
+          if (gm === 0) return "root";
+          if (gm * ga < 0) return "lower";
+          ga = gm;
+          return "upper";
+        },
+        EDGE_BISECTION_MAX_ITERATIONS,
+      );
       roots.push(0.5 * (lo + hi));
     }
     // a local minimum of |g| that nearly touches zero: a double root bisection cannot see
-    if (k > 0 && k < samples && Math.abs(gs[k]) < Math.abs(gs[k - 1]) && Math.abs(gs[k]) < Math.abs(gs[k + 1])) roots.push(ts[k]);
+    if (
+      k > 0 &&
+      k < samples &&
+      Math.abs(gs[k]) < Math.abs(gs[k - 1]) &&
+      Math.abs(gs[k]) < Math.abs(gs[k + 1])
+    )
+      roots.push(ts[k]);
   }
   return roots;
 }
 
-function boundaryStarts(model: Model, box: Box, fScale: number[], options: EquilibriumOptions): [number, number][] {
+function boundaryStarts(
+  model: Model,
+  box: Box,
+  fScale: number[],
+  options: EquilibriumOptions,
+): [number, number][] {
   const starts: [number, number][] = [];
   const y = new Float64Array(2);
   const f = new Float64Array(2);
@@ -131,7 +169,10 @@ function boundaryStarts(model: Model, box: Box, fScale: number[], options: Equil
       model.rhs(y, f);
     };
     for (const component of [0, 1]) {
-      const g = (t: number) => { at(t); return f[component] / fScale[component]; };
+      const g = (t: number) => {
+        at(t);
+        return f[component] / fScale[component];
+      };
       for (const t of rootsAlong(g, box.lo[free], box.hi[free], options.edgeSamples)) {
         const p: [number, number] = [0, 0];
         p[fixed] = value;
@@ -144,19 +185,44 @@ function boundaryStarts(model: Model, box: Box, fScale: number[], options: Equil
 }
 
 /** Snap coordinates that sit at a bound to the bound exactly, when the residual allows. */
-function snapToBounds(model: Model, x: [number, number], box: Box, fScale: number[], ws: Workspace): [number, number] {
+function snapToBounds(
+  model: Model,
+  x: [number, number],
+  box: Box,
+  fScale: number[],
+  ws: Workspace,
+): [number, number] {
   const out: [number, number] = [x[0], x[1]];
   for (let k = 0; k < 2; k++) {
     for (const bound of [box.lo[k], box.hi[k], 0]) {
       if (Math.abs(out[k] - bound) <= SNAP_REL_TOL * box.width[k] && out[k] !== bound) {
         const trial: [number, number] = [out[0], out[1]];
         trial[k] = bound;
-        if (scaledResidual(model, trial, fScale, ws) <= Math.max(scaledResidual(model, out, fScale, ws), ROOT_RESIDUAL_TOL * POLISH_RESIDUAL_FRACTION)) out[k] = bound;
+        if (
+          scaledResidual(model, trial, fScale, ws) <=
+          Math.max(scaledResidual(model, out, fScale, ws), ROOT_RESIDUAL_TOL * POLISH_RESIDUAL_FRACTION)
+        )
+          out[k] = bound;
       }
     }
     out[k] = Math.min(box.hi[k], Math.max(box.lo[k], out[k]));
   }
   return out;
+}
+
+/** The interior multistart grid (g × g cells, corners included) and its cell centres. */
+function gridStarts(box: Box, g: number): [number, number][] {
+  const starts: [number, number][] = [];
+  for (let a = 0; a <= g; a++)
+    for (let b = 0; b <= g; b++) {
+      starts.push([box.lo[0] + (box.width[0] * a) / g, box.lo[1] + (box.width[1] * b) / g]);
+    }
+  // offset grid: cell centres, so symmetric models do not put every start on a nullcline
+  for (let a = 0; a < g; a++)
+    for (let b = 0; b < g; b++) {
+      starts.push([box.lo[0] + (box.width[0] * (a + 0.5)) / g, box.lo[1] + (box.width[1] * (b + 0.5)) / g]);
+    }
+  return starts;
 }
 
 /**
@@ -174,29 +240,31 @@ export function findEquilibria(
   const box = windowOf(model);
   const fScale = componentScales(model, box);
   const ws: Workspace = { f: new Float64Array(2), j: new Float64Array(4), y: new Float64Array(2) };
-  const starts: [number, number][] = [];
-  const g = options.gridSize;
-  for (let a = 0; a <= g; a++) for (let b = 0; b <= g; b++) {
-    starts.push([box.lo[0] + (box.width[0] * a) / g, box.lo[1] + (box.width[1] * b) / g]);
-  }
-  // offset grid: cell centres, so symmetric models do not put every start on a nullcline
-  for (let a = 0; a < g; a++) for (let b = 0; b < g; b++) {
-    starts.push([box.lo[0] + (box.width[0] * (a + 0.5)) / g, box.lo[1] + (box.width[1] * (b + 0.5)) / g]);
-  }
-  starts.push(...boundaryStarts(model, box, fScale, options));
+  const starts = [...gridStarts(box, options.gridSize), ...boundaryStarts(model, box, fScale, options)];
 
   const found: { x: [number, number]; residual: number }[] = [];
   for (const start of starts) {
     const root = dampedNewton(model, start, box, fScale, ws);
     if (!root) continue;
-    const inside = [0, 1].every((k) => root[k] >= box.lo[k] - WINDOW_SLACK * box.width[k] && root[k] <= box.hi[k] + WINDOW_SLACK * box.width[k]);
+    const inside = [0, 1].every(
+      (k) =>
+        root[k] >= box.lo[k] - WINDOW_SLACK * box.width[k] &&
+        root[k] <= box.hi[k] + WINDOW_SLACK * box.width[k],
+    );
     if (!inside) continue;
     const x = snapToBounds(model, root, box, fScale, ws);
     const residual = scaledResidual(model, x, fScale, ws);
     if (!(residual < ROOT_RESIDUAL_TOL)) continue;
-    const same = found.find((e) => Math.abs(e.x[0] - x[0]) <= DEDUP_REL_TOL * box.width[0] && Math.abs(e.x[1] - x[1]) <= DEDUP_REL_TOL * box.width[1]);
+    const same = found.find(
+      (e) =>
+        Math.abs(e.x[0] - x[0]) <= DEDUP_REL_TOL * box.width[0] &&
+        Math.abs(e.x[1] - x[1]) <= DEDUP_REL_TOL * box.width[1],
+    );
     if (same) {
-      if (residual < same.residual) { same.x = x; same.residual = residual; }
+      if (residual < same.residual) {
+        same.x = x;
+        same.residual = residual;
+      }
       continue;
     }
     found.push({ x, residual });
@@ -210,15 +278,23 @@ export function findEquilibria(
     return 0;
   });
   if (found.length > MAX_EQUILIBRIA) {
-    diagnostics.push({ severity: "warning", stage: "equilibria", message: `more than ${MAX_EQUILIBRIA} equilibria found: the model may have a curve of equilibria; only the first ${MAX_EQUILIBRIA} are listed` });
+    diagnostics.push({
+      severity: "warning",
+      stage: "equilibria",
+      message: `more than ${MAX_EQUILIBRIA} equilibria found: the model may have a curve of equilibria; only the first ${MAX_EQUILIBRIA} are listed`,
+    });
     found.length = MAX_EQUILIBRIA;
   }
 
   const states = model.spec.states;
   return found.map((e, k) => {
-    ws.y[0] = e.x[0]; ws.y[1] = e.x[1];
+    ws.y[0] = e.x[0];
+    ws.y[1] = e.x[1];
     model.jacobianAt(ws.y, ws.j);
-    const jacobian = [[ws.j[0], ws.j[1]], [ws.j[2], ws.j[3]]];
+    const jacobian = [
+      [ws.j[0], ws.j[1]],
+      [ws.j[2], ws.j[3]],
+    ];
     const boundaryStates = states.filter((s, i) => e.x[i] === s.min || e.x[i] === s.max).map((s) => s.name);
     return {
       id: `E${k + 1}`,

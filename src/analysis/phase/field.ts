@@ -34,9 +34,13 @@ export interface DirectionFieldResult {
   missing: { index: number; reason: "non-finite" | "rest" }[];
 }
 
-export function computeDirectionField(model: Model, options: DirectionFieldOptions = DEFAULT_DIRECTION_FIELD_OPTIONS): DirectionFieldResult {
+export function computeDirectionField(
+  model: Model,
+  options: DirectionFieldOptions = DEFAULT_DIRECTION_FIELD_OPTIONS,
+): DirectionFieldResult {
   const { nx, ny } = options;
-  if (!(Number.isInteger(nx) && Number.isInteger(ny) && nx >= 1 && ny >= 1)) throw new Error(`invalid direction field grid ${nx} × ${ny}`);
+  if (!(Number.isInteger(nx) && Number.isInteger(ny) && nx >= 1 && ny >= 1))
+    throw new Error(`invalid direction field grid ${nx} × ${ny}`);
   const box = windowOf(model);
   const x = Array.from({ length: nx }, (_, i) => box.lo[0] + (box.width[0] * (i + 0.5)) / nx);
   const y = Array.from({ length: ny }, (_, j) => box.lo[1] + (box.width[1] * (j + 0.5)) / ny);
@@ -46,27 +50,32 @@ export function computeDirectionField(model: Model, options: DirectionFieldOptio
   const missing: DirectionFieldResult["missing"] = [];
   const state = new Float64Array(2);
   const f = new Float64Array(2);
-  for (let j = 0; j < ny; j++) for (let i = 0; i < nx; i++) {
-    state[0] = x[i];
-    state[1] = y[j];
-    model.rhs(state, f);
-    const index = j * nx + i;
-    if (!Number.isFinite(f[0]) || !Number.isFinite(f[1])) {
-      u.push(null); v.push(null); magnitude.push(null);
-      missing.push({ index, reason: "non-finite" });
-      continue;
+  for (let j = 0; j < ny; j++)
+    for (let i = 0; i < nx; i++) {
+      state[0] = x[i];
+      state[1] = y[j];
+      model.rhs(state, f);
+      const index = j * nx + i;
+      if (!Number.isFinite(f[0]) || !Number.isFinite(f[1])) {
+        u.push(null);
+        v.push(null);
+        magnitude.push(null);
+        missing.push({ index, reason: "non-finite" });
+        continue;
+      }
+      const s0 = f[0] / box.width[0],
+        s1 = f[1] / box.width[1];
+      // hypot does not overflow or underflow where squaring would
+      const norm = Math.hypot(s0, s1);
+      magnitude.push(Math.hypot(f[0], f[1]));
+      if (norm === 0) {
+        u.push(null);
+        v.push(null);
+        missing.push({ index, reason: "rest" });
+        continue;
+      }
+      u.push(s0 / norm + 0);
+      v.push(s1 / norm + 0);
     }
-    const s0 = f[0] / box.width[0], s1 = f[1] / box.width[1];
-    // hypot does not overflow or underflow where squaring would
-    const norm = Math.hypot(s0, s1);
-    magnitude.push(Math.hypot(f[0], f[1]));
-    if (norm === 0) {
-      u.push(null); v.push(null);
-      missing.push({ index, reason: "rest" });
-      continue;
-    }
-    u.push(s0 / norm + 0);
-    v.push(s1 / norm + 0);
-  }
   return { nx, ny, x, y, u, v, magnitude, missing };
 }

@@ -1,10 +1,22 @@
 import type { Model } from "../../model/types.js";
 import type { Diagnostic } from "../../diagnostics/issue.js";
 import type { EquilibriumResult } from "./equilibria.js";
-import { DEFAULT_NULLCLINE_OPTIONS, EQUILIBRIUM_ON_CURVE_CELLS, NULLCLINE_RESIDUAL_TOL } from "../constants.js";
+import {
+  DEFAULT_NULLCLINE_OPTIONS,
+  EQUILIBRIUM_ON_CURVE_CELLS,
+  NULLCLINE_RESIDUAL_TOL,
+} from "../constants.js";
 import { windowOf, type Box } from "../numeric/window.js";
 import { canonical, compareCurves, type Curve, type Point } from "./nullclines/geometry.js";
-import { deflate, evaluator, lineCurves, projectOnto, vanishingLines, type Deflated, type Evaluator } from "./nullclines/evaluate.js";
+import {
+  deflate,
+  evaluator,
+  lineCurves,
+  projectOnto,
+  vanishingLines,
+  type Deflated,
+  type Evaluator,
+} from "./nullclines/evaluate.js";
 import { contourCurves } from "./nullclines/contour.js";
 import { locateSignChange, splitAtEquilibria, splitByDirection, type Sign } from "./nullclines/split.js";
 
@@ -96,16 +108,22 @@ function sampleGrid(model: Model, equilibria: EquilibriumResult[], options: Null
   const box = windowOf(model);
   const names = model.stateNames;
   const { nx, ny } = options;
-  if (!(Number.isInteger(nx) && Number.isInteger(ny) && nx >= 3 && ny >= 3)) throw new Error(`invalid nullcline grid ${nx} × ${ny}`);
+  if (!(Number.isInteger(nx) && Number.isInteger(ny) && nx >= 3 && ny >= 3))
+    throw new Error(`invalid nullcline grid ${nx} × ${ny}`);
   const ev = evaluator(model);
-  const axes = [nx, ny].map((n, k) => Array.from({ length: n }, (_, a) => (a === n - 1 ? box.hi[k] : box.lo[k] + (box.width[k] * a) / (n - 1))));
+  const axes = [nx, ny].map((n, k) =>
+    Array.from({ length: n }, (_, a) => (a === n - 1 ? box.hi[k] : box.lo[k] + (box.width[k] * a) / (n - 1))),
+  );
   const samples: number[][] = [new Array(nx * ny), new Array(nx * ny)];
-  for (let b = 0; b < ny; b++) for (let a = 0; a < nx; a++) {
-    const [f0, f1] = ev.both([axes[0][a], axes[1][b]]);
-    samples[0][b * nx + a] = f0;
-    samples[1][b * nx + a] = f1;
-  }
-  const scales = samples.map((s) => s.reduce((m, v) => (Number.isFinite(v) ? Math.max(m, Math.abs(v)) : m), 0));
+  for (let b = 0; b < ny; b++)
+    for (let a = 0; a < nx; a++) {
+      const [f0, f1] = ev.both([axes[0][a], axes[1][b]]);
+      samples[0][b * nx + a] = f0;
+      samples[1][b * nx + a] = f1;
+    }
+  const scales = samples.map((s) =>
+    s.reduce((m, v) => (Number.isFinite(v) ? Math.max(m, Math.abs(v)) : m), 0),
+  );
   const points = equilibria.map((e) => ({ id: e.id, p: [e.point[names[0]], e.point[names[1]]] as Point }));
   const reach = EQUILIBRIUM_ON_CURVE_CELLS * Math.hypot(1 / (nx - 1), 1 / (ny - 1));
   return { box, names, nx, ny, axes, samples, scales, equilibria: points, reach, ev };
@@ -130,41 +148,96 @@ function nullclineOf(s: Sampling, i: number, diagnostics: Diagnostic[]): Nullcli
   const { box, names, nx, ny, axes, ev } = s;
   const scale = s.scales[i];
   if (!(scale > 0)) {
-    diagnostics.push({ severity: "warning", stage: "nullclines", message: `d${names[i]}/dt is zero or undefined at every grid point of the window: no ${names[i]}-nullcline is drawn` });
+    diagnostics.push({
+      severity: "warning",
+      stage: "nullclines",
+      message: `d${names[i]}/dt is zero or undefined at every grid point of the window: no ${names[i]}-nullcline is drawn`,
+    });
     return { state: names[i], scale, maxResidual: 0, lines: [], pieces: [] };
   }
   const lines = vanishingLines(ev, box, i, scale, axes);
   const h = deflate(ev, box, i, lines);
-  const values = lines.length ? s.samples[i].map((v, n) => (Number.isFinite(v) ? h.value([axes[0][n % nx], axes[1][Math.floor(n / nx)]]) : NaN)) : s.samples[i];
+  const values = lines.length
+    ? s.samples[i].map((v, n) =>
+        Number.isFinite(v) ? h.value([axes[0][n % nx], axes[1][Math.floor(n / nx)]]) : NaN,
+      )
+    : s.samples[i];
   const contoured = contourCurves(h, ev, i, scale, { nx, ny, axes, values }, names);
   if (contoured.failed > 0) {
-    diagnostics.push({ severity: "info", stage: "nullclines", message: `${contoured.failed} grid-edge sign changes of d${names[i]}/dt are not zeros (a pole or a jump) and were left out of the ${names[i]}-nullcline` });
+    diagnostics.push({
+      severity: "info",
+      stage: "nullclines",
+      message: `${contoured.failed} grid-edge sign changes of d${names[i]}/dt are not zeros (a pole or a jump) and were left out of the ${names[i]}-nullcline`,
+    });
   }
-  const curves = [...lines.flatMap((l) => lineCurves(ev, i, l, axes, names)), ...contoured.curves].map(canonical).sort(compareCurves);
+  const curves = [...lines.flatMap((l) => lineCurves(ev, i, l, axes, names)), ...contoured.curves]
+    .map(canonical)
+    .sort(compareCurves);
   const pieces = piecesOf(s, i, curves, h, diagnostics);
-  const maxResidual = pieces.reduce((m, piece) => piece.points.reduce((mm, p) => Math.max(mm, Math.abs(ev.f(p, i)) / scale), m), 0);
-  return { state: names[i], scale, maxResidual, lines: lines.map((l) => ({ state: names[l.index], value: l.value })), pieces };
+  const maxResidual = pieces.reduce(
+    (m, piece) => piece.points.reduce((mm, p) => Math.max(mm, Math.abs(ev.f(p, i)) / scale), m),
+    0,
+  );
+  return {
+    state: names[i],
+    scale,
+    maxResidual,
+    lines: lines.map((l) => ({ state: names[l.index], value: l.value })),
+    pieces,
+  };
 }
 
 /** Curves cut at equilibria, then where the other component changes sign; each part labelled with its direction. */
-function piecesOf(s: Sampling, i: number, curves: Curve[], h: Deflated, diagnostics: Diagnostic[]): NullclinePiece[] {
+function piecesOf(
+  s: Sampling,
+  i: number,
+  curves: Curve[],
+  h: Deflated,
+  diagnostics: Diagnostic[],
+): NullclinePiece[] {
   const { box, names, ev } = s;
   const j = 1 - i;
   const scale = s.scales[i];
   const attached = new Set<string>();
   const locateOnLine = (a: Point, b: Point, sa: Sign) => locateSignChange(a, b, sa, (p) => p, ev, j);
-  const locateOnCurve = (a: Point, b: Point, sa: Sign) => locateSignChange(a, b, sa, (p) => projectOnto(h, box, p), ev, j, (p) => Math.abs(ev.f(p, i)) <= NULLCLINE_RESIDUAL_TOL * scale);
+  const locateOnCurve = (a: Point, b: Point, sa: Sign) =>
+    locateSignChange(
+      a,
+      b,
+      sa,
+      (p) => projectOnto(h, box, p),
+      ev,
+      j,
+      (p) => Math.abs(ev.f(p, i)) <= NULLCLINE_RESIDUAL_TOL * scale,
+    );
   const onSignChange = (p: Point, kind: "zero" | "jump") => {
     const at = `(${p.map((v) => +v.toPrecision(6)).join(", ")})`;
-    diagnostics.push(kind === "zero"
-      ? { severity: "warning", stage: "nullclines", message: `d${names[j]}/dt changes sign on the ${names[i]}-nullcline near ${at}, where no equilibrium is listed` }
-      : { severity: "info", stage: "nullclines", message: `d${names[j]}/dt jumps in sign (a pole or a gap in its domain) on the ${names[i]}-nullcline near ${at}` });
+    diagnostics.push(
+      kind === "zero"
+        ? {
+            severity: "warning",
+            stage: "nullclines",
+            message: `d${names[j]}/dt changes sign on the ${names[i]}-nullcline near ${at}, where no equilibrium is listed`,
+          }
+        : {
+            severity: "info",
+            stage: "nullclines",
+            message: `d${names[j]}/dt jumps in sign (a pole or a gap in its domain) on the ${names[i]}-nullcline near ${at}`,
+          },
+    );
   };
   const pieces: NullclinePiece[] = [];
   curves.forEach((curve, index) => {
     const axis = curve.line ? { state: names[curve.line.index], value: curve.line.value } : null;
     for (const piece of splitAtEquilibria(curve, s.equilibria, box, s.reach, attached)) {
-      for (const part of splitByDirection(piece, ev, j, s.scales[j], curve.line ? locateOnLine : locateOnCurve, onSignChange)) {
+      for (const part of splitByDirection(
+        piece,
+        ev,
+        j,
+        s.scales[j],
+        curve.line ? locateOnLine : locateOnCurve,
+        onSignChange,
+      )) {
         pieces.push({
           curve: index,
           points: part.points.map((p) => [p[0] + 0, p[1] + 0]),
@@ -177,8 +250,13 @@ function piecesOf(s: Sampling, i: number, curves: Curve[], h: Deflated, diagnost
       }
     }
   });
-  for (const e of s.equilibria) if (!attached.has(e.id)) {
-    diagnostics.push({ severity: "info", stage: "nullclines", message: `equilibrium ${e.id} lies on no traced branch of the ${names[i]}-nullcline (an isolated zero or a tangency the grid cannot see)` });
-  }
+  for (const e of s.equilibria)
+    if (!attached.has(e.id)) {
+      diagnostics.push({
+        severity: "info",
+        stage: "nullclines",
+        message: `equilibrium ${e.id} lies on no traced branch of the ${names[i]}-nullcline (an isolated zero or a tangency the grid cannot see)`,
+      });
+    }
   return pieces;
 }

@@ -44,11 +44,18 @@ function envelope(f: Float64Array, h: number): Float64Array {
   const z = new Float64Array(n + 1);
   const key = (q: number) => f[q] / (h * h) + q * q;
   let k = 0;
-  z[0] = -Infinity; z[1] = Infinity;
+  z[0] = -Infinity;
+  z[1] = Infinity;
   for (let q = 1; q < n; q++) {
     let s = (key(q) - key(v[k])) / (2 * (q - v[k]));
-    while (s <= z[k]) { k--; s = (key(q) - key(v[k])) / (2 * (q - v[k])); }
-    k++; v[k] = q; z[k] = s; z[k + 1] = Infinity;
+    while (s <= z[k]) {
+      k--;
+      s = (key(q) - key(v[k])) / (2 * (q - v[k]));
+    }
+    k++;
+    v[k] = q;
+    z[k] = s;
+    z[k + 1] = Infinity;
   }
   k = 0;
   for (let q = 0; q < n; q++) {
@@ -61,12 +68,17 @@ function envelope(f: Float64Array, h: number): Float64Array {
 /** Squared window-scaled distance from each cell to the nearest cell not `inside`, beyond the border counting as not inside. */
 function distanceToOutside(inside: (cell: number) => boolean, nx: number, ny: number): Float64Array {
   // one padding cell on each side stands for the outside of the window, so every column has an outside cell
-  const px = nx + 2, py = ny + 2;
-  const isIn = (a: number, b: number) => a >= 1 && a <= nx && b >= 1 && b <= ny && inside((b - 1) * nx + a - 1);
+  const px = nx + 2,
+    py = ny + 2;
+  const isIn = (a: number, b: number) =>
+    a >= 1 && a <= nx && b >= 1 && b <= ny && inside((b - 1) * nx + a - 1);
   const grid = new Float64Array(px * py);
   for (let a = 0; a < px; a++) {
     let last = -Infinity;
-    for (let b = 0; b < py; b++) { if (!isIn(a, b)) last = b; grid[b * px + a] = b - last; }
+    for (let b = 0; b < py; b++) {
+      if (!isIn(a, b)) last = b;
+      grid[b * px + a] = b - last;
+    }
     last = Infinity;
     for (let b = py - 1; b >= 0; b--) {
       if (!isIn(a, b)) last = b;
@@ -85,11 +97,13 @@ function distanceToOutside(inside: (cell: number) => boolean, nx: number, ny: nu
 
 function clearanceOf(p: [number, number], nullclines: NullclineResult[], box: Box): number | null {
   let best = Infinity;
-  for (const n of nullclines) for (const piece of n.pieces) {
-    const pts = piece.points;
-    if (pts.length === 1) best = Math.min(best, segmentDistance(p, pts[0], pts[0], box.width).d);
-    for (let k = 0; k + 1 < pts.length; k++) best = Math.min(best, segmentDistance(p, pts[k], pts[k + 1], box.width).d);
-  }
+  for (const n of nullclines)
+    for (const piece of n.pieces) {
+      const pts = piece.points;
+      if (pts.length === 1) best = Math.min(best, segmentDistance(p, pts[0], pts[0], box.width).d);
+      for (let k = 0; k + 1 < pts.length; k++)
+        best = Math.min(best, segmentDistance(p, pts[k], pts[k + 1], box.width).d);
+    }
   return best === Infinity ? null : best;
 }
 
@@ -99,21 +113,25 @@ function labelCells(model: Model, box: Box, nx: number, ny: number): Int8Array {
   const f = new Float64Array(2);
   const values = new Float64Array(2 * nx * ny);
   const scale = [0, 0];
-  for (let b = 0; b < ny; b++) for (let a = 0; a < nx; a++) {
-    y[0] = box.lo[0] + (box.width[0] * (a + 0.5)) / nx;
-    y[1] = box.lo[1] + (box.width[1] * (b + 0.5)) / ny;
-    model.rhs(y, f);
-    for (let i = 0; i < 2; i++) {
-      values[2 * (b * nx + a) + i] = f[i];
-      if (Number.isFinite(f[i])) scale[i] = Math.max(scale[i], Math.abs(f[i]));
+  for (let b = 0; b < ny; b++)
+    for (let a = 0; a < nx; a++) {
+      y[0] = box.lo[0] + (box.width[0] * (a + 0.5)) / nx;
+      y[1] = box.lo[1] + (box.width[1] * (b + 0.5)) / ny;
+      model.rhs(y, f);
+      for (let i = 0; i < 2; i++) {
+        values[2 * (b * nx + a) + i] = f[i];
+        if (Number.isFinite(f[i])) scale[i] = Math.max(scale[i], Math.abs(f[i]));
+      }
     }
-  }
   const labels = new Int8Array(nx * ny);
   for (let c = 0; c < nx * ny; c++) {
     let label = 0;
     for (let i = 0; i < 2; i++) {
       const v = values[2 * c + i];
-      if (!Number.isFinite(v) || Math.abs(v) <= REGION_ZERO_TOL * scale[i]) { label = UNLABELLED; break; }
+      if (!Number.isFinite(v) || Math.abs(v) <= REGION_ZERO_TOL * scale[i]) {
+        label = UNLABELLED;
+        break;
+      }
       if (v > 0) label |= 1 << i;
     }
     labels[c] = label;
@@ -135,12 +153,22 @@ function components(labels: Int8Array, nx: number, ny: number): { id: Int32Array
     while (stack.length) {
       const cell = stack.pop()!;
       size++;
-      const a = cell % nx, b = (cell - a) / nx;
-      for (const [da, db] of [[1, 0], [-1, 0], [0, 1], [0, -1]]) {
-        const qa = a + da, qb = b + db;
+      const a = cell % nx,
+        b = (cell - a) / nx;
+      for (const [da, db] of [
+        [1, 0],
+        [-1, 0],
+        [0, 1],
+        [0, -1],
+      ]) {
+        const qa = a + da,
+          qb = b + db;
         if (qa < 0 || qb < 0 || qa >= nx || qb >= ny) continue;
         const q = qb * nx + qa;
-        if (id[q] < 0 && labels[q] === labels[start]) { id[q] = c; stack.push(q); }
+        if (id[q] < 0 && labels[q] === labels[start]) {
+          id[q] = c;
+          stack.push(q);
+        }
       }
     }
     sizes.push(size);
@@ -159,33 +187,50 @@ export function findRegions(
   diagnostics: Diagnostic[] = [],
 ): RegionResult[] {
   const { nx, ny } = options;
-  if (!(Number.isInteger(nx) && Number.isInteger(ny) && nx >= 2 && ny >= 2)) throw new Error(`invalid region grid ${nx} × ${ny}`);
+  if (!(Number.isInteger(nx) && Number.isInteger(ny) && nx >= 2 && ny >= 2))
+    throw new Error(`invalid region grid ${nx} × ${ny}`);
   const box = windowOf(model);
   const names = model.stateNames;
   const labels = labelCells(model, box, nx, ny);
   const { id, sizes } = components(labels, nx, ny);
   const total = nx * ny;
   const regions: Omit<RegionResult, "id">[] = [];
-  let dropped = 0, droppedArea = 0;
+  let dropped = 0,
+    droppedArea = 0;
   sizes.forEach((size, c) => {
-    if (size / total < MIN_REGION_FRACTION) { dropped++; droppedArea += size; return; }
+    if (size / total < MIN_REGION_FRACTION) {
+      dropped++;
+      droppedArea += size;
+      return;
+    }
     const distance = distanceToOutside((cell) => id[cell] === c, nx, ny);
     let best = -1;
-    for (let cell = 0; cell < total; cell++) if (id[cell] === c && (best < 0 || distance[cell] > distance[best])) best = cell;
-    const a = best % nx, b = (best - a) / nx;
-    const p: [number, number] = [box.lo[0] + (box.width[0] * (a + 0.5)) / nx, box.lo[1] + (box.width[1] * (b + 0.5)) / ny];
+    for (let cell = 0; cell < total; cell++)
+      if (id[cell] === c && (best < 0 || distance[cell] > distance[best])) best = cell;
+    const a = best % nx,
+      b = (best - a) / nx;
+    const p: [number, number] = [
+      box.lo[0] + (box.width[0] * (a + 0.5)) / nx,
+      box.lo[1] + (box.width[1] * (b + 0.5)) / ny,
+    ];
     const label = labels[best];
     regions.push({
-      signs: Object.fromEntries(names.map((n, i) => [n, label & (1 << i) ? "+" : "-"])) as Record<string, Sign>,
+      signs: Object.fromEntries(names.map((n, i) => [n, label & (1 << i) ? "+" : "-"])) as Record<
+        string,
+        Sign
+      >,
       point: { [names[0]]: p[0], [names[1]]: p[1] },
       areaFraction: size / total,
       clearance: clearanceOf(p, nullclines, box),
     });
   });
   if (dropped > 0) {
-    diagnostics.push({ severity: "info", stage: "regions", message: `${dropped} sign regions smaller than ${MIN_REGION_FRACTION} of the window (together ${+(droppedArea / total).toPrecision(3)} of it) are not listed` });
+    diagnostics.push({
+      severity: "info",
+      stage: "regions",
+      message: `${dropped} sign regions smaller than ${MIN_REGION_FRACTION} of the window (together ${+(droppedArea / total).toPrecision(3)} of it) are not listed`,
+    });
   }
   regions.sort((p, q) => p.point[names[0]] - q.point[names[0]] || p.point[names[1]] - q.point[names[1]]);
   return regions.map((r, k) => ({ id: `R${k + 1}`, ...r }));
 }
-

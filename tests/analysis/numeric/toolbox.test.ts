@@ -3,7 +3,11 @@ import { Matrix, solve } from "ml-matrix";
 import { bisect, bisectPredicate } from "../../../src/analysis/numeric/roots.js";
 import { solve2, solveSmall, spectralRadius } from "../../../src/analysis/numeric/linear.js";
 import { newtonSolve } from "../../../src/analysis/numeric/newton.js";
-import { scaledDistance, scaledMaxDistance, segmentDistance } from "../../../src/analysis/numeric/distance.js";
+import {
+  scaledDistance,
+  scaledMaxDistance,
+  segmentDistance,
+} from "../../../src/analysis/numeric/distance.js";
 
 /** Deterministic uniform numbers in [-1, 1) (a linear congruential generator, common practice). */
 function seeded(seed: number): () => number {
@@ -59,22 +63,42 @@ describe("numeric toolbox", () => {
   });
 
   it("spectralRadius({±2i, 1}) is 2", () => {
-    expect(spectralRadius([{ re: 0, im: 2 }, { re: 0, im: -2 }, { re: 1, im: 0 }])).toBe(2);
+    expect(
+      spectralRadius([
+        { re: 0, im: 2 },
+        { re: 0, im: -2 },
+        { re: 1, im: 0 },
+      ]),
+    ).toBe(2);
   });
 
   it("newtonSolve(x² + y² = 4, y = x) converges to (√2, √2)", () => {
-    const u = newtonSolve((v, r, jac) => {
-      r[0] = v[0] * v[0] + v[1] * v[1] - 4;
-      r[1] = v[1] - v[0];
-      jac.set([2 * v[0], 2 * v[1], -1, 1]);
-      return true;
-    }, [1, 2], [1, 1], { maxIterations: 30, stepTol: 1e-14 })!;
+    const u = newtonSolve(
+      (v, r, jac) => {
+        r[0] = v[0] * v[0] + v[1] * v[1] - 4;
+        r[1] = v[1] - v[0];
+        jac.set([2 * v[0], 2 * v[1], -1, 1]);
+        return true;
+      },
+      [1, 2],
+      [1, 1],
+      { maxIterations: 30, stepTol: 1e-14 },
+    )!;
     expect(u[0]).toBeCloseTo(Math.SQRT2, 14);
     expect(u[1]).toBeCloseTo(Math.SQRT2, 14);
   });
 
   it("newtonSolve gives up (null) where the system has no root, x² + 1 = 0", () => {
-    const u = newtonSolve((v, r, jac) => { r[0] = v[0] * v[0] + 1; jac[0] = 2 * v[0]; return true; }, [0.5], [1], { maxIterations: 40, stepTol: 1e-14 });
+    const u = newtonSolve(
+      (v, r, jac) => {
+        r[0] = v[0] * v[0] + 1;
+        jac[0] = 2 * v[0];
+        return true;
+      },
+      [0.5],
+      [1],
+      { maxIterations: 40, stepTol: 1e-14 },
+    );
     expect(u).toBeNull();
   });
 

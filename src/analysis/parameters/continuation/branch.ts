@@ -1,11 +1,26 @@
 import {
-  correct, cross3, dot3, evaluate, stepAlong, tangentAt,
-  type ContinuationSystem, type CurvePoint,
+  correct,
+  cross3,
+  dot3,
+  evaluate,
+  stepAlong,
+  tangentAt,
+  type ContinuationSystem,
+  type CurvePoint,
 } from "./system.js";
 import { scaledMaxDistance, segmentDistance } from "../../numeric/distance.js";
 import {
-  CLOSE_MIN_STEPS, CLOSE_MIN_TRAVEL_STEPS, CORRECTOR_STEP_TOL, EASY_ITERATIONS, GROW, HARD_ITERATIONS, MAX_CORRECTION, ON_BRANCH_MIN_TOL,
-  SHRINK, SWITCH_OFFSET, CORRECTOR_ITERATIONS,
+  CLOSE_MIN_STEPS,
+  CLOSE_MIN_TRAVEL_STEPS,
+  CORRECTOR_STEP_TOL,
+  EASY_ITERATIONS,
+  GROW,
+  HARD_ITERATIONS,
+  MAX_CORRECTION,
+  ON_BRANCH_MIN_TOL,
+  SHRINK,
+  SWITCH_OFFSET,
+  CORRECTOR_ITERATIONS,
 } from "../../constants.js";
 
 /** How continuation in one direction stopped. */
@@ -60,7 +75,10 @@ function branchVertex(sys: ContinuationSystem, z: CurvePoint, t: Float64Array): 
   const determinant = j[0] * j[3] - j[1] * j[2];
   const radius = Math.sqrt(Math.abs(determinant));
   return {
-    z, t, trace: j[0] + j[3], determinant,
+    z,
+    t,
+    trace: j[0] + j[3],
+    determinant,
     traceScale: Math.max(Math.abs(j[0]), Math.abs(j[3]), radius),
     determinantScale: Math.max(Math.abs(j[0] * j[3]), Math.abs(j[1] * j[2]), Math.abs(determinant)),
   };
@@ -72,7 +90,12 @@ function outsideWindow(sys: ContinuationSystem, z: ArrayLike<number>, margin: nu
 }
 
 /** The point of the branch between a and b (p on either side of bound) with p = bound exactly. */
-function clipToRange(sys: ContinuationSystem, a: CurvePoint, b: CurvePoint, bound: number): CurvePoint | null {
+function clipToRange(
+  sys: ContinuationSystem,
+  a: CurvePoint,
+  b: CurvePoint,
+  bound: number,
+): CurvePoint | null {
   const w = (bound - a[2]) / (b[2] - a[2]);
   const start = Float64Array.from([0, 1, 2].map((k) => a[k] + w * (b[k] - a[k])));
   start[2] = bound;
@@ -83,7 +106,12 @@ function clipToRange(sys: ContinuationSystem, a: CurvePoint, b: CurvePoint, boun
 }
 
 /** Follows the branch from z0 along t0 until a stop condition; returns the points after z0. */
-function continueOneWay(sys: ContinuationSystem, z0: CurvePoint, t0: Float64Array, options: StepOptions): { points: BranchVertex[]; end: BranchEnd } {
+function continueOneWay(
+  sys: ContinuationSystem,
+  z0: CurvePoint,
+  t0: Float64Array,
+  options: StepOptions,
+): { points: BranchVertex[]; end: BranchEnd } {
   const points: BranchVertex[] = [];
   const [lo, hi] = sys.range;
   let z = z0;
@@ -94,8 +122,13 @@ function continueOneWay(sys: ContinuationSystem, z0: CurvePoint, t0: Float64Arra
     if (h < options.minStep) return { points, end: "stalled" };
     const predicted = stepAlong(sys, z, t, h);
     const c = correct(sys, predicted, t, predicted, CORRECTOR_ITERATIONS);
-    const tNew = c.converged ? tangentAt(sys, c.z, t) ?? t : null;
-    if (!c.converged || !tNew || scaledMaxDistance(c.z, predicted, sys.span) > MAX_CORRECTION * h || Math.acos(Math.min(1, dot3(t, tNew))) > options.maxAngle) {
+    const tNew = c.converged ? (tangentAt(sys, c.z, t) ?? t) : null;
+    if (
+      !c.converged ||
+      !tNew ||
+      scaledMaxDistance(c.z, predicted, sys.span) > MAX_CORRECTION * h ||
+      Math.acos(Math.min(1, dot3(t, tNew))) > options.maxAngle
+    ) {
       h /= 2;
       continue;
     }
@@ -105,13 +138,23 @@ function continueOneWay(sys: ContinuationSystem, z0: CurvePoint, t0: Float64Arra
       const bound = zNew[2] < lo ? lo : hi;
       const clipped = clipToRange(sys, z, zNew, bound);
       // a seed sitting on the end of the range clips onto itself: nothing to add
-      if (clipped && scaledMaxDistance(clipped, z, sys.span) <= CORRECTOR_STEP_TOL) return { points, end: "range" };
-      points.push(clipped ? branchVertex(sys, clipped, tangentAt(sys, clipped, tNew) ?? tNew) : branchVertex(sys, zNew, tNew));
+      if (clipped && scaledMaxDistance(clipped, z, sys.span) <= CORRECTOR_STEP_TOL)
+        return { points, end: "range" };
+      points.push(
+        clipped
+          ? branchVertex(sys, clipped, tangentAt(sys, clipped, tNew) ?? tNew)
+          : branchVertex(sys, zNew, tNew),
+      );
       return { points, end: "range" };
     }
     points.push(branchVertex(sys, zNew, tNew));
     if (outsideWindow(sys, zNew, options.windowMargin)) return { points, end: "window" };
-    if (points.length >= CLOSE_MIN_STEPS && travelled > CLOSE_MIN_TRAVEL_STEPS * h && scaledMaxDistance(zNew, z0, sys.span) <= h && dot3(tNew, t0) > 0) {
+    if (
+      points.length >= CLOSE_MIN_STEPS &&
+      travelled > CLOSE_MIN_TRAVEL_STEPS * h &&
+      scaledMaxDistance(zNew, z0, sys.span) <= h &&
+      dot3(tNew, t0) > 0
+    ) {
       points.push(branchVertex(sys, Float64Array.from(z0), t0));
       return { points, end: "closed" };
     }
@@ -124,19 +167,37 @@ function continueOneWay(sys: ContinuationSystem, z0: CurvePoint, t0: Float64Arra
 }
 
 /** Traces the whole branch through seed, both ways; null when the seed has no unique tangent. */
-export function continueBranch(sys: ContinuationSystem, seed: CurvePoint, options: StepOptions): ContinuedBranch | null {
+export function continueBranch(
+  sys: ContinuationSystem,
+  seed: CurvePoint,
+  options: StepOptions,
+): ContinuedBranch | null {
   const t0 = tangentAt(sys, seed, null);
   if (!t0) return null;
   const first = branchVertex(sys, Float64Array.from(seed), t0);
   const forward = continueOneWay(sys, first.z, t0, options);
-  if (forward.end === "closed") return { points: [first, ...forward.points], seed: 0, ends: ["closed", "closed"] };
-  const back = continueOneWay(sys, first.z, Float64Array.from(t0, (v) => -v), options);
+  if (forward.end === "closed")
+    return { points: [first, ...forward.points], seed: 0, ends: ["closed", "closed"] };
+  const back = continueOneWay(
+    sys,
+    first.z,
+    Float64Array.from(t0, (v) => -v),
+    options,
+  );
   const backward = back.points.reverse().map((p) => ({ ...p, t: Float64Array.from(p.t, (v) => -v + 0) }));
-  return { points: [...backward, first, ...forward.points], seed: backward.length, ends: [back.end, forward.end] };
+  return {
+    points: [...backward, first, ...forward.points],
+    seed: backward.length,
+    ends: [back.end, forward.end],
+  };
 }
 
 /** Index of the segment of branch nearest to z, and its distance. */
-export function nearestSegment(sys: ContinuationSystem, branch: ContinuedBranch, z: ArrayLike<number>): { index: number; distance: number } {
+export function nearestSegment(
+  sys: ContinuationSystem,
+  branch: ContinuedBranch,
+  z: ArrayLike<number>,
+): { index: number; distance: number } {
   let best = { index: -1, distance: Infinity };
   const pts = branch.points;
   if (pts.length === 1) return { index: 0, distance: scaledMaxDistance(z, pts[0].z, sys.span) };
@@ -157,7 +218,13 @@ export function onBranchTolerance(options: StepOptions): number {
  * the polygon tolerance of one of its segments, and, when t is given, heading along it (so that a
  * branch crossing this one at z is not mistaken for it).
  */
-export function liesOnBranch(sys: ContinuationSystem, branch: ContinuedBranch, z: ArrayLike<number>, t: ArrayLike<number> | null, options: StepOptions): boolean {
+export function liesOnBranch(
+  sys: ContinuationSystem,
+  branch: ContinuedBranch,
+  z: ArrayLike<number>,
+  t: ArrayLike<number> | null,
+  options: StepOptions,
+): boolean {
   const near = nearestSegment(sys, branch, z);
   if (near.distance > onBranchTolerance(options)) return false;
   if (!t) return true;

@@ -1,10 +1,18 @@
 import type { Diagnostic } from "../../../diagnostics/issue.js";
-import { classifyEquilibrium, type EquilibriumType, type StabilityResult } from "../../phase/stability.js";
+import { classifyEquilibrium, type EquilibriumType } from "../../phase/stability.js";
 import { CLASSIFY_REL_TOL, SIDE_OFFSET } from "../../constants.js";
 import { spectralRadius } from "../../numeric/linear.js";
 import type { ContinuedBranch, BranchVertex } from "./branch.js";
 import { locateBetween, pointAlong } from "./locate.js";
-import { currentResidual, determinantAt, evaluate, jacobianRows, traceAt, type ContinuationSystem, type CurvePoint } from "./system.js";
+import {
+  currentResidual,
+  determinantAt,
+  evaluate,
+  jacobianRows,
+  traceAt,
+  type ContinuationSystem,
+  type CurvePoint,
+} from "./system.js";
 
 /**
  * Test functions along a branch and the events where they change sign between consecutive points:
@@ -74,23 +82,32 @@ function findBrackets(sys: ContinuationSystem, branch: ContinuedBranch): Bracket
     brackets.push({ kind: turning ? "saddle-node" : "transcritical", ...change, bound: null });
   }
   for (const change of signChanges(pts.map((p) => quiet(p.trace, p.traceScale)))) {
-    if (pts[change.a].determinant > 0 && pts[change.b].determinant > 0) brackets.push({ kind: "hopf", ...change, bound: null });
+    if (pts[change.a].determinant > 0 && pts[change.b].determinant > 0)
+      brackets.push({ kind: "hopf", ...change, bound: null });
   }
   sys.model.spec.states.forEach((state, k) => {
     for (const value of [state.min, state.max]) {
       if (!Number.isFinite(value)) continue;
-      for (const change of signChanges(pts.map((p) => p.z[k] - value))) brackets.push({ kind: "boundary-crossing", ...change, bound: { state: k, value } });
+      for (const change of signChanges(pts.map((p) => p.z[k] - value)))
+        brackets.push({ kind: "boundary-crossing", ...change, bound: { state: k, value } });
     }
   });
   return brackets;
 }
 
 /** The test function of a bracket, and a scale for it that a change of units leaves fair. */
-function testFunction(sys: ContinuationSystem, bracket: Bracket): { g: (z: CurvePoint) => number; scale: (z: CurvePoint) => number } {
+function testFunction(
+  sys: ContinuationSystem,
+  bracket: Bracket,
+): { g: (z: CurvePoint) => number; scale: (z: CurvePoint) => number } {
   if (bracket.kind === "hopf") {
     return {
       g: (z) => traceAt(sys, z),
-      scale: (z) => { const s = classifyEquilibrium(jacobianRows(sys, z)); const [[a], [, d]] = s.jacobian; return Math.max(Math.abs(a), Math.abs(d), spectralRadius(s.eigenvalues)) || 1; },
+      scale: (z) => {
+        const s = classifyEquilibrium(jacobianRows(sys, z));
+        const [[a], [, d]] = s.jacobian;
+        return Math.max(Math.abs(a), Math.abs(d), spectralRadius(s.eigenvalues)) || 1;
+      },
     };
   }
   if (bracket.kind === "boundary-crossing") {
@@ -99,7 +116,11 @@ function testFunction(sys: ContinuationSystem, bracket: Bracket): { g: (z: Curve
   }
   return {
     g: (z) => determinantAt(sys, z),
-    scale: (z) => { const s = classifyEquilibrium(jacobianRows(sys, z)); const [[a, b], [c, d]] = s.jacobian; return Math.max(Math.abs(a * d), Math.abs(b * c), spectralRadius(s.eigenvalues) ** 2) || 1; },
+    scale: (z) => {
+      const s = classifyEquilibrium(jacobianRows(sys, z));
+      const [[a, b], [c, d]] = s.jacobian;
+      return Math.max(Math.abs(a * d), Math.abs(b * c), spectralRadius(s.eigenvalues) ** 2) || 1;
+    },
   };
 }
 
@@ -108,7 +129,13 @@ function typeAt(sys: ContinuationSystem, z: ArrayLike<number>): EquilibriumType 
 }
 
 /** Types on either side of z along t; falls back to the bracket's end points. */
-function sides(sys: ContinuationSystem, z: CurvePoint, t: Float64Array, a: BranchVertex, b: BranchVertex): [EquilibriumType, EquilibriumType] {
+function sides(
+  sys: ContinuationSystem,
+  z: CurvePoint,
+  t: Float64Array,
+  a: BranchVertex,
+  b: BranchVertex,
+): [EquilibriumType, EquilibriumType] {
   const chart = { z, t };
   const before = pointAlong(sys, chart, -SIDE_OFFSET);
   const after = pointAlong(sys, chart, SIDE_OFFSET);
@@ -116,7 +143,12 @@ function sides(sys: ContinuationSystem, z: CurvePoint, t: Float64Array, a: Branc
 }
 
 /** Every event of one branch, located (see locate.ts) and described. */
-export function locateEvents(sys: ContinuationSystem, branch: ContinuedBranch, branchIndex: number, diagnostics: Diagnostic[]): LocatedEvent[] {
+export function locateEvents(
+  sys: ContinuationSystem,
+  branch: ContinuedBranch,
+  branchIndex: number,
+  diagnostics: Diagnostic[],
+): LocatedEvent[] {
   const pts = branch.points;
   const events: LocatedEvent[] = [];
   for (const bracket of findBrackets(sys, branch)) {
@@ -125,11 +157,13 @@ export function locateEvents(sys: ContinuationSystem, branch: ContinuedBranch, b
     const b = pts[bracket.b];
     const exact = bracket.exact === null ? null : pts[bracket.exact];
     // a point whose test value was only quieted to zero is no event: locate across it
-    const located = exact && g(exact.z) === 0 ? { z: exact.z, t: exact.t, value: 0 } : locateBetween(sys, a, b, g);
+    const located =
+      exact && g(exact.z) === 0 ? { z: exact.z, t: exact.t, value: 0 } : locateBetween(sys, a, b, g);
     if (!located) {
       const name = sys.model.parameterNames[sys.parameterIndex];
       diagnostics.push({
-        severity: "warning", stage: "continuation",
+        severity: "warning",
+        stage: "continuation",
         message: `a sign change of the ${bracket.kind} test function on branch ${branchIndex} between ${name} = ${a.z[2]} and ${b.z[2]} could not be located`,
       });
       continue;
@@ -139,7 +173,17 @@ export function locateEvents(sys: ContinuationSystem, branch: ContinuedBranch, b
     const residual = currentResidual(sys);
     const testResidual = Math.abs(g(located.z)) / scale(located.z);
     const [before, after] = sides(sys, located.z, located.t, a, b);
-    events.push({ kind: bracket.kind, branch: branchIndex, z: located.z, t: located.t, residual, testResidual, before, after, bound: bracket.bound });
+    events.push({
+      kind: bracket.kind,
+      branch: branchIndex,
+      z: located.z,
+      t: located.t,
+      residual,
+      testResidual,
+      before,
+      after,
+      bound: bracket.bound,
+    });
   }
   return events;
 }

@@ -3,10 +3,22 @@ import { withParameters } from "../../../model/parameters.js";
 import type { Model } from "../../../model/types.js";
 import { findEquilibria, type EquilibriumOptions } from "../../phase/equilibria.js";
 import { classifyEquilibrium, type EquilibriumType } from "../../phase/stability.js";
-import { liesOnBranch, switchBranch, continueBranch, type BranchEnd, type StepOptions, type ContinuedBranch } from "./branch.js";
+import {
+  liesOnBranch,
+  switchBranch,
+  continueBranch,
+  type BranchEnd,
+  type StepOptions,
+  type ContinuedBranch,
+} from "./branch.js";
 import { locateEvents, type LocatedEvent } from "./detect.js";
 import { buildSpecialPoints, type SpecialPointResult } from "./special.js";
-import { CONTINUATION_MAX_BRANCHES, CONTINUATION_SEED_VALUES, DEFAULT_EQUILIBRIUM_OPTIONS, DEFAULT_STEP_OPTIONS } from "../../constants.js";
+import {
+  CONTINUATION_MAX_BRANCHES,
+  CONTINUATION_SEED_VALUES,
+  DEFAULT_EQUILIBRIUM_OPTIONS,
+  DEFAULT_STEP_OPTIONS,
+} from "../../constants.js";
 import { buildSystem, jacobianRows, tangentAt, type ContinuationSystem, type CurvePoint } from "./system.js";
 
 export type { SpecialPointResult, SpecialPointKind } from "./special.js";
@@ -67,7 +79,12 @@ export interface ContinuationResult {
   points: SpecialPointResult[];
 }
 
-function collectSeeds(model: Model, sys: ContinuationSystem, options: ContinuationOptions, diagnostics: Diagnostic[]): CurvePoint[] {
+function collectSeeds(
+  model: Model,
+  sys: ContinuationSystem,
+  options: ContinuationOptions,
+  diagnostics: Diagnostic[],
+): CurvePoint[] {
   const [lo, hi] = sys.range;
   const j = sys.parameterIndex;
   const values: number[] = [];
@@ -86,12 +103,22 @@ function collectSeeds(model: Model, sys: ContinuationSystem, options: Continuati
     for (const e of findEquilibria(withParameters(model, params), options.equilibria, local)) {
       seeds.push(Float64Array.from([e.point[model.stateNames[0]], e.point[model.stateNames[1]], v]));
     }
-    for (const d of local) diagnostics.push({ ...d, stage: "continuation", message: `at ${model.parameterNames[j]} = ${v}: ${d.message}` });
+    for (const d of local)
+      diagnostics.push({
+        ...d,
+        stage: "continuation",
+        message: `at ${model.parameterNames[j]} = ${v}: ${d.message}`,
+      });
   }
   return seeds;
 }
 
-function onSomeBranch(sys: ContinuationSystem, branches: ContinuedBranch[], z: CurvePoint, steps: StepOptions): boolean {
+function onSomeBranch(
+  sys: ContinuationSystem,
+  branches: ContinuedBranch[],
+  z: CurvePoint,
+  steps: StepOptions,
+): boolean {
   const t = tangentAt(sys, z, null);
   return branches.some((b) => liesOnBranch(sys, b, z, t, steps));
 }
@@ -106,7 +133,14 @@ function describeBranch(sys: ContinuationSystem, branch: ContinuedBranch, index:
     ends: branch.ends,
     points: branch.points.map((p) => {
       const s = classifyEquilibrium(jacobianRows(sys, p.z));
-      return { value: p.z[2] + 0, point: point(p.z), stable: s.stable, type: s.type, trace: s.trace, determinant: s.determinant };
+      return {
+        value: p.z[2] + 0,
+        point: point(p.z),
+        stable: s.stable,
+        type: s.type,
+        trace: s.trace,
+        determinant: s.determinant,
+      };
     }),
   };
 }
@@ -139,7 +173,11 @@ export function continueEquilibria(
   };
   for (const seed of collectSeeds(model, sys, opts, diagnostics)) addBranch(seed);
   if (branches.length >= opts.maxBranches) {
-    diagnostics.push({ severity: "warning", stage: "continuation", message: `more than ${opts.maxBranches} branches of equilibria in ${parameter}: only the first ${opts.maxBranches} were traced` });
+    diagnostics.push({
+      severity: "warning",
+      stage: "continuation",
+      message: `more than ${opts.maxBranches} branches of equilibria in ${parameter}: only the first ${opts.maxBranches} were traced`,
+    });
   }
 
   const events: LocatedEvent[] = [];

@@ -9,7 +9,12 @@ export interface Chart {
 }
 
 /** The branch point at chart coordinate s: corrected within the hyperplane t · (u − u_chart) = s. */
-export function pointAlong(sys: ContinuationSystem, chart: Chart, s: number, guess: ArrayLike<number> | null = null): CurvePoint | null {
+export function pointAlong(
+  sys: ContinuationSystem,
+  chart: Chart,
+  s: number,
+  guess: ArrayLike<number> | null = null,
+): CurvePoint | null {
   const anchor = stepAlong(sys, chart.z, chart.t, s);
   const c = correct(sys, guess ?? anchor, chart.t, anchor, LOCATE_ITERATIONS);
   return c.converged ? c.z : null;
@@ -35,7 +40,10 @@ export function locateBetween(
   test: (z: CurvePoint) => number,
 ): Located | null {
   const chart: Chart = { z: a.z, t: a.t };
-  const sEnd = dot3(a.t, [0, 1, 2].map((k) => (b.z[k] - a.z[k]) / sys.span[k]));
+  const sEnd = dot3(
+    a.t,
+    [0, 1, 2].map((k) => (b.z[k] - a.z[k]) / sys.span[k]),
+  );
   if (!(sEnd > 0)) return null;
   const size = Math.max(...[0, 1, 2].map((k) => Math.abs(a.z[k] / sys.span[k])), 1);
   const tol = Math.max(LOCATE_TOL, LOCATE_ULPS * size);

@@ -40,18 +40,29 @@ export interface LyapunovResult {
 }
 
 function multilinear2(t: ArrayLike<number>, u: CVec, v: CVec): CVec {
-  const out: CVec = [[0, 0], [0, 0]];
-  for (let i = 0; i < 2; i++) for (let j = 0; j < 2; j++) for (let k = 0; k < 2; k++) {
-    out[i] = add(out[i], scaleCx(mul(u[j], v[k]), t[(i * 2 + j) * 2 + k]));
-  }
+  const out: CVec = [
+    [0, 0],
+    [0, 0],
+  ];
+  for (let i = 0; i < 2; i++)
+    for (let j = 0; j < 2; j++)
+      for (let k = 0; k < 2; k++) {
+        out[i] = add(out[i], scaleCx(mul(u[j], v[k]), t[(i * 2 + j) * 2 + k]));
+      }
   return out;
 }
 
 function multilinear3(t: ArrayLike<number>, u: CVec, v: CVec, w: CVec): CVec {
-  const out: CVec = [[0, 0], [0, 0]];
-  for (let i = 0; i < 2; i++) for (let j = 0; j < 2; j++) for (let k = 0; k < 2; k++) for (let l = 0; l < 2; l++) {
-    out[i] = add(out[i], scaleCx(mul(mul(u[j], v[k]), w[l]), t[((i * 2 + j) * 2 + k) * 2 + l]));
-  }
+  const out: CVec = [
+    [0, 0],
+    [0, 0],
+  ];
+  for (let i = 0; i < 2; i++)
+    for (let j = 0; j < 2; j++)
+      for (let k = 0; k < 2; k++)
+        for (let l = 0; l < 2; l++) {
+          out[i] = add(out[i], scaleCx(mul(mul(u[j], v[k]), w[l]), t[((i * 2 + j) * 2 + k) * 2 + l]));
+        }
   return out;
 }
 
@@ -75,7 +86,11 @@ function nullVector(m0: Cx, m1: Cx, m2: Cx, m3: Cx): CVec {
  * l1 from the Jacobian (row-major 2 × 2), second derivatives (second[(i·2 + j)·2 + k]) and third
  * derivatives (third[((i·2 + j)·2 + k)·2 + l]) at the Hopf point.
  */
-export function firstLyapunovCoefficient(jacobian: ArrayLike<number>, second: ArrayLike<number>, third: ArrayLike<number>): LyapunovResult {
+export function firstLyapunovCoefficient(
+  jacobian: ArrayLike<number>,
+  second: ArrayLike<number>,
+  third: ArrayLike<number>,
+): LyapunovResult {
   const [a, b, c, d] = [jacobian[0], jacobian[1], jacobian[2], jacobian[3]];
   const tr = a + d;
   const det = a * d - b * c;
@@ -88,7 +103,12 @@ export function firstLyapunovCoefficient(jacobian: ArrayLike<number>, second: Ar
   const qn = vnorm(q);
   q = [scaleCx(q[0], 1 / qn), scaleCx(q[1], 1 / qn)];
   const lambdaBar = conj(lambda);
-  let p = nullVector(add(real(a), scaleCx(lambdaBar, -1)), real(c), real(b), add(real(d), scaleCx(lambdaBar, -1)));
+  let p = nullVector(
+    add(real(a), scaleCx(lambdaBar, -1)),
+    real(c),
+    real(b),
+    add(real(d), scaleCx(lambdaBar, -1)),
+  );
   const pq = inner(p, q);
   const factor = conj(pq);
   p = [div(p[0], factor), div(p[1], factor)];
@@ -104,10 +124,17 @@ export function firstLyapunovCoefficient(jacobian: ArrayLike<number>, second: Ar
   const h11: CVec = [real(-s0), real(-s1)];
   const mixed = inner(p, multilinear2(second, q, h11))[0] * 2;
   const twoIOmega: Cx = [0, 2 * omega];
-  const h20 = solveComplex2([add(twoIOmega, real(-a)), real(-b), real(-c), add(twoIOmega, real(-d))], multilinear2(second, q, q));
+  const h20 = solveComplex2(
+    [add(twoIOmega, real(-a)), real(-b), real(-c), add(twoIOmega, real(-d))],
+    multilinear2(second, q, q),
+  );
   const resonant = inner(p, multilinear2(second, qBar, h20))[0];
   const value = (cubic + mixed + resonant) / (2 * omega);
   const size = (Math.abs(cubic) + Math.abs(mixed) + Math.abs(resonant)) / (2 * omega);
-  const criticality = !(Math.abs(value) > LYAPUNOV_REL_TOL * size) ? null : value < 0 ? "supercritical" : "subcritical";
+  const criticality = !(Math.abs(value) > LYAPUNOV_REL_TOL * size)
+    ? null
+    : value < 0
+      ? "supercritical"
+      : "subcritical";
   return { value: value + 0, frequency: omega, criticality };
 }

@@ -2,7 +2,13 @@ import type { Diagnostic } from "../../../diagnostics/issue.js";
 import { compileHigherDerivatives, type HigherDerivatives } from "../../../model/higher.js";
 import { classifyEquilibrium, type Complex, type EquilibriumType } from "../../phase/stability.js";
 import {
-  ACROSS_BOUND_TOL, BOUND_CONTACT_TOL, CROSSING_NEIGHBOURHOOD, DUPLICATE_TOL, LOCATE_TOL, ROOT_RESIDUAL_TOL, TEST_FUNCTION_TOL,
+  ACROSS_BOUND_TOL,
+  BOUND_CONTACT_TOL,
+  CROSSING_NEIGHBOURHOOD,
+  DUPLICATE_TOL,
+  LOCATE_TOL,
+  ROOT_RESIDUAL_TOL,
+  TEST_FUNCTION_TOL,
 } from "../../constants.js";
 import { liesOnBranch, type StepOptions, type ContinuedBranch } from "./branch.js";
 import type { LocatedEvent } from "./detect.js";
@@ -40,11 +46,17 @@ export interface SpecialPointResult {
   bound: { state: string; value: number } | null;
 }
 
-function boundAt(sys: ContinuationSystem, z: CurvePoint, tol: number, pred: (k: number) => boolean = () => true): { state: number; value: number } | null {
+function boundAt(
+  sys: ContinuationSystem,
+  z: CurvePoint,
+  tol: number,
+  pred: (k: number) => boolean = () => true,
+): { state: number; value: number } | null {
   const states = sys.model.spec.states;
   for (let k = 0; k < states.length; k++) {
     for (const value of [states[k].min, states[k].max]) {
-      if (Number.isFinite(value) && Math.abs(z[k] - value) <= tol * sys.box.width[k] && pred(k)) return { state: k, value };
+      if (Number.isFinite(value) && Math.abs(z[k] - value) <= tol * sys.box.width[k] && pred(k))
+        return { state: k, value };
     }
   }
   return null;
@@ -58,7 +70,13 @@ function criticalBoundAt(sys: ContinuationSystem, z: CurvePoint): { state: numbe
 }
 
 /** Another branch passes through z and reaches parameter values on both sides of z's near it. */
-function crossedByAnother(sys: ContinuationSystem, branches: ContinuedBranch[], own: number, z: CurvePoint, steps: StepOptions): number | null {
+function crossedByAnother(
+  sys: ContinuationSystem,
+  branches: ContinuedBranch[],
+  own: number,
+  z: CurvePoint,
+  steps: StepOptions,
+): number | null {
   for (let k = 0; k < branches.length; k++) {
     if (k === own || !liesOnBranch(sys, branches[k], z, null, steps)) continue;
     let below = false;
@@ -82,18 +100,29 @@ interface Candidate {
   exactlyOnBound: boolean;
 }
 
-function classify(sys: ContinuationSystem, branches: ContinuedBranch[], event: LocatedEvent, steps: StepOptions, diagnostics: Diagnostic[]): Candidate | null {
+function classify(
+  sys: ContinuationSystem,
+  branches: ContinuedBranch[],
+  event: LocatedEvent,
+  steps: StepOptions,
+  diagnostics: Diagnostic[],
+): Candidate | null {
   const exactlyOnBound = boundAt(sys, event.z, 0) !== null;
   switch (event.kind) {
-    case "saddle-node": return { event, kind: "saddle-node", bound: null, exactlyOnBound };
-    case "hopf": return { event, kind: "hopf", bound: null, exactlyOnBound };
-    case "boundary-crossing": return { event, kind: "boundary-crossing", bound: event.bound, exactlyOnBound };
+    case "saddle-node":
+      return { event, kind: "saddle-node", bound: null, exactlyOnBound };
+    case "hopf":
+      return { event, kind: "hopf", bound: null, exactlyOnBound };
+    case "boundary-crossing":
+      return { event, kind: "boundary-crossing", bound: event.bound, exactlyOnBound };
     case "transcritical": {
       const bound = criticalBoundAt(sys, event.z);
-      if (bound || crossedByAnother(sys, branches, event.branch, event.z, steps) !== null) return { event, kind: "transcritical", bound, exactlyOnBound };
+      if (bound || crossedByAnother(sys, branches, event.branch, event.z, steps) !== null)
+        return { event, kind: "transcritical", bound, exactlyOnBound };
       const name = sys.model.parameterNames[sys.parameterIndex];
       diagnostics.push({
-        severity: "warning", stage: "continuation",
+        severity: "warning",
+        stage: "continuation",
         message: `a branch point at ${name} = ${event.z[2]} is neither on a bound of the feasible region nor a crossing of two branches (perhaps a pitchfork); it is not reported as a threshold`,
       });
       return null;
@@ -124,11 +153,48 @@ function better(a: Candidate, b: Candidate): boolean {
 function group(sys: ContinuationSystem, candidates: Candidate[]): Candidate[][] {
   const groups: Candidate[][] = [];
   for (const c of candidates) {
-    const home = groups.find((g) => g.some((d) => mergeable(c.kind, d.kind) && scaledMaxDistance(c.event.z, d.event.z, sys.span) <= DUPLICATE_TOL));
+    const home = groups.find((g) =>
+      g.some(
+        (d) =>
+          mergeable(c.kind, d.kind) && scaledMaxDistance(c.event.z, d.event.z, sys.span) <= DUPLICATE_TOL,
+      ),
+    );
     if (home) home.push(c);
     else groups.push([c]);
   }
   return groups;
+}
+
+/**
+ * Near a branch crossing the corrector stalls, so a bound crossing seen from the crossing branch
+ * may fail to verify; when a verified transcritical on the same bound lies close, it is that one.
+ */
+function dropTwinCrossings(
+  sys: ContinuationSystem,
+  results: SpecialPointResult[],
+  diagnostics: Diagnostic[],
+): SpecialPointResult[] {
+  const parameter = sys.model.parameterNames[sys.parameterIndex];
+  const verified = (r: SpecialPointResult) =>
+    r.residual <= ROOT_RESIDUAL_TOL && r.testResidual <= TEST_FUNCTION_TOL;
+  const width = sys.range[1] - sys.range[0];
+  return results.filter((r) => {
+    if (r.kind !== "boundary-crossing" || verified(r)) return true;
+    const twin = results.find(
+      (q) =>
+        q.kind === "transcritical" &&
+        verified(q) &&
+        q.bound?.state === r.bound?.state &&
+        Math.abs(q.value - r.value) <= CROSSING_NEIGHBOURHOOD * width,
+    );
+    if (twin)
+      diagnostics.push({
+        severity: "info",
+        stage: "continuation",
+        message: `the unverified bound crossing at ${parameter} = ${r.value} is the transcritical at ${twin.value}, seen from the crossing branch`,
+      });
+    return !twin;
+  });
 }
 
 /**
@@ -154,7 +220,10 @@ export function buildSpecialPoints(
   const results = group(sys, candidates).map((members) => {
     const best = members.reduce((x, y) => (better(y, x) ? y : x));
     const { event } = best;
-    const partner = best.kind === "transcritical" ? members.find((m) => m.event.branch !== event.branch && m.kind === "transcritical") : undefined;
+    const partner =
+      best.kind === "transcritical"
+        ? members.find((m) => m.event.branch !== event.branch && m.kind === "transcritical")
+        : undefined;
     const stability = classifyEquilibrium(jacobianRows(sys, event.z));
     let lyapunov: ReturnType<typeof firstLyapunovCoefficient> | null = null;
     if (best.kind === "hopf") {
@@ -169,7 +238,8 @@ export function buildSpecialPoints(
     }
     if (!(event.residual <= ROOT_RESIDUAL_TOL) || !(event.testResidual <= TEST_FUNCTION_TOL)) {
       diagnostics.push({
-        severity: "warning", stage: "continuation",
+        severity: "warning",
+        stage: "continuation",
         message: `the ${best.kind} at ${parameter} = ${event.z[2]} did not verify (residual ${event.residual}, test function ${event.testResidual})`,
       });
     }
@@ -186,20 +256,16 @@ export function buildSpecialPoints(
       residual: event.residual,
       testResidual: event.testResidual,
       stabilityChange: { before: event.before, after: event.after },
-      exchange: partner ? { branch: partner.event.branch, before: partner.event.before, after: partner.event.after } : null,
+      exchange: partner
+        ? { branch: partner.event.branch, before: partner.event.before, after: partner.event.after }
+        : null,
       bound: bound ? { state: model.stateNames[bound.state], value: bound.value } : null,
     };
     return result;
   });
-  // near a branch crossing the corrector stalls, so a bound crossing seen from the crossing branch
-  // may fail to verify; when a verified transcritical on the same bound lies close, it is that one
-  const verified = (r: SpecialPointResult) => r.residual <= ROOT_RESIDUAL_TOL && r.testResidual <= TEST_FUNCTION_TOL;
-  const width = sys.range[1] - sys.range[0];
-  const kept = results.filter((r) => {
-    if (r.kind !== "boundary-crossing" || verified(r)) return true;
-    const twin = results.find((q) => q.kind === "transcritical" && verified(q) && q.bound?.state === r.bound?.state && Math.abs(q.value - r.value) <= CROSSING_NEIGHBOURHOOD * width);
-    if (twin) diagnostics.push({ severity: "info", stage: "continuation", message: `the unverified bound crossing at ${parameter} = ${r.value} is the transcritical at ${twin.value}, seen from the crossing branch` });
-    return !twin;
-  });
-  return kept.sort((a, b) => a.value - b.value || KIND_ORDER.indexOf(a.kind) - KIND_ORDER.indexOf(b.kind) || a.branch - b.branch);
+  const kept = dropTwinCrossings(sys, results, diagnostics);
+  return kept.sort(
+    (a, b) =>
+      a.value - b.value || KIND_ORDER.indexOf(a.kind) - KIND_ORDER.indexOf(b.kind) || a.branch - b.branch,
+  );
 }

@@ -33,15 +33,27 @@ export interface ContinuationSystem {
 /** A point on the curve: the two states, then the parameter. */
 export type CurvePoint = Float64Array;
 
-export function buildSystem(model: Model, parameterIndex: number, range: [number, number]): ContinuationSystem {
+export function buildSystem(
+  model: Model,
+  parameterIndex: number,
+  range: [number, number],
+): ContinuationSystem {
   const box = windowOf(model);
   const params = Float64Array.from(model.parameterValues);
   const span = Float64Array.from([...box.width, range[1] - range[0]]);
   const sys: ContinuationSystem = {
-    model, parameterIndex, range, box, span,
+    model,
+    parameterIndex,
+    range,
+    box,
+    span,
     fScale: new Float64Array(2),
     dfdp: compileParameterDerivative(model, parameterIndex).evaluate,
-    params, y: new Float64Array(2), f: new Float64Array(2), j: new Float64Array(4), fp: new Float64Array(2),
+    params,
+    y: new Float64Array(2),
+    f: new Float64Array(2),
+    j: new Float64Array(4),
+    fp: new Float64Array(2),
     a: new Float64Array(6),
   };
   sys.fScale.set(componentScales(model, box));
@@ -87,7 +99,10 @@ export function traceAt(sys: ContinuationSystem, z: ArrayLike<number>): number {
 
 export function jacobianRows(sys: ContinuationSystem, z: ArrayLike<number>): number[][] {
   evaluate(sys, z);
-  return [[sys.j[0], sys.j[1]], [sys.j[2], sys.j[3]]];
+  return [
+    [sys.j[0], sys.j[1]],
+    [sys.j[2], sys.j[3]],
+  ];
 }
 
 export function dot3(a: ArrayLike<number>, b: ArrayLike<number>): number {
@@ -99,7 +114,12 @@ export function cross3(a: ArrayLike<number>, b: ArrayLike<number>): Float64Array
 }
 
 /** z + h · span ∘ t: a step of scaled length h along the scaled direction t. */
-export function stepAlong(sys: ContinuationSystem, z: ArrayLike<number>, t: ArrayLike<number>, h: number): CurvePoint {
+export function stepAlong(
+  sys: ContinuationSystem,
+  z: ArrayLike<number>,
+  t: ArrayLike<number>,
+  h: number,
+): CurvePoint {
   return Float64Array.from([0, 1, 2].map((k) => z[k] + h * sys.span[k] * t[k]));
 }
 
@@ -109,7 +129,11 @@ export function stepAlong(sys: ContinuationSystem, z: ArrayLike<number>, t: Arra
  * positive p-component (or, when that vanishes, a positive largest component). Null where the
  * rows are parallel (a branch point, or a degenerate curve).
  */
-export function tangentAt(sys: ContinuationSystem, z: ArrayLike<number>, orient: ArrayLike<number> | null): Float64Array | null {
+export function tangentAt(
+  sys: ContinuationSystem,
+  z: ArrayLike<number>,
+  orient: ArrayLike<number> | null,
+): Float64Array | null {
   evaluate(sys, z);
   const r0 = sys.a.subarray(0, 3);
   const r1 = sys.a.subarray(3, 6);
@@ -154,9 +178,13 @@ export function correct(
   const s = sys.span;
   for (let it = 1; it <= maxIterations; it++) {
     evaluate(sys, z);
-    const g = normal[0] * (z[0] - anchor[0]) / s[0] + normal[1] * (z[1] - anchor[1]) / s[1] + normal[2] * (z[2] - anchor[2]) / s[2];
+    const g =
+      (normal[0] * (z[0] - anchor[0])) / s[0] +
+      (normal[1] * (z[1] - anchor[1])) / s[1] +
+      (normal[2] * (z[2] - anchor[2])) / s[2];
     // exactly on the curve and the hyperplane: nothing to correct, even where the matrix is singular
-    if (sys.f[0] === 0 && sys.f[1] === 0 && g === 0) return { z, iterations: it, converged: true, residual: 0 };
+    if (sys.f[0] === 0 && sys.f[1] === 0 && g === 0)
+      return { z, iterations: it, converged: true, residual: 0 };
     const m = [...sys.a, normal[0], normal[1], normal[2]];
     const dz = solveSmall(m, [-sys.f[0], -sys.f[1], -g]);
     if (!dz) break;

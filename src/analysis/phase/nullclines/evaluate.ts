@@ -1,7 +1,13 @@
 import type { Model } from "../../../model/types.js";
 import type { Box } from "../../numeric/window.js";
 import type { NullclineEnd } from "../nullclines.js";
-import { CORNER_NUDGE, ON_LINE_TOL, PROJECTION_STEP_TOL, PROJECTION_STEPS, VANISHING_LINE_TOL } from "../../constants.js";
+import {
+  CORNER_NUDGE,
+  ON_LINE_TOL,
+  PROJECTION_STEP_TOL,
+  PROJECTION_STEPS,
+  VANISHING_LINE_TOL,
+} from "../../constants.js";
 import type { Curve, Line, Point } from "./geometry.js";
 
 /** The model's right-hand side and Jacobian rows at a point, non-finite values as NaN. */
@@ -17,17 +23,20 @@ export function evaluator(model: Model): Evaluator {
   const j = new Float64Array(4);
   return {
     f(p, i) {
-      y[0] = p[0]; y[1] = p[1];
+      y[0] = p[0];
+      y[1] = p[1];
       model.rhs(y, f);
       return Number.isFinite(f[i]) ? f[i] : NaN;
     },
     both(p) {
-      y[0] = p[0]; y[1] = p[1];
+      y[0] = p[0];
+      y[1] = p[1];
       model.rhs(y, f);
       return [Number.isFinite(f[0]) ? f[0] : NaN, Number.isFinite(f[1]) ? f[1] : NaN];
     },
     grad(p, i) {
-      y[0] = p[0]; y[1] = p[1];
+      y[0] = p[0];
+      y[1] = p[1];
       model.jacobianAt(y, j);
       return [j[2 * i], j[2 * i + 1]];
     },
@@ -62,7 +71,9 @@ export function deflate(ev: Evaluator, box: Box, i: number, lines: Line[]): Defl
       const rest = product(d.filter((_, m) => m !== k));
       return (ev.grad(p, i)[lines[k].index] * box.width[lines[k].index]) / rest;
     }
-    const q = p.map((v, k) => v + (v <= (box.lo[k] + box.hi[k]) / 2 ? 1 : -1) * CORNER_NUDGE * box.width[k]) as Point;
+    const q = p.map(
+      (v, k) => v + (v <= (box.lo[k] + box.hi[k]) / 2 ? 1 : -1) * CORNER_NUDGE * box.width[k],
+    ) as Point;
     return ev.f(q, i) / product(offsets(q));
   };
   const gradient = (p: Point): Point | null => {
@@ -107,7 +118,10 @@ export function vanishingLines(ev: Evaluator, box: Box, i: number, scale: number
         const v = ev.f(k === 0 ? [c, t] : [t, c], i);
         if (!Number.isFinite(v)) continue;
         finite++;
-        if (Math.abs(v) > VANISHING_LINE_TOL * scale) { vanishes = false; break; }
+        if (Math.abs(v) > VANISHING_LINE_TOL * scale) {
+          vanishes = false;
+          break;
+        }
       }
       if (vanishes && finite >= 2) lines.push({ index: k, value: c });
     }
@@ -128,11 +142,11 @@ export function lineCurves(ev: Evaluator, i: number, line: Line, axes: number[][
   ts.forEach((t, a) => {
     const p: Point = line.index === 0 ? [line.value, t] : [t, line.value];
     if (Number.isFinite(ev.f(p, i))) {
-      if (run.length === 0) startEnd = a === 0 ? { kind: "window-edge", state: names[free], bound: "min" } : { kind: "hole" };
+      if (run.length === 0)
+        startEnd = a === 0 ? { kind: "window-edge", state: names[free], bound: "min" } : { kind: "hole" };
       run.push(p);
     } else flush({ kind: "hole" });
   });
   flush({ kind: "window-edge", state: names[free], bound: "max" });
   return curves;
 }
-

@@ -4,10 +4,21 @@ import type { NullclineEnd } from "../nullclines.js";
 /** Polylines of the nullcline tracer: points, lines where f_i vanishes, connected curves, and the pieces they are cut into. */
 export type Point = [number, number];
 /** The line x_index = value. */
-export interface Line { index: number; value: number }
+export interface Line {
+  index: number;
+  value: number;
+}
 /** A connected curve of the zero set before splitting (closed, or with two ends); on a vanishing line when `line` is set. */
-export interface Curve { points: Point[]; ends: [NullclineEnd, NullclineEnd]; closed: boolean; line: Line | null }
-export interface Piece { points: Point[]; ends: [NullclineEnd, NullclineEnd] }
+export interface Curve {
+  points: Point[];
+  ends: [NullclineEnd, NullclineEnd];
+  closed: boolean;
+  line: Line | null;
+}
+export interface Piece {
+  points: Point[];
+  ends: [NullclineEnd, NullclineEnd];
+}
 
 export const lexLess = (p: Point, q: Point) => p[0] < q[0] || (p[0] === q[0] && p[1] < q[1]);
 export const samePoint = (p: Point, q: Point) => p[0] === q[0] && p[1] === q[1];
@@ -22,13 +33,19 @@ export function dedupe(points: Point[], closed: boolean): Point[] {
 export function canonical(b: Curve): Curve {
   if (b.closed) {
     let area = 0;
-    b.points.forEach((p, k) => { const q = b.points[(k + 1) % b.points.length]; area += p[0] * q[1] - q[0] * p[1]; });
+    b.points.forEach((p, k) => {
+      const q = b.points[(k + 1) % b.points.length];
+      area += p[0] * q[1] - q[0] * p[1];
+    });
     const points = area < 0 ? [...b.points].reverse() : [...b.points];
     let m = 0;
-    points.forEach((p, k) => { if (lexLess(p, points[m])) m = k; });
+    points.forEach((p, k) => {
+      if (lexLess(p, points[m])) m = k;
+    });
     return { ...b, points: [...points.slice(m), ...points.slice(0, m)] };
   }
-  if (lexLess(b.points[b.points.length - 1], b.points[0])) return { ...b, points: [...b.points].reverse(), ends: [b.ends[1], b.ends[0]] };
+  if (lexLess(b.points[b.points.length - 1], b.points[0]))
+    return { ...b, points: [...b.points].reverse(), ends: [b.ends[1], b.ends[0]] };
   return b;
 }
 
@@ -49,4 +66,3 @@ export function turningAngle(pts: Point[], k: number, closed: boolean, box: Box)
   const v = [(c[0] - b[0]) / box.width[0], (c[1] - b[1]) / box.width[1]];
   return Math.abs(Math.atan2(u[0] * v[1] - u[1] * v[0], u[0] * v[0] + u[1] * v[1]));
 }
-

@@ -44,7 +44,8 @@ function parseArgs(argv) {
     if (argv[k] === "--base") args.base = argv[++k];
     else if (argv[k] === "--only") args.only = argv[++k];
     else if (argv[k] === "--fresh") args.fresh = true;
-    else if (argv[k] === "--reuse") continue; // the default now; kept so older command lines work
+    else if (argv[k] === "--reuse")
+      continue; // the default now; kept so older command lines work
     else throw new Error(`unknown argument ${argv[k]}`);
   }
   return args;
@@ -52,7 +53,12 @@ function parseArgs(argv) {
 
 function specFiles(only) {
   const fromDir = (dir) =>
-    existsSync(dir) ? readdirSync(dir).filter((f) => f.endsWith(".json")).sort().map((f) => join(dir, f)) : [];
+    existsSync(dir)
+      ? readdirSync(dir)
+          .filter((f) => f.endsWith(".json"))
+          .sort()
+          .map((f) => join(dir, f))
+      : [];
   const all = [...fromDir(join(ROOT, "specs")), ...fromDir(join(ROOT, "tests/fixtures/specs"))];
   return only ? all.filter((f) => basename(f).includes(only)) : all;
 }
@@ -62,7 +68,8 @@ function prepareBase(ref, dir) {
     mkdirSync(dirname(dir), { recursive: true });
     execFileSync("git", ["worktree", "add", "--detach", dir, ref], { cwd: ROOT, stdio: "ignore" });
   } else execFileSync("git", ["checkout", "--detach", "-q", ref], { cwd: dir });
-  if (!existsSync(join(dir, "node_modules"))) symlinkSync(join(ROOT, "node_modules"), join(dir, "node_modules"));
+  if (!existsSync(join(dir, "node_modules")))
+    symlinkSync(join(ROOT, "node_modules"), join(dir, "node_modules"));
   execFileSync("npx", ["tsc", "-p", "tsconfig.json"], { cwd: dir, stdio: "inherit" });
 }
 
@@ -71,7 +78,9 @@ function dump(tree, outDir, specs) {
     const child = spawn(process.execPath, [join(ROOT, "bench/results-dump.mjs"), tree, outDir, ...specs], {
       stdio: ["ignore", "inherit", "inherit"],
     });
-    child.on("exit", (code) => (code === 0 ? done() : fail(new Error(`results-dump for ${tree} exited ${code}`))));
+    child.on("exit", (code) =>
+      code === 0 ? done() : fail(new Error(`results-dump for ${tree} exited ${code}`)),
+    );
   });
 }
 
@@ -92,14 +101,21 @@ function compareOne(oldResults, newResults) {
   const b = flatten(newResults);
   const report = { compared: 0, differing: [], onlyOld: [], onlyNew: [], rounding: new Map(), moved: 0 };
   for (const [path, va] of a) {
-    if (matches(MOVED, path)) { report.moved++; continue; }
-    if (!b.has(path)) { report.onlyOld.push(path); continue; }
+    if (matches(MOVED, path)) {
+      report.moved++;
+      continue;
+    }
+    if (!b.has(path)) {
+      report.onlyOld.push(path);
+      continue;
+    }
     const vb = b.get(path);
     report.compared++;
     if (Object.is(va, vb)) continue;
     const rule = typeof va === "number" && typeof vb === "number" ? matches(ROUNDING, path) : null;
     const rel = rule ? Math.abs(va - vb) / Math.max(Math.abs(va), Math.abs(vb)) : Infinity;
-    if (rule && rel <= rule[1]) report.rounding.set(rule[0].source, Math.max(rel, report.rounding.get(rule[0].source) ?? 0));
+    if (rule && rel <= rule[1])
+      report.rounding.set(rule[0].source, Math.max(rel, report.rounding.get(rule[0].source) ?? 0));
     else report.differing.push(`${path}: ${JSON.stringify(va)} → ${JSON.stringify(vb)}`);
   }
   for (const path of b.keys())
@@ -125,11 +141,16 @@ async function main() {
   }
   await Promise.all(jobs);
 
-  let failures = 0, leaves = 0, moved = 0;
+  let failures = 0,
+    leaves = 0,
+    moved = 0;
   const rounding = new Map();
   for (const spec of specs) {
     const name = `${basename(spec, ".json")}.json`;
-    const report = compareOne(JSON.parse(readFileSync(join(baseOut, name), "utf8")), JSON.parse(readFileSync(join(newOut, name), "utf8")));
+    const report = compareOne(
+      JSON.parse(readFileSync(join(baseOut, name), "utf8")),
+      JSON.parse(readFileSync(join(newOut, name), "utf8")),
+    );
     leaves += report.compared;
     moved += report.moved;
     for (const [k, v] of report.rounding) rounding.set(k, Math.max(v, rounding.get(k) ?? 0));
@@ -146,7 +167,8 @@ async function main() {
     }
   }
   console.log(`\n${specs.length} specs, ${leaves} leaves compared exactly, ${moved} moved leaves left out`);
-  for (const [k, v] of rounding) console.log(`rounding-only differences in /${k}/: largest relative ${v.toExponential(2)}`);
+  for (const [k, v] of rounding)
+    console.log(`rounding-only differences in /${k}/: largest relative ${v.toExponential(2)}`);
   console.log(failures ? `${failures} specs differ` : "results unchanged");
   rmSync(newOut, { recursive: true, force: true });
   process.exit(failures ? 1 : 0);

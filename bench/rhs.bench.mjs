@@ -19,44 +19,57 @@ const POINT_COUNT = 1024;
 /** Compiled and hand-written outputs must agree to this, relative (both are double arithmetic). */
 const AGREEMENT_TOLERANCE = 1e-12;
 
-
-
 /** Hand-written versions: parameters as closure constants, as someone would write them by hand. */
 function handReservoir() {
-  const r1 = 0.45, r2 = 0.3, K1 = 40000, K2 = 60000, a12 = 0.5, a21 = 0.6;
+  const r1 = 0.45,
+    r2 = 0.3,
+    K1 = 40000,
+    K2 = 60000,
+    a12 = 0.5,
+    a21 = 0.6;
   return {
     rhs(y, out) {
-      const N = y[0], S = y[1];
+      const N = y[0],
+        S = y[1];
       out[0] = r1 * N * (1 - (N + a12 * S) / K1);
       out[1] = r2 * S * (1 - (S + a21 * N) / K2);
     },
     jacobian(y, out) {
-      const N = y[0], S = y[1];
+      const N = y[0],
+        S = y[1];
       out[0] = r1 * (1 - (2 * N + a12 * S) / K1);
-      out[1] = -r1 * a12 * N / K1;
-      out[2] = -r2 * a21 * S / K2;
+      out[1] = (-r1 * a12 * N) / K1;
+      out[2] = (-r2 * a21 * S) / K2;
       out[3] = r2 * (1 - (2 * S + a21 * N) / K2);
     },
   };
 }
 
 function handGrazer() {
-  const r = 1.2, K = 800, c = 20, h = 60, yc = 0.06, m = 0.3, q = 0.075;
+  const r = 1.2,
+    K = 800,
+    c = 20,
+    h = 60,
+    yc = 0.06,
+    m = 0.3,
+    q = 0.075;
   const h2 = h * h;
   return {
     rhs(y, out) {
-      const V = y[0], G = y[1];
+      const V = y[0],
+        G = y[1];
       const V2 = V * V;
-      const intake = c * V2 / (h2 + V2);
+      const intake = (c * V2) / (h2 + V2);
       out[0] = r * V * (1 - V / K) - G * intake;
       out[1] = G * (yc * intake - m - q * G);
     },
     jacobian(y, out) {
-      const V = y[0], G = y[1];
+      const V = y[0],
+        G = y[1];
       const d = h2 + V * V;
-      const intake = c * V * V / d;
-      const intakeSlope = 2 * c * V * h2 / (d * d);
-      out[0] = r * (1 - 2 * V / K) - G * intakeSlope;
+      const intake = (c * V * V) / d;
+      const intakeSlope = (2 * c * V * h2) / (d * d);
+      out[0] = r * (1 - (2 * V) / K) - G * intakeSlope;
       out[1] = -intake;
       out[2] = G * yc * intakeSlope;
       out[3] = yc * intake - m - 2 * q * G;
@@ -67,12 +80,14 @@ function handGrazer() {
 function handCompetition() {
   return {
     rhs(y, out) {
-      const x = y[0], v = y[1];
+      const x = y[0],
+        v = y[1];
       out[0] = x * (3 - x - 2 * v);
       out[1] = v * (2 - x - v);
     },
     jacobian(y, out) {
-      const x = y[0], v = y[1];
+      const x = y[0],
+        v = y[1];
       out[0] = 3 - 2 * x - 2 * v;
       out[1] = -2 * x;
       out[2] = -v;
@@ -82,8 +97,16 @@ function handCompetition() {
 }
 
 const CASES = [
-  { name: "reservoir-competition", specText: () => readFileSync(specPath("reservoir-competition"), "utf8"), hand: handReservoir },
-  { name: "grazer-forage", specText: () => readFileSync(specPath("grazer-forage"), "utf8"), hand: handGrazer },
+  {
+    name: "reservoir-competition",
+    specText: () => readFileSync(specPath("reservoir-competition"), "utf8"),
+    hand: handReservoir,
+  },
+  {
+    name: "grazer-forage",
+    specText: () => readFileSync(specPath("grazer-forage"), "utf8"),
+    hand: handGrazer,
+  },
   { name: "competition", specText: () => JSON.stringify(COMPETITION_SPEC), hand: handCompetition },
 ];
 
@@ -99,8 +122,10 @@ function samplePoints(model) {
   const [xLo, xHi] = window[model.stateNames[0]];
   const [yLo, yHi] = window[model.stateNames[1]];
   let seed = 0x2545f491;
-  const unit = () => ((seed = (Math.imul(seed, 1664525) + 1013904223) >>> 0) / 2 ** 32);
-  return Array.from({ length: POINT_COUNT }, () => Float64Array.of(xLo + (xHi - xLo) * unit(), yLo + (yHi - yLo) * unit()));
+  const unit = () => (seed = (Math.imul(seed, 1664525) + 1013904223) >>> 0) / 2 ** 32;
+  return Array.from({ length: POINT_COUNT }, () =>
+    Float64Array.of(xLo + (xHi - xLo) * unit(), yLo + (yHi - yLo) * unit()),
+  );
 }
 
 /**
@@ -109,7 +134,8 @@ function samplePoints(model) {
  * groupings of the same sum then differ by rounding of the terms, not of the result.
  */
 function checkAgreement(label, compiled, hand, points, width) {
-  const outA = new Float64Array(width), outB = new Float64Array(width);
+  const outA = new Float64Array(width),
+    outB = new Float64Array(width);
   const scale = new Float64Array(width);
   for (const p of points) {
     hand(p, outB);
@@ -120,10 +146,13 @@ function checkAgreement(label, compiled, hand, points, width) {
     compiled(p, outA);
     hand(p, outB);
     for (let k = 0; k < width; k++) {
-      const a = outA[k], b = outB[k];
+      const a = outA[k],
+        b = outB[k];
       const error = Math.abs(a - b) / Math.max(Math.abs(a), Math.abs(b), scale[k], Number.MIN_VALUE);
       if (!(error <= AGREEMENT_TOLERANCE)) {
-        throw new Error(`${label}: compiled and hand-written disagree at (${p[0]}, ${p[1]}), out[${k}]: ${a} vs ${b}`);
+        throw new Error(
+          `${label}: compiled and hand-written disagree at (${p[0]}, ${p[1]}), out[${k}]: ${a} vs ${b}`,
+        );
       }
       worst = Math.max(worst, error);
     }
@@ -143,7 +172,10 @@ let loopsMade = 0;
 function makeLoop(width) {
   const sum = Array.from({ length: width }, (_, k) => `out[${k}]`).join(" + ");
   return new Function(
-    "fn", "points", "out", "calls",
+    "fn",
+    "points",
+    "out",
+    "calls",
     `// timing loop ${++loopsMade}
      const mask = points.length - 1;
      let checksum = 0;
@@ -161,7 +193,9 @@ function subject(fn, points, width) {
   return {
     checksum: 0,
     nsPerCall: [],
-    warm() { this.checksum += loop(fn, points, out, WARMUP_CALLS); },
+    warm() {
+      this.checksum += loop(fn, points, out, WARMUP_CALLS);
+    },
     time() {
       const start = process.hrtime.bigint();
       this.checksum += loop(fn, points, out, CALLS_PER_ROUND);
@@ -177,11 +211,21 @@ const median = (values) => {
 
 /** Interleaves the two subjects round by round, alternating who goes first, and returns medians. */
 function race(compiled, hand) {
-  for (let i = 0; i < 3; i++) { compiled.warm(); hand.warm(); }
-  for (let round = 0; round < ROUNDS; round++) {
-    if (round % 2 === 0) { compiled.time(); hand.time(); } else { hand.time(); compiled.time(); }
+  for (let i = 0; i < 3; i++) {
+    compiled.warm();
+    hand.warm();
   }
-  const c = median(compiled.nsPerCall), h = median(hand.nsPerCall);
+  for (let round = 0; round < ROUNDS; round++) {
+    if (round % 2 === 0) {
+      compiled.time();
+      hand.time();
+    } else {
+      hand.time();
+      compiled.time();
+    }
+  }
+  const c = median(compiled.nsPerCall),
+    h = median(hand.nsPerCall);
   return { compiledNs: c, handNs: h, ratio: c / h, checksum: compiled.checksum + hand.checksum };
 }
 
@@ -208,10 +252,16 @@ for (const benchCase of CASES) {
 
 const pad = (s, w) => String(s).padEnd(w);
 const num = (v, w, digits) => v.toFixed(digits).padStart(w);
-console.log(`rhs bench: ${ROUNDS} rounds x ${CALLS_PER_ROUND} calls, median ns per call; target compiled/hand <= ${TARGET_RATIO}x`);
-console.log(`${pad("model", 32)}${"compiled".padStart(10)}${"hand".padStart(10)}${"ratio".padStart(8)}  ${pad("", 6)}${"max rel diff".padStart(13)}  checksum`);
+console.log(
+  `rhs bench: ${ROUNDS} rounds x ${CALLS_PER_ROUND} calls, median ns per call; target compiled/hand <= ${TARGET_RATIO}x`,
+);
+console.log(
+  `${pad("model", 32)}${"compiled".padStart(10)}${"hand".padStart(10)}${"ratio".padStart(8)}  ${pad("", 6)}${"max rel diff".padStart(13)}  checksum`,
+);
 for (const r of rows) {
   const verdict = r.ratio <= TARGET_RATIO ? "ok" : "SLOW";
-  console.log(`${pad(r.label, 32)}${num(r.compiledNs, 10, 2)}${num(r.handNs, 10, 2)}${num(r.ratio, 8, 2)}  ${pad(verdict, 6)}${r.worst.toExponential(1).padStart(13)}  ${r.checksum.toPrecision(12)}`);
+  console.log(
+    `${pad(r.label, 32)}${num(r.compiledNs, 10, 2)}${num(r.handNs, 10, 2)}${num(r.ratio, 8, 2)}  ${pad(verdict, 6)}${r.worst.toExponential(1).padStart(13)}  ${r.checksum.toPrecision(12)}`,
+  );
 }
 console.log(JSON.stringify({ bench: "rhs", target: TARGET_RATIO, ratios }));

@@ -9,7 +9,9 @@ import { dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
 
 const benchDir = dirname(fileURLToPath(import.meta.url));
-const files = readdirSync(benchDir).filter((f) => f.endsWith(".bench.mjs")).sort();
+const files = readdirSync(benchDir)
+  .filter((f) => f.endsWith(".bench.mjs"))
+  .sort();
 if (files.length === 0) throw new Error(`no *.bench.mjs files in ${benchDir}`);
 
 const failed = [];

@@ -11,5 +11,11 @@ export { serializeResults, type ResultsDocument } from "./report/archive/seriali
 export { KEEL_VERSION, RESULTS_FORMAT } from "./version.js";
 export type { NormalizedSpec } from "./spec/types.js";
 export type { Model } from "./model/types.js";
-export type { Results, EquilibriumResult, StabilityResult, EquilibriumType, AssumptionResult } from "./analysis/types.js";
+export type {
+  Results,
+  EquilibriumResult,
+  StabilityResult,
+  EquilibriumType,
+  AssumptionResult,
+} from "./analysis/types.js";
 export type { SpecIssue, Diagnostic, Parsed } from "./diagnostics/issue.js";

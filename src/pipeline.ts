@@ -14,7 +14,13 @@ import { parseSpecText } from "./spec/parse.js";
 import type { NormalizedSpec } from "./spec/types.js";
 import { compileModel } from "./model/compile.js";
 import type { Model } from "./model/types.js";
-import { analyze, analyzeAsync, optionsForModel, type AnalysisOptions, type ProgressReporter } from "./analysis/analyze.js";
+import {
+  analyze,
+  analyzeAsync,
+  optionsForModel,
+  type AnalysisOptions,
+  type ProgressReporter,
+} from "./analysis/analyze.js";
 import type { BatchEvaluator } from "./analysis/basins/refine.js";
 import type { Results } from "./analysis/types.js";
 

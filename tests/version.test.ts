@@ -6,7 +6,9 @@ import { KEEL_VERSION } from "../src/version.js";
 import { buildModel } from "./fixtures/models.js";
 
 // common practice: one version, read from package.json, so a release cannot ship two
-const packageJson = JSON.parse(readFileSync(join(import.meta.dirname, "../package.json"), "utf8")) as { version: string };
+const packageJson = JSON.parse(readFileSync(join(import.meta.dirname, "../package.json"), "utf8")) as {
+  version: string;
+};
 
 describe("KEEL_VERSION", () => {
   it("KEEL_VERSION equals package.json's version", () => {

@@ -21,9 +21,19 @@ export type { NullclineResult, NullclinePiece } from "./phase/nullclines.js";
 export type { RegionResult } from "./phase/regions.js";
 export type { DirectionFieldResult } from "./phase/field.js";
 export type {
-  ParameterStudyResult, ThresholdResult, OutcomeIntervalResult, MarginResult, BreakResult, IntervalEndResult,
+  ParameterStudyResult,
+  ThresholdResult,
+  OutcomeIntervalResult,
+  MarginResult,
+  BreakResult,
+  IntervalEndResult,
 } from "./parameters/study.js";
-export type { OutcomeResult, AttractorResult, EquilibriumAttractor, OutcomeFateResult } from "./parameters/outcomes.js";
+export type {
+  OutcomeResult,
+  AttractorResult,
+  EquilibriumAttractor,
+  OutcomeFateResult,
+} from "./parameters/outcomes.js";
 export type { InvasionConditionResult } from "./parameters/invasion.js";
 export type { ClaimResult, ClaimEvidence, ClaimReference } from "./checks/claims.js";
 export type { OutcomeMapResult } from "./parameters/maps.js";

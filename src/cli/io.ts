@@ -8,7 +8,10 @@ export const EXIT = { ok: 0, internal: 1, input: 2, contradicted: 3 } as const;
 
 /** A failure already explained to the user, carrying its exit code. */
 export class CliExit extends Error {
-  constructor(readonly code: number, message: string) {
+  constructor(
+    readonly code: number,
+    message: string,
+  ) {
     super(message);
   }
 }
@@ -18,7 +21,12 @@ export function readSpecFile(file: string): string {
     return readFileSync(file, "utf8");
   } catch (err) {
     const code = (err as NodeJS.ErrnoException).code;
-    const reason = code === "ENOENT" ? "no such file" : code === "EISDIR" ? messages.fileIsFolder() : (err as Error).message;
+    const reason =
+      code === "ENOENT"
+        ? "no such file"
+        : code === "EISDIR"
+          ? messages.fileIsFolder()
+          : (err as Error).message;
     throw new CliExit(EXIT.input, `error: ${messages.fileUnreadable(file, reason)}`);
   }
 }
@@ -60,7 +68,9 @@ export function writeFileAtomic(path: string, content: string | Uint8Array): voi
 }
 
 /** Progress on stderr, only when it is a terminal and not silenced. */
-export function makeProgress(quiet: boolean): ((stage: string, done: number, total: number) => void) | undefined {
+export function makeProgress(
+  quiet: boolean,
+): ((stage: string, done: number, total: number) => void) | undefined {
   if (quiet || !process.stderr.isTTY) return undefined;
   let last = "";
   return (stage, done, total) => {

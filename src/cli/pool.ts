@@ -22,24 +22,26 @@ export function createBasinPool(jobs: number, onProgress?: (done: number, total:
   });
   let done = 0;
   let total = 0;
-  const evaluator = (source: string): BatchEvaluator => async (starts) => {
-    const count = starts.length / 2;
-    const out = new Int32Array(count);
-    const tasks: Promise<void>[] = [];
-    total += count;
-    for (let first = 0; first < count; first += STARTS_PER_TASK) {
-      const last = Math.min(count, first + STARTS_PER_TASK);
-      const slice = starts.slice(2 * first, 2 * last);
-      tasks.push(
-        pool.run({ source, starts: slice }, { transferList: [slice.buffer] }).then((labels: Int32Array) => {
-          out.set(labels, first);
-          done += last - first;
-          onProgress?.(done, total);
-        }),
-      );
-    }
-    await Promise.all(tasks);
-    return out;
-  };
+  const evaluator =
+    (source: string): BatchEvaluator =>
+    async (starts) => {
+      const count = starts.length / 2;
+      const out = new Int32Array(count);
+      const tasks: Promise<void>[] = [];
+      total += count;
+      for (let first = 0; first < count; first += STARTS_PER_TASK) {
+        const last = Math.min(count, first + STARTS_PER_TASK);
+        const slice = starts.slice(2 * first, 2 * last);
+        tasks.push(
+          pool.run({ source, starts: slice }, { transferList: [slice.buffer] }).then((labels: Int32Array) => {
+            out.set(labels, first);
+            done += last - first;
+            onProgress?.(done, total);
+          }),
+        );
+      }
+      await Promise.all(tasks);
+      return out;
+    };
   return { evaluator, close: () => pool.destroy() };
 }

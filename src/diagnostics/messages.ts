@@ -14,7 +14,8 @@ export const messages = {
   fileUnreadable: (file: string, reason: string) => `cannot read ${file}: ${reason}`,
   fileIsFolder: () => `it is a folder, not a file`,
   outputUnwritable: (path: string, reason: string) => `cannot write ${path}: ${reason}`,
-  missingKey: (key: string, expected: string) => `the required key '${key}' is missing (expected ${expected})`,
+  missingKey: (key: string, expected: string) =>
+    `the required key '${key}' is missing (expected ${expected})`,
   unknownKey: (key: string, suggestion: string | null) =>
     `unknown key '${key}'${suggestion ? `; did you mean '${suggestion}'?` : ""}`,
   numberOverflows: () => `expected a finite number; this one is beyond double precision (about 1.8e308)`,
@@ -22,7 +23,8 @@ export const messages = {
   duplicateName: (name: string, first: string) => `the name '${name}' is already used at ${first}`,
   invalidIdentifier: (name: string) =>
     `'${name}' is not a valid name: use a letter followed by letters, digits or '_'`,
-  timeNameReserved: () => `'t' is reserved for time, which may not appear in an autonomous model; choose another name`,
+  timeNameReserved: () =>
+    `'t' is reserved for time, which may not appear in an autonomous model; choose another name`,
   reservedName: (name: string) =>
     `'${name}' is reserved (a keyword, constant or function name); choose another name`,
   missingEquation: (state: string) => `state '${state}' has no equation: add equations.${state}`,
@@ -41,12 +43,15 @@ export const messages = {
   basinGrid: (resolution: number, coarse: number) =>
     `the basin resolution ${resolution} must be the coarse size ${coarse} times a power of two (e.g. 1024 and 64)`,
   unknownParameter: (name: string) => `'${name}' is not a declared parameter`,
-  parameterWithoutRange: (name: string) => `parameter '${name}' has no range, so its thresholds cannot be searched: add parameters[].range`,
+  parameterWithoutRange: (name: string) =>
+    `parameter '${name}' has no range, so its thresholds cannot be searched: add parameters[].range`,
   pairRepeats: (name: string) => `a parameter pair needs two different parameters, got '${name}' twice`,
   pointMissing: (state: string) => `the point gives no value for state '${state}'`,
-  unknownAttractor: (given: string, allowed: string[]) => `'${given}' is not an attractor keel can name; use one of: ${allowed.map((a) => `'${a}'`).join(", ")}`,
+  unknownAttractor: (given: string, allowed: string[]) =>
+    `'${given}' is not an attractor keel can name; use one of: ${allowed.map((a) => `'${a}'`).join(", ")}`,
   unknownScenario: (name: string) => `'${name}' is not the name of a scenario in the spec`,
-  claimNearWithCycle: () => `'near' applies to an equilibrium; a claim that a scenario reaches a cycle takes no point`,
+  claimNearWithCycle: () =>
+    `'near' applies to an equilibrium; a claim that a scenario reaches a cycle takes no point`,
   planarOnly: (n: number) => `keel analyses planar models: exactly 2 states are needed, found ${n}`,
   // expression errors
   unexpectedCharacter: (ch: string) =>
@@ -61,19 +66,17 @@ export const messages = {
     `'${name}' is not an accepted function; accepted: ${allowed.join(", ")}`,
   nameIsNotFunction: (name: string) => `'${name}' is a name, not a function; it cannot be called`,
   functionNeedsCall: (name: string) => `'${name}' is a function: call it with arguments, e.g. ${name}(x)`,
-  wrongArity: (name: string, expected: string, got: number) =>
-    `${name}() takes ${expected}, given ${got}`,
+  wrongArity: (name: string, expected: string, got: number) => `${name}() takes ${expected}, given ${got}`,
   implicitMultiplication: () =>
     `a number, name or ')' is followed directly by a number, name or '(': write '*' for multiplication`,
   syntax: (detail: string) => `cannot read the expression: ${detail}`,
   emptyExpression: () => `the expression is empty`,
-  stateInCondition: (name: string) =>
-    `'${name}' is a state; a condition relates parameters only`,
+  stateInCondition: (name: string) => `'${name}' is a state; a condition relates parameters only`,
   conditionNeedsComparison: () =>
     `a condition must compare two expressions with one of < <= > >=, e.g. 'K2 < r1/a12'`,
   // CLI
   usage: (detail: string) => `usage error: ${detail}`,
-  resultsSchemaMissing: (path: string, reason: string) => `keel's installation lacks its results schema: cannot read ${path} (${reason})`,
-  internal: (detail: string) =>
-    `internal error (please report it with the spec that caused it): ${detail}`,
+  resultsSchemaMissing: (path: string, reason: string) =>
+    `keel's installation lacks its results schema: cannot read ${path} (${reason})`,
+  internal: (detail: string) => `internal error (please report it with the spec that caused it): ${detail}`,
 } as const;

@@ -1,4 +1,15 @@
-import type { MathNode } from "mathjs";
+import {
+  isConstantNode,
+  isFunctionNode,
+  isOperatorNode,
+  isParenthesisNode,
+  isSymbolNode,
+  type FunctionNode,
+  type MathNode,
+  type OperatorNode,
+  type OperatorNodeFn,
+  type OperatorNodeOp,
+} from "mathjs";
 
 /**
  * JavaScript source from a whitelisted (internal-symbol) tree. Only node kinds produced by the
@@ -41,71 +52,74 @@ const MAX_UNROLLED_POWER = 4;
 
 export function emitExpression(node: MathNode, options: CodegenOptions = {}): string {
   const emit = (m: MathNode): string => {
-    const n = m as any;
-    switch (n.type) {
-      case "ConstantNode":
-        return literal(n.value as number);
-      case "SymbolNode": {
-        const name = n.name as string;
-        const match = /^([SP])(\d+)$/.exec(name);
-        if (!match) throw new Error(`unexpected symbol ${name}`);
-        const index = Number(match[2]);
-        if (match[1] === "S") return `s${index}`;
-        return options.parameterValues ? literal(options.parameterValues[index]) : `p[${index}]`;
-      }
-      case "ParenthesisNode":
-        return emit(n.content);
-      case "OperatorNode": {
-        const args = (n.args as MathNode[]).map(emit);
-        switch (n.fn) {
-          case "add":
-            return `(${args.join(" + ")})`;
-          case "subtract":
-            return `(${args[0]} - ${args[1]})`;
-          case "multiply":
-            return `(${args.join(" * ")})`;
-          case "divide": {
-            // keys are the denominators as emitted without reciprocals
-            const local = options.reciprocals?.get(
-              options.reciprocals.size
-                ? emitExpression(n.args[1], { parameterValues: options.parameterValues })
-                : "",
-            );
-            return local ? `(${args[0]} * ${local})` : `(${args[0]} / ${args[1]})`;
-          }
-          case "unaryMinus":
-            return `(-${args[0]})`;
-          case "unaryPlus":
-            return args[0];
-          case "pow":
-            return emitPow(n.args[0], n.args[1], emit);
-        }
-        throw new Error(`unexpected operator ${n.fn}`);
-      }
-      case "FunctionNode": {
-        const name = n.fn.name as string;
-        const args = (n.args as MathNode[]).map(emit);
-        if (name === "pow") return emitPow(n.args[0], n.args[1], emit);
-        if (name === "sech") return `(1 / Math.cosh(${args[0]}))`;
-        if (name === "sec") return `(1 / Math.cos(${args[0]}))`;
-        if (name === "csc") return `(1 / Math.sin(${args[0]}))`;
-        if (name === "ifle") return `(${args[0]} <= ${args[1]} ? ${args[2]} : ${args[3]})`;
-        const fn = FUNCTIONS[name];
-        if (!fn) throw new Error(`unexpected function ${name}`);
-        return `${fn}(${args.join(", ")})`;
-      }
-    }
-    throw new Error(`unexpected node ${n.type}`);
+    if (isConstantNode(m)) return literal(m.value);
+    if (isSymbolNode(m)) return emitSymbol(m.name, options);
+    if (isParenthesisNode(m)) return emit(m.content);
+    if (isOperatorNode(m)) return emitOperator(m, options, emit);
+    if (isFunctionNode(m)) return emitFunction(m, emit);
+    throw new Error(`unexpected node ${m.type}`);
   };
   return emit(node);
 }
 
+function emitSymbol(name: string, options: CodegenOptions): string {
+  const match = /^([SP])(\d+)$/.exec(name);
+  if (!match) throw new Error(`unexpected symbol ${name}`);
+  const index = Number(match[2]);
+  if (match[1] === "S") return `s${index}`;
+  return options.parameterValues ? literal(options.parameterValues[index]) : `p[${index}]`;
+}
+
+function emitOperator(
+  node: OperatorNode<OperatorNodeOp, OperatorNodeFn>,
+  options: CodegenOptions,
+  emit: (m: MathNode) => string,
+): string {
+  const args = node.args.map(emit);
+  switch (node.fn) {
+    case "add":
+      return `(${args.join(" + ")})`;
+    case "subtract":
+      return `(${args[0]} - ${args[1]})`;
+    case "multiply":
+      return `(${args.join(" * ")})`;
+    case "divide": {
+      // keys are the denominators as emitted without reciprocals
+      const local = options.reciprocals?.get(
+        options.reciprocals.size
+          ? emitExpression(node.args[1], { parameterValues: options.parameterValues })
+          : "",
+      );
+      return local ? `(${args[0]} * ${local})` : `(${args[0]} / ${args[1]})`;
+    }
+    case "unaryMinus":
+      return `(-${args[0]})`;
+    case "unaryPlus":
+      return args[0];
+    case "pow":
+      return emitPow(node.args[0], node.args[1], emit);
+  }
+  throw new Error(`unexpected operator ${node.fn}`);
+}
+
+function emitFunction(node: FunctionNode, emit: (m: MathNode) => string): string {
+  const name = node.fn.name;
+  const args = node.args.map(emit);
+  if (name === "pow") return emitPow(node.args[0], node.args[1], emit);
+  if (name === "sech") return `(1 / Math.cosh(${args[0]}))`;
+  if (name === "sec") return `(1 / Math.cos(${args[0]}))`;
+  if (name === "csc") return `(1 / Math.sin(${args[0]}))`;
+  if (name === "ifle") return `(${args[0]} <= ${args[1]} ? ${args[2]} : ${args[3]})`;
+  const fn = FUNCTIONS[name];
+  if (!fn) throw new Error(`unexpected function ${name}`);
+  return `${fn}(${args.join(", ")})`;
+}
+
 function constantValue(node: MathNode): number | null {
-  const n = node as any;
-  if (n.type === "ConstantNode") return n.value as number;
-  if (n.type === "ParenthesisNode") return constantValue(n.content);
-  if (n.type === "OperatorNode" && n.fn === "unaryMinus") {
-    const v = constantValue(n.args[0]);
+  if (isConstantNode(node)) return node.value;
+  if (isParenthesisNode(node)) return constantValue(node.content);
+  if (isOperatorNode(node) && node.fn === "unaryMinus") {
+    const v = constantValue(node.args[0]);
     return v === null ? null : -v;
   }
   return null;
@@ -138,8 +152,8 @@ export function emitBody(nodes: MathNode[], dimension: number, options: CodegenO
   const plain: CodegenOptions = { parameterValues: options.parameterValues };
   const counts = new Map<string, number>();
   for (const node of nodes) {
-    node.traverse((m: any) => {
-      if (m.type === "OperatorNode" && m.fn === "divide") {
+    node.traverse((m) => {
+      if (isOperatorNode(m) && m.fn === "divide") {
         const den = emitExpression(m.args[1], plain);
         // a literal denominator is folded by the engine already
         if (!/^\(?-?[\d.]+(e[+-]?\d+)?\)?$/.test(den)) counts.set(den, (counts.get(den) ?? 0) + 1);

@@ -5,7 +5,14 @@ import {
   FunctionNode,
   OperatorNode,
   SymbolNode,
+  isFunctionNode,
+  isOperatorNode,
+  isParenthesisNode,
+  isSymbolNode,
   type MathNode,
+  type OperatorNodeFn,
+  type OperatorNodeMap,
+  type OperatorNodeOp,
 } from "mathjs";
 
 /**
@@ -17,21 +24,22 @@ import {
 const NON_SMOOTH = new Set(["abs", "min", "max"]);
 
 const num = (v: number) => new ConstantNode(v);
-const op = (o: string, fn: string, args: MathNode[]) => new OperatorNode(o as any, fn as any, args);
+const op = <F extends OperatorNodeFn>(o: OperatorNodeMap[F], fn: F, args: MathNode[]) =>
+  new OperatorNode(o, fn, args);
 const call = (name: string, args: MathNode[]) => new FunctionNode(new SymbolNode(name), args);
 
 function hasNonSmooth(node: MathNode): boolean {
   let found = false;
-  node.traverse((n: any) => {
-    if (n.type === "FunctionNode" && NON_SMOOTH.has(n.fn.name)) found = true;
+  node.traverse((n) => {
+    if (isFunctionNode(n) && NON_SMOOTH.has(n.fn.name)) found = true;
   });
   return found;
 }
 
 function dependsOn(node: MathNode, variable: string): boolean {
   let found = false;
-  node.traverse((n: any) => {
-    if (n.type === "SymbolNode" && n.name === variable) found = true;
+  node.traverse((n) => {
+    if (isSymbolNode(n) && n.name === variable) found = true;
   });
   return found;
 }
@@ -39,67 +47,64 @@ function dependsOn(node: MathNode, variable: string): boolean {
 function raw(node: MathNode, variable: string): MathNode {
   if (!dependsOn(node, variable)) return num(0);
   if (!hasNonSmooth(node)) return derivative(node, variable, { simplify: false });
-  const n = node as any;
-  switch (n.type) {
-    case "ParenthesisNode":
-      return raw(n.content, variable);
-    case "OperatorNode": {
-      const [a, b] = n.args as MathNode[];
-      switch (n.fn) {
-        case "unaryPlus":
-          return raw(a, variable);
-        case "unaryMinus":
-          return op("-", "unaryMinus", [raw(a, variable)]);
-        case "add":
-          return op("+", "add", [raw(a, variable), raw(b, variable)]);
-        case "subtract":
-          return op("-", "subtract", [raw(a, variable), raw(b, variable)]);
-        case "multiply":
-          return op("+", "add", [
-            op("*", "multiply", [raw(a, variable), b]),
-            op("*", "multiply", [a, raw(b, variable)]),
-          ]);
-        case "divide":
-          return op("/", "divide", [
-            op("-", "subtract", [
-              op("*", "multiply", [raw(a, variable), b]),
-              op("*", "multiply", [a, raw(b, variable)]),
-            ]),
-            op("^", "pow", [b, num(2)]),
-          ]);
-        case "pow":
-          return powRule(a, b, variable);
-      }
-      throw new Error(`no derivative rule for operator ${n.fn}`);
-    }
-    case "FunctionNode": {
-      const name = n.fn.name as string;
-      const args = n.args as MathNode[];
-      if (name === "pow") return powRule(args[0], args[1], variable);
-      if (name === "abs") return op("*", "multiply", [call("sign", [args[0]]), raw(args[0], variable)]);
-      if (name === "min" || name === "max") {
-        // min(a, b, c) = min(min(a, b), c): fold pairwise so each selection has two branches
-        let acc = args[0];
-        let dacc = raw(args[0], variable);
-        for (const next of args.slice(1)) {
-          const dnext = raw(next, variable);
-          dacc =
-            name === "min" ? call("ifle", [acc, next, dacc, dnext]) : call("ifle", [acc, next, dnext, dacc]);
-          acc = call(name, [acc, next]);
-        }
-        return dacc;
-      }
-      // smooth outer function of a non-smooth argument: chain rule through a placeholder
-      const placeholder = "U__";
-      const outer = derivative(call(name, [new SymbolNode(placeholder)]), placeholder, { simplify: false });
-      const inner = args[0];
-      const outerAt = outer.transform((m: any) =>
-        m.type === "SymbolNode" && m.name === placeholder ? inner : m,
-      );
-      return op("*", "multiply", [outerAt, raw(inner, variable)]);
-    }
+  if (isParenthesisNode(node)) return raw(node.content, variable);
+  if (isOperatorNode(node)) return rawOperator(node, variable);
+  if (isFunctionNode(node)) return rawFunction(node, variable);
+  throw new Error(`no derivative rule for node ${node.type}`);
+}
+
+function rawOperator(node: OperatorNode<OperatorNodeOp, OperatorNodeFn>, variable: string): MathNode {
+  const [a, b] = node.args;
+  switch (node.fn) {
+    case "unaryPlus":
+      return raw(a, variable);
+    case "unaryMinus":
+      return op("-", "unaryMinus", [raw(a, variable)]);
+    case "add":
+      return op("+", "add", [raw(a, variable), raw(b, variable)]);
+    case "subtract":
+      return op("-", "subtract", [raw(a, variable), raw(b, variable)]);
+    case "multiply":
+      return op("+", "add", [
+        op("*", "multiply", [raw(a, variable), b]),
+        op("*", "multiply", [a, raw(b, variable)]),
+      ]);
+    case "divide":
+      return op("/", "divide", [
+        op("-", "subtract", [
+          op("*", "multiply", [raw(a, variable), b]),
+          op("*", "multiply", [a, raw(b, variable)]),
+        ]),
+        op("^", "pow", [b, num(2)]),
+      ]);
+    case "pow":
+      return powRule(a, b, variable);
   }
-  throw new Error(`no derivative rule for node ${n.type}`);
+  throw new Error(`no derivative rule for operator ${node.fn}`);
+}
+
+function rawFunction(node: FunctionNode, variable: string): MathNode {
+  const name = node.fn.name;
+  const args = node.args;
+  if (name === "pow") return powRule(args[0], args[1], variable);
+  if (name === "abs") return op("*", "multiply", [call("sign", [args[0]]), raw(args[0], variable)]);
+  if (name === "min" || name === "max") {
+    // min(a, b, c) = min(min(a, b), c): fold pairwise so each selection has two branches
+    let acc = args[0];
+    let dacc = raw(args[0], variable);
+    for (const next of args.slice(1)) {
+      const dnext = raw(next, variable);
+      dacc = name === "min" ? call("ifle", [acc, next, dacc, dnext]) : call("ifle", [acc, next, dnext, dacc]);
+      acc = call(name, [acc, next]);
+    }
+    return dacc;
+  }
+  // smooth outer function of a non-smooth argument: chain rule through a placeholder
+  const placeholder = "U__";
+  const outer = derivative(call(name, [new SymbolNode(placeholder)]), placeholder, { simplify: false });
+  const inner = args[0];
+  const outerAt = outer.transform((m) => (isSymbolNode(m) && m.name === placeholder ? inner : m));
+  return op("*", "multiply", [outerAt, raw(inner, variable)]);
 }
 
 function powRule(base: MathNode, exponent: MathNode, variable: string): MathNode {

@@ -1,4 +1,13 @@
-import { parse, type MathNode } from "mathjs";
+import {
+  isConstantNode,
+  isFunctionNode,
+  isOperatorNode,
+  isParenthesisNode,
+  isSymbolNode,
+  parse,
+  type FunctionNode,
+  type MathNode,
+} from "mathjs";
 import type { SpecIssue } from "../diagnostics/issue.js";
 import { messages } from "../diagnostics/messages.js";
 import { ALLOWED_FUNCTIONS, isAllowedFunction } from "../spec/names.js";
@@ -133,61 +142,65 @@ function checkTree(ctx: CheckContext, root: MathNode, tokens: Token[]): Expressi
   // the tree keeps no positions, but a pre-order walk meets calls in the order their names appear
   const callNames = tokens.filter((tok, k) => tok.kind === "name" && tokens[k + 1]?.kind === "lparen");
   let callsSeen = 0;
-  root.traverse((node: MathNode) => {
+  root.traverse((node) => {
     if (problem) return;
-    const n = node as MathNode & Record<string, any>;
-    switch (n.type) {
-      case "ConstantNode":
-        if (typeof n.value !== "number" || !Number.isFinite(n.value))
-          problem = fail(ctx, "syntax", messages.syntax("only finite numbers are accepted"), 1);
-        return;
-      case "SymbolNode":
-        return; // names were checked token by token; function names appear here as call targets
-      case "ParenthesisNode":
-        return;
-      case "OperatorNode":
-        if (!OPERATORS.has(n.fn) || n.implicit)
-          problem = fail(
-            ctx,
-            "operator_not_allowed",
-            messages.syntax(`the operator '${n.op}' is not accepted`),
-            1,
-          );
-        return;
-      case "FunctionNode": {
-        const name = n.fn?.name as string | undefined;
-        const col = callNames[callsSeen++]?.column ?? 1;
-        if (!name || !isAllowedFunction(name)) {
-          problem = fail(
-            ctx,
-            "function_not_allowed",
-            messages.functionNotAllowed(String(name), Object.keys(ALLOWED_FUNCTIONS)),
-            col,
-          );
-          return;
-        }
-        const [lo, hi] = ALLOWED_FUNCTIONS[name];
-        const count = n.args.length as number;
-        if (count < lo || count > hi) {
-          const expected = lo === hi ? `${lo} argument${lo === 1 ? "" : "s"}` : `at least ${lo} arguments`;
-          problem = fail(ctx, "wrong_arity", messages.wrongArity(name, expected, count), col, name.length);
-        }
-        return;
-      }
-      default:
-        problem = fail(ctx, "syntax", messages.syntax(`this construct is not accepted (${n.type})`), 1);
+    if (isConstantNode(node)) {
+      // mathjs types the value as a number, but a parsed literal may be a string or boolean
+      const value: unknown = node.value;
+      if (typeof value !== "number" || !Number.isFinite(value))
+        problem = fail(ctx, "syntax", messages.syntax("only finite numbers are accepted"), 1);
+      return;
     }
+    // names were checked token by token; function names appear here as call targets
+    if (isSymbolNode(node) || isParenthesisNode(node)) return;
+    if (isOperatorNode(node)) {
+      if (!OPERATORS.has(node.fn) || node.implicit)
+        problem = fail(
+          ctx,
+          "operator_not_allowed",
+          messages.syntax(`the operator '${node.op}' is not accepted`),
+          1,
+        );
+      return;
+    }
+    if (isFunctionNode(node)) {
+      problem = checkCall(ctx, node, callNames[callsSeen++]?.column ?? 1);
+      return;
+    }
+    problem = fail(ctx, "syntax", messages.syntax(`this construct is not accepted (${node.type})`), 1);
   });
   return problem;
+}
+
+/** What a parsed call is made on: mathjs types it as a SymbolNode, but any node may stand there, named or not. */
+type CallTarget = MathNode & { name?: string };
+
+/** A call must name an allowed function and pass it an accepted number of arguments. */
+function checkCall(ctx: CheckContext, node: FunctionNode, col: number): ExpressionResult | null {
+  const target: CallTarget = node.fn;
+  const name = target?.name;
+  if (!name || !isAllowedFunction(name))
+    return fail(
+      ctx,
+      "function_not_allowed",
+      messages.functionNotAllowed(String(name), Object.keys(ALLOWED_FUNCTIONS)),
+      col,
+    );
+  const [lo, hi] = ALLOWED_FUNCTIONS[name];
+  const count = node.args.length;
+  if (count < lo || count > hi) {
+    const expected = lo === hi ? `${lo} argument${lo === 1 ? "" : "s"}` : `at least ${lo} arguments`;
+    return fail(ctx, "wrong_arity", messages.wrongArity(name, expected, count), col, name.length);
+  }
+  return null;
 }
 
 /** Rewrites user names to internal symbols, so no user text reaches the simplifier or compiler. */
 function toInternal(root: MathNode, names: NameTable): MathNode {
   return root.transform((node: MathNode) => {
-    const n = node as MathNode & Record<string, any>;
-    if (n.type === "SymbolNode" && names.internal.has(n.name)) {
-      const copy = n.clone();
-      copy.name = names.internal.get(n.name)!;
+    if (isSymbolNode(node) && names.internal.has(node.name)) {
+      const copy = node.clone();
+      copy.name = names.internal.get(node.name)!;
       return copy;
     }
     return node;

@@ -1,4 +1,4 @@
-import type { MathNode } from "mathjs";
+import { isFunctionNode, isSymbolNode, type MathNode } from "mathjs";
 
 const GREEK = new Set([
   "alpha",
@@ -52,13 +52,13 @@ export function expressionToTex(node: MathNode, userNames: Map<string, string>):
   return node.toTex({
     parenthesis: "auto",
     implicit: "hide",
-    handler: (n: any, options: any) => {
-      if (n.type === "SymbolNode" && userNames.has(n.name)) return `{${nameToTex(userNames.get(n.name)!)}}`;
-      if (n.type === "FunctionNode" && n.fn.name === "ifle") {
-        const [a, b, da, db] = n.args.map((x: MathNode) => x.toTex(options));
+    handler: (n: MathNode, options: object) => {
+      if (isSymbolNode(n) && userNames.has(n.name)) return `{${nameToTex(userNames.get(n.name)!)}}`;
+      if (isFunctionNode(n) && n.fn.name === "ifle") {
+        const [a, b, da, db] = n.args.map((x) => x.toTex(options));
         return `\\begin{cases} ${da} & ${a} \\le ${b} \\\\ ${db} & \\text{otherwise} \\end{cases}`;
       }
-      if (n.type === "FunctionNode" && n.fn.name === "sign")
+      if (isFunctionNode(n) && n.fn.name === "sign")
         return `\\operatorname{sgn}\\left(${n.args[0].toTex(options)}\\right)`;
       return undefined;
     },
@@ -69,9 +69,9 @@ export function expressionToTex(node: MathNode, userNames: Map<string, string>):
 export function expressionToText(node: MathNode, userNames: Map<string, string>): string {
   return node.toString({
     parenthesis: "auto",
-    handler: (n: any, _options: any) => {
-      if (n.type === "SymbolNode" && userNames.has(n.name)) return userNames.get(n.name)!;
+    handler: (n: MathNode) => {
+      if (isSymbolNode(n) && userNames.has(n.name)) return userNames.get(n.name)!;
       return undefined;
     },
-  } as any);
+  });
 }

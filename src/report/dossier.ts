@@ -16,11 +16,22 @@ export interface Dossier {
 }
 
 /** Results → figures (vega-lite → SVG) → HTML. No file is touched here. */
-export async function buildDossier(spec: NormalizedSpec, results: Results, options: RenderOptions): Promise<Dossier> {
+export async function buildDossier(
+  spec: NormalizedSpec,
+  results: Results,
+  options: RenderOptions,
+): Promise<Dossier> {
   const built = buildFigures(results, spec);
   const figures: RenderedFigure[] = [];
   for (const [k, f] of built.entries()) {
-    figures.push({ id: f.id, number: k + 1, title: f.title, caption: f.caption, svg: await renderSvg(f.spec), vegaLite: f.spec });
+    figures.push({
+      id: f.id,
+      number: k + 1,
+      title: f.title,
+      caption: f.caption,
+      svg: await renderSvg(f.spec),
+      vegaLite: f.spec,
+    });
   }
   return { html: assembleDossierHtml(spec, results, figures, options), figures };
 }

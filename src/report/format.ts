@@ -2,8 +2,17 @@
 
 const MINUS = "\u2212";
 const SUPERSCRIPT: Record<string, string> = {
-  "-": "\u207b", "0": "\u2070", "1": "\u00b9", "2": "\u00b2", "3": "\u00b3", "4": "\u2074",
-  "5": "\u2075", "6": "\u2076", "7": "\u2077", "8": "\u2078", "9": "\u2079",
+  "-": "\u207b",
+  "0": "\u2070",
+  "1": "\u00b9",
+  "2": "\u00b2",
+  "3": "\u00b3",
+  "4": "\u2074",
+  "5": "\u2075",
+  "6": "\u2076",
+  "7": "\u2077",
+  "8": "\u2078",
+  "9": "\u2079",
 };
 const superscript = (text: string) => [...text].map((c) => SUPERSCRIPT[c] ?? c).join("");
 
@@ -27,7 +36,8 @@ function numberParts(value: number | null | undefined, digits: number): NumberPa
   if (abs >= 1e-3 && abs < 1e6) {
     const rounded = Number(abs.toPrecision(digits));
     // toPrecision writes 60000 to 4 digits as "6.000e+4"; a whole number reads better, all its digits kept
-    if (rounded >= 10 ** digits) return { special: null, sign, mantissa: String(Math.round(abs)), exponent: null };
+    if (rounded >= 10 ** digits)
+      return { special: null, sign, mantissa: String(Math.round(abs)), exponent: null };
     return { special: null, sign, mantissa: trimZeros(rounded.toPrecision(digits)), exponent: null };
   }
   const [mantissa, exponent] = abs.toExponential(digits - 1).split("e");

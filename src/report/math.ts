@@ -9,7 +9,13 @@ import { dirname, join } from "node:path";
  * Each formula carries MathML as well, for screen readers and for archives.
  */
 export function renderMath(tex: string, display = false): string {
-  const html = katex.renderToString(tex, { displayMode: display, output: "htmlAndMathml", throwOnError: false, strict: "ignore", trust: false });
+  const html = katex.renderToString(tex, {
+    displayMode: display,
+    output: "htmlAndMathml",
+    throwOnError: false,
+    strict: "ignore",
+    trust: false,
+  });
   // the MathML namespace attribute is a URL the HTML parser does not need
   // namespace attributes are URLs the HTML parser does not need (MathML, and SVG in stretchy delimiters)
   return html.replace(/ xmlns="http:\/\/www\.w3\.org\/(1998\/Math\/MathML|2000\/svg)"/g, "");

@@ -22,9 +22,13 @@ export function loadTemplates(dir = TEMPLATES_DIR): TemplateSet {
   hb.registerHelper("gt", (a: number, b: number) => a > b);
   const partials = join(dir, "partials");
   for (const file of readdirSync(partials).sort()) {
-    if (file.endsWith(".hbs")) hb.registerPartial(file.slice(0, -4), readFileSync(join(partials, file), "utf8"));
+    if (file.endsWith(".hbs"))
+      hb.registerPartial(file.slice(0, -4), readFileSync(join(partials, file), "utf8"));
   }
-  const layout = hb.compile(readFileSync(join(dir, "layout.hbs"), "utf8"), { strict: false, noEscape: false });
+  const layout = hb.compile(readFileSync(join(dir, "layout.hbs"), "utf8"), {
+    strict: false,
+    noEscape: false,
+  });
   const set = { render: (view: object) => layout(view), css: readFileSync(join(dir, "dossier.css"), "utf8") };
   if (dir === TEMPLATES_DIR) cached = set;
   return set;

@@ -5,7 +5,8 @@ import { createHash } from "node:crypto";
  * UTF-16 code units, no whitespace, numbers in ECMAScript's shortest round-trip form.
  */
 export function canonicalJson(value: unknown): string {
-  if (typeof value === "number" && !Number.isFinite(value)) throw new Error(`canonical JSON has no form for ${value}`);
+  if (typeof value === "number" && !Number.isFinite(value))
+    throw new Error(`canonical JSON has no form for ${value}`);
   if (value === undefined) return "null";
   if (value === null || typeof value !== "object") return JSON.stringify(value);
   if (Array.isArray(value)) return `[${value.map(canonicalJson).join(",")}]`;

@@ -24,7 +24,8 @@ export function findForbiddenKeys(raw: unknown): SpecIssue[] {
     }
     for (const key of Object.keys(value)) {
       const child = [...path, key];
-      if (FORBIDDEN_KEYS.includes(key)) issues.push({ code: "forbidden_key", path: child, message: messages.forbiddenKey(key) });
+      if (FORBIDDEN_KEYS.includes(key))
+        issues.push({ code: "forbidden_key", path: child, message: messages.forbiddenKey(key) });
       else pending.push({ value: (value as Record<string, unknown>)[key], path: child });
     }
   }
@@ -34,7 +35,8 @@ export function findForbiddenKeys(raw: unknown): SpecIssue[] {
 function valueAt(raw: unknown, path: Path): unknown {
   let node: unknown = raw;
   for (const part of path) {
-    if (node === null || typeof node !== "object" || !Object.prototype.hasOwnProperty.call(node, part)) return undefined;
+    if (node === null || typeof node !== "object" || !Object.prototype.hasOwnProperty.call(node, part))
+      return undefined;
     node = (node as Record<string | number, unknown>)[part];
   }
   return node;
@@ -43,7 +45,8 @@ function valueAt(raw: unknown, path: Path): unknown {
 /** The keys the schema accepts for the object at `path`, to suggest the one a typo meant. */
 function knownKeysAt(path: Path): string[] {
   let node: z.ZodType | undefined = KeelSpecSchema;
-  const unwrap = (n: z.ZodType): z.ZodType => (n instanceof z.ZodOptional ? unwrap(n.unwrap() as z.ZodType) : n);
+  const unwrap = (n: z.ZodType): z.ZodType =>
+    n instanceof z.ZodOptional ? unwrap(n.unwrap() as z.ZodType) : n;
   for (const part of path) {
     const current: z.ZodType = unwrap(node!);
     if (current instanceof z.ZodObject) node = (current.shape as Record<string, z.ZodType>)[String(part)];
@@ -64,7 +67,8 @@ function editDistance(a: string, b: string): number {
     for (let j = 1; j <= b.length; j++) {
       const cost = a[i - 1] === b[j - 1] ? 0 : 1;
       d[i][j] = Math.min(d[i - 1][j] + 1, d[i][j - 1] + 1, d[i - 1][j - 1] + cost);
-      if (i > 1 && j > 1 && a[i - 1] === b[j - 2] && a[i - 2] === b[j - 1]) d[i][j] = Math.min(d[i][j], d[i - 2][j - 2] + 1);
+      if (i > 1 && j > 1 && a[i - 1] === b[j - 2] && a[i - 2] === b[j - 1])
+        d[i][j] = Math.min(d[i][j], d[i - 2][j - 2] + 1);
     }
   }
   return d[a.length][b.length];
@@ -92,15 +96,26 @@ export function fromZodIssues(zodIssues: z.core.$ZodIssue[], raw: unknown): Spec
     const path = i.path.map((p) => (typeof p === "symbol" ? String(p) : p));
     if (i.code === "unrecognized_keys") {
       const known = knownKeysAt(path);
-      return i.keys.map((key) => ({ code: "unknown_key", path: [...path, key], message: messages.unknownKey(key, suggestKey(key, known)) }));
+      return i.keys.map((key) => ({
+        code: "unknown_key",
+        path: [...path, key],
+        message: messages.unknownKey(key, suggestKey(key, known)),
+      }));
     }
     const last = path[path.length - 1];
     const value = valueAt(raw, path);
     // JSON has no Infinity, but a literal such as 1e999 overflows to it; zod then says "expected number, received number"
     if (i.code === "invalid_type" && i.expected === "number" && typeof value === "number")
       return [{ code: "not_finite", path, message: messages.numberOverflows() }];
-    if ((i.code === "invalid_type" || i.code === "invalid_value") && typeof last === "string" && value === undefined) {
-      const expected = i.code === "invalid_type" ? `a value of type ${i.expected}` : i.values.map((v) => JSON.stringify(v)).join(" or ");
+    if (
+      (i.code === "invalid_type" || i.code === "invalid_value") &&
+      typeof last === "string" &&
+      value === undefined
+    ) {
+      const expected =
+        i.code === "invalid_type"
+          ? `a value of type ${i.expected}`
+          : i.values.map((v) => JSON.stringify(v)).join(" or ");
       return [{ code: "missing_key", path, message: messages.missingKey(last, expected) }];
     }
     return [{ code: i.code, path, message: i.message }];

@@ -27,8 +27,14 @@ export function normalizeSpec(spec: KeelSpecInput, sha256: string): NormalizedSp
     organisation: pick(spec.organisation, "", "organisation"),
     purpose: pick(spec.purpose, "", "purpose"),
     timeUnit: spec.time.unit,
-    states: spec.states.map((s) => ({ name: s.name, label: s.label ?? s.name, unit: s.unit ?? "", min: s.min, max: s.max })),
-    parameters: (pick(spec.parameters, [], "parameters")).map((p) => ({
+    states: spec.states.map((s) => ({
+      name: s.name,
+      label: s.label ?? s.name,
+      unit: s.unit ?? "",
+      min: s.min,
+      max: s.max,
+    })),
+    parameters: pick(spec.parameters, [], "parameters").map((p) => ({
       name: p.name,
       value: p.value,
       unit: p.unit ?? "",
@@ -44,12 +50,16 @@ export function normalizeSpec(spec: KeelSpecInput, sha256: string): NormalizedSp
       initial: Object.fromEntries(spec.states.map((s) => [s.name, sc.initial[s.name]])),
       horizon: sc.horizon,
     })),
-    assumptions: pick(spec.assumptions, [], "assumptions").map((a) => ({ text: a.text, condition: a.condition ?? null })),
+    assumptions: pick(spec.assumptions, [], "assumptions").map((a) => ({
+      text: a.text,
+      condition: a.condition ?? null,
+    })),
     cautions: pick(spec.cautions, [], "cautions"),
     claims: pick(spec.claims, [], "claims"),
     analysis: {
       basins: { ...(spec.analysis?.basins ?? {}) },
-      parameters: spec.analysis?.parameters ?? (spec.parameters ?? []).filter((p) => p.range).map((p) => p.name),
+      parameters:
+        spec.analysis?.parameters ?? (spec.parameters ?? []).filter((p) => p.range).map((p) => p.name),
       parameterPairs: (spec.analysis?.parameterPairs ?? []).map(([a, b]) => [a, b] as [string, string]),
     },
     defaulted,

@@ -33,12 +33,14 @@ export function parseJsonText(text: string): Parsed<unknown> {
     const start = Math.max(0, column - 1 - SOURCE_CONTEXT);
     return {
       ok: false,
-      issues: [{
-        code: "json_syntax",
-        path: [],
-        message: messages.jsonSyntax(fault.detail, line, column),
-        source: { text: lineText.slice(start, column - 1 + SOURCE_CONTEXT), column: column - start },
-      }],
+      issues: [
+        {
+          code: "json_syntax",
+          path: [],
+          message: messages.jsonSyntax(fault.detail, line, column),
+          source: { text: lineText.slice(start, column - 1 + SOURCE_CONTEXT), column: column - start },
+        },
+      ],
     };
   }
 }

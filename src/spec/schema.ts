@@ -1,5 +1,10 @@
 import { z } from "zod";
-import { DEFAULT_BASIN_COARSE, DEFAULT_BASIN_RESOLUTION, DEFAULT_CLAIM_CONDITION_SAMPLES, DEFAULT_CLAIM_NEAR } from "./defaults.js";
+import {
+  DEFAULT_BASIN_COARSE,
+  DEFAULT_BASIN_RESOLUTION,
+  DEFAULT_CLAIM_CONDITION_SAMPLES,
+  DEFAULT_CLAIM_NEAR,
+} from "./defaults.js";
 
 /**
  * The spec contract (see DEVELOPERS.md). Each key carries its documentation, which flows into
@@ -8,8 +13,7 @@ import { DEFAULT_BASIN_COARSE, DEFAULT_BASIN_RESOLUTION, DEFAULT_CLAIM_CONDITION
  */
 const finite = () => z.number().refine(Number.isFinite, { message: "expected a finite number" });
 
-const interval = (what: string) =>
-  z.tuple([finite(), finite()]).describe(`${what} as [lo, hi], lo < hi.`);
+const interval = (what: string) => z.tuple([finite(), finite()]).describe(`${what} as [lo, hi], lo < hi.`);
 
 export const StateSpecSchema = z
   .strictObject({
@@ -28,8 +32,9 @@ export const ParameterSpecSchema = z
     unit: z.string().optional().describe("Unit, e.g. '1/year'."),
     label: z.string().optional().describe("Meaning of the parameter, in words."),
     source: z.string().optional().describe("Where the value comes from (study, estimate, or 'invented')."),
-    range: interval("Plausible interval, used by threshold search and uncertainty; must contain value")
-      .optional(),
+    range: interval(
+      "Plausible interval, used by threshold search and uncertainty; must contain value",
+    ).optional(),
   })
   .describe("One model parameter.");
 
@@ -54,65 +59,121 @@ export const AssumptionSpecSchema = z
   })
   .describe("An assumption the analysis rests on.");
 
-const pointSchema = z.record(z.string(), finite()).describe("A point in state space: a value for every state.");
-const nearTolerance = z.number().positive().max(1).optional()
-  .describe(`How near counts as near, as a fraction of the window in each state. Default ${DEFAULT_CLAIM_NEAR}.`);
-const presenceSchema = z.string().min(1)
-  .describe("Which populations the attractor keeps: 'coexistence' (all present), '<state> only' (e.g. 'S only'), or 'all absent'.");
+const pointSchema = z
+  .record(z.string(), finite())
+  .describe("A point in state space: a value for every state.");
+const nearTolerance = z
+  .number()
+  .positive()
+  .max(1)
+  .optional()
+  .describe(
+    `How near counts as near, as a fraction of the window in each state. Default ${DEFAULT_CLAIM_NEAR}.`,
+  );
+const presenceSchema = z
+  .string()
+  .min(1)
+  .describe(
+    "Which populations the attractor keeps: 'coexistence' (all present), '<state> only' (e.g. 'S only'), or 'all absent'.",
+  );
 const claimBase = {
-  id: z.string().regex(/^[A-Za-z0-9][A-Za-z0-9_.-]*$/, { message: "a claim id is letters, digits, '_', '.' or '-'" })
+  id: z
+    .string()
+    .regex(/^[A-Za-z0-9][A-Za-z0-9_.-]*$/, { message: "a claim id is letters, digits, '_', '.' or '-'" })
     .describe("Short id for the claim, quoted in the verdicts."),
   text: z.string().optional().describe("The claim as the plan or paper words it."),
 };
 
 export const ClaimSpecSchema = z.discriminatedUnion("kind", [
-  z.strictObject({
-    ...claimBase,
-    kind: z.literal("equilibrium-count"),
-    count: z.number().int().min(0).describe("The number of equilibria claimed."),
-    stableOnly: z.boolean().optional().describe("Count only stable equilibria. Default false."),
-  }).describe("The window holds this many equilibria."),
-  z.strictObject({
-    ...claimBase,
-    kind: z.literal("equilibrium-type"),
-    near: pointSchema,
-    type: z.enum(["saddle", "stable-node", "unstable-node", "stable-focus", "unstable-focus", "center", "stable-degenerate-node",
-      "unstable-degenerate-node", "stable-star", "unstable-star", "non-hyperbolic", "stable", "unstable"])
-      .describe("The type claimed, in keel's vocabulary; 'stable' or 'unstable' accept any type of that stability."),
-    tolerance: nearTolerance,
-  }).describe("An equilibrium near this point has this type."),
-  z.strictObject({
-    ...claimBase,
-    kind: z.literal("scenario-fate"),
-    scenario: z.string().describe("Name of a scenario in the spec."),
-    reaches: z.enum(["equilibrium", "cycle"]).describe("What the scenario's trajectory converges to."),
-    near: pointSchema.optional().describe("For an equilibrium: the point it is claimed to be near."),
-    tolerance: nearTolerance,
-  }).describe("A scenario converges to an equilibrium near a point, or to a periodic orbit."),
-  z.strictObject({
-    ...claimBase,
-    kind: z.literal("parameter-side"),
-    parameter: z.string().describe("A parameter with a range."),
-    side: z.enum(["below", "above"]).describe("The current value lies below or above the threshold."),
-    threshold: z.enum(["saddle-node", "transcritical", "hopf", "boundary-crossing", "any"]).optional()
-      .describe("Kind of the threshold meant; default 'any': the nearest threshold that changes the outcome."),
-  }).describe("A parameter lies below or above its threshold for an outcome."),
-  z.strictObject({
-    ...claimBase,
-    kind: z.literal("condition-decides"),
-    condition: z.string().describe("An inequality between parameters, e.g. 'a12 < K1/K2'."),
-    attractor: presenceSchema,
-    samples: z.number().int().min(8).max(4096).optional().describe(`Parameter points sampled across the ranges. Default ${DEFAULT_CLAIM_CONDITION_SAMPLES}.`),
-  }).describe("The condition holds exactly when a stable attractor of this kind exists, across the parameter ranges (necessary and sufficient)."),
-  z.strictObject({
-    ...claimBase,
-    kind: z.literal("threshold-value"),
-    parameter: z.string().describe("A parameter with a range."),
-    value: finite().describe("The threshold value claimed."),
-    tolerance: z.number().positive().describe("Allowed relative difference, e.g. 0.01 for 1%."),
-    threshold: z.enum(["saddle-node", "transcritical", "hopf", "boundary-crossing", "any"]).optional()
-      .describe("Kind of threshold meant. Default 'any'."),
-  }).describe("A threshold of this parameter lies at this value, within the tolerance."),
+  z
+    .strictObject({
+      ...claimBase,
+      kind: z.literal("equilibrium-count"),
+      count: z.number().int().min(0).describe("The number of equilibria claimed."),
+      stableOnly: z.boolean().optional().describe("Count only stable equilibria. Default false."),
+    })
+    .describe("The window holds this many equilibria."),
+  z
+    .strictObject({
+      ...claimBase,
+      kind: z.literal("equilibrium-type"),
+      near: pointSchema,
+      type: z
+        .enum([
+          "saddle",
+          "stable-node",
+          "unstable-node",
+          "stable-focus",
+          "unstable-focus",
+          "center",
+          "stable-degenerate-node",
+          "unstable-degenerate-node",
+          "stable-star",
+          "unstable-star",
+          "non-hyperbolic",
+          "stable",
+          "unstable",
+        ])
+        .describe(
+          "The type claimed, in keel's vocabulary; 'stable' or 'unstable' accept any type of that stability.",
+        ),
+      tolerance: nearTolerance,
+    })
+    .describe("An equilibrium near this point has this type."),
+  z
+    .strictObject({
+      ...claimBase,
+      kind: z.literal("scenario-fate"),
+      scenario: z.string().describe("Name of a scenario in the spec."),
+      reaches: z.enum(["equilibrium", "cycle"]).describe("What the scenario's trajectory converges to."),
+      near: pointSchema.optional().describe("For an equilibrium: the point it is claimed to be near."),
+      tolerance: nearTolerance,
+    })
+    .describe("A scenario converges to an equilibrium near a point, or to a periodic orbit."),
+  z
+    .strictObject({
+      ...claimBase,
+      kind: z.literal("parameter-side"),
+      parameter: z.string().describe("A parameter with a range."),
+      side: z.enum(["below", "above"]).describe("The current value lies below or above the threshold."),
+      threshold: z
+        .enum(["saddle-node", "transcritical", "hopf", "boundary-crossing", "any"])
+        .optional()
+        .describe(
+          "Kind of the threshold meant; default 'any': the nearest threshold that changes the outcome.",
+        ),
+    })
+    .describe("A parameter lies below or above its threshold for an outcome."),
+  z
+    .strictObject({
+      ...claimBase,
+      kind: z.literal("condition-decides"),
+      condition: z.string().describe("An inequality between parameters, e.g. 'a12 < K1/K2'."),
+      attractor: presenceSchema,
+      samples: z
+        .number()
+        .int()
+        .min(8)
+        .max(4096)
+        .optional()
+        .describe(`Parameter points sampled across the ranges. Default ${DEFAULT_CLAIM_CONDITION_SAMPLES}.`),
+    })
+    .describe(
+      "The condition holds exactly when a stable attractor of this kind exists, across the parameter ranges (necessary and sufficient).",
+    ),
+  z
+    .strictObject({
+      ...claimBase,
+      kind: z.literal("threshold-value"),
+      parameter: z.string().describe("A parameter with a range."),
+      value: finite().describe("The threshold value claimed."),
+      tolerance: z.number().positive().describe("Allowed relative difference, e.g. 0.01 for 1%."),
+      threshold: z
+        .enum(["saddle-node", "transcritical", "hopf", "boundary-crossing", "any"])
+        .optional()
+        .describe("Kind of threshold meant. Default 'any'."),
+    })
+    .describe("A threshold of this parameter lies at this value, within the tolerance."),
 ]);
 
 export type ClaimSpec = z.infer<typeof ClaimSpecSchema>;
@@ -133,7 +194,9 @@ export const KeelSpecSchema = z
     time: z
       .strictObject({ unit: z.string().min(1).describe("Unit of time, e.g. 'year' or 'day'.") })
       .describe("The model's time axis."),
-    states: z.array(StateSpecSchema).describe("The state variables (exactly 2: keel analyses planar models)."),
+    states: z
+      .array(StateSpecSchema)
+      .describe("The state variables (exactly 2: keel analyses planar models)."),
     parameters: z.array(ParameterSpecSchema).optional().describe("The parameters. Default: none."),
     equations: z
       .record(z.string(), z.string())
@@ -147,23 +210,48 @@ export const KeelSpecSchema = z
       .describe("Region analysed and drawn, per state. Default: the states' [min, max]."),
     scenarios: z.array(ScenarioSpecSchema).optional().describe("Starting states to follow. Default: none."),
     assumptions: z.array(AssumptionSpecSchema).optional().describe("Assumptions. Default: none."),
-    cautions: z.array(z.string()).optional().describe("Cautions specific to this model, printed in the dossier."),
-    claims: z.array(ClaimSpecSchema).optional()
-      .describe("Statements about the model for keel to check one by one; each gets a verdict. Default: none."),
+    cautions: z
+      .array(z.string())
+      .optional()
+      .describe("Cautions specific to this model, printed in the dossier."),
+    claims: z
+      .array(ClaimSpecSchema)
+      .optional()
+      .describe(
+        "Statements about the model for keel to check one by one; each gets a verdict. Default: none.",
+      ),
     analysis: z
       .strictObject({
         basins: z
           .strictObject({
-            resolution: z.number().int().min(8).max(4096).optional()
+            resolution: z
+              .number()
+              .int()
+              .min(8)
+              .max(4096)
+              .optional()
               .describe(`Effective cells per side of the basin map. Default ${DEFAULT_BASIN_RESOLUTION}.`),
-            coarse: z.number().int().min(4).max(1024).optional()
-              .describe(`Cells per side of the first uniform pass; resolution/coarse must be a power of two. Default ${DEFAULT_BASIN_COARSE}.`),
+            coarse: z
+              .number()
+              .int()
+              .min(4)
+              .max(1024)
+              .optional()
+              .describe(
+                `Cells per side of the first uniform pass; resolution/coarse must be a power of two. Default ${DEFAULT_BASIN_COARSE}.`,
+              ),
           })
           .optional()
           .describe("Basin map settings."),
-        parameters: z.array(z.string()).optional()
-          .describe("Parameters whose thresholds are searched (each needs a range). Default: every parameter with a range."),
-        parameterPairs: z.array(z.tuple([z.string(), z.string()])).optional()
+        parameters: z
+          .array(z.string())
+          .optional()
+          .describe(
+            "Parameters whose thresholds are searched (each needs a range). Default: every parameter with a range.",
+          ),
+        parameterPairs: z
+          .array(z.tuple([z.string(), z.string()]))
+          .optional()
           .describe("Pairs of parameters (each with a range) for two-parameter outcome maps. Default: none."),
       })
       .optional()
@@ -184,7 +272,8 @@ export function buildSpecJsonSchema(): Record<string, unknown> {
     // state the length, so the published schema refuses what the validator refuses
     override: (ctx) => {
       const def = ctx.zodSchema._zod.def;
-      if (def.type === "tuple" && !def.rest) Object.assign(ctx.jsonSchema, { minItems: def.items.length, maxItems: def.items.length });
+      if (def.type === "tuple" && !def.rest)
+        Object.assign(ctx.jsonSchema, { minItems: def.items.length, maxItems: def.items.length });
     },
   }) as Record<string, unknown>;
   return { $id: "keel-spec.schema.json", title: "keel model spec", ...schema };

@@ -25,5 +25,11 @@ export class Solver {
   denseOutput: boolean;
   relativeTolerance: number | number[];
   absoluteTolerance: number | number[];
-  solve(f: (x: number, y: number[]) => number[], x: number, y0: number[], xEnd: number, solOut?: OdexObserver): OdexResult;
+  solve(
+    f: (x: number, y: number[]) => number[],
+    x: number,
+    y0: number[],
+    xEnd: number,
+    solOut?: OdexObserver,
+  ): OdexResult;
 }

@@ -72,7 +72,9 @@ const exampleSpec = (file: string): Record<string, unknown> => readExample(file.
 const exampleFieldOf = (file: string): Field => exampleField(file.replace(/\.json$/, ""));
 
 /** Runs the analysis and keeps the kernel it generated (the evaluator receives plan.kernelSource). */
-async function analyzeKeepingKernel(specText: string): Promise<{ model: Model; results: Results; kernel: BasinKernel }> {
+async function analyzeKeepingKernel(
+  specText: string,
+): Promise<{ model: Model; results: Results; kernel: BasinKernel }> {
   const prepared = prepareModel(specText);
   if (!prepared.ok) throw new Error(JSON.stringify(prepared.issues));
   let source = "";
@@ -118,7 +120,8 @@ function cellCentre(box: Box, n: number, i: number, j: number): Point {
  */
 function branchPolyline(f: Field, results: Results, branch: SeparatrixResult): Point[] {
   const box = boxOf(results);
-  const scaled = (a: Point, b: Point) => Math.hypot((a[0] - b[0]) / box.width[0], (a[1] - b[1]) / box.width[1]);
+  const scaled = (a: Point, b: Point) =>
+    Math.hypot((a[0] - b[0]) / box.width[0], (a[1] - b[1]) / box.width[1]);
   const inside = (p: Point) => p.every((v, k) => v >= box.lo[k] && v <= box.hi[k]);
   const { t, x, y } = branch.path;
   const out: Point[] = [[x[0], y[0]]];
@@ -139,7 +142,7 @@ function branchPolyline(f: Field, results: Results, branch: SeparatrixResult): P
     const exit: Point = [end.point[names[0]], end.point[names[1]]];
     const last = out[out.length - 1];
     const chord = scaled(exit, last) || 1;
-    out.push(exit, [exit[0] + ((exit[0] - last[0]) / chord), exit[1] + ((exit[1] - last[1]) / chord)]);
+    out.push(exit, [exit[0] + (exit[0] - last[0]) / chord, exit[1] + (exit[1] - last[1]) / chord]);
   } else if (end.kind === "equilibrium") {
     const e = results.equilibria.find((q) => q.id === end.target)!;
     const target: Point = [e.point[results.model.states[0]], e.point[results.model.states[1]]];
@@ -158,8 +161,16 @@ function branchPolyline(f: Field, results: Results, branch: SeparatrixResult): P
 /** Both stable branches of a saddle joined into one oriented curve: branch −1 reversed, then branch +1. */
 function saddleStableCurve(f: Field, results: Results, saddle: string): Point[] {
   const branches = results.separatrices.filter((s) => s.saddle === saddle && s.manifold === "stable");
-  const minus = branchPolyline(f, results, branches.find((b) => b.side === -1)!);
-  const plus = branchPolyline(f, results, branches.find((b) => b.side === 1)!);
+  const minus = branchPolyline(
+    f,
+    results,
+    branches.find((b) => b.side === -1)!,
+  );
+  const plus = branchPolyline(
+    f,
+    results,
+    branches.find((b) => b.side === 1)!,
+  );
   return [...minus.reverse(), ...plus.slice(1)];
 }
 
@@ -170,10 +181,13 @@ function saddleStableCurve(f: Field, results: Results, saddle: string): Point[] 
 function nearestSide(box: Box, curve: Point[], p: Point): { distance: number; side: number } {
   let best = Infinity;
   let side = 0;
-  const px = p[0] / box.width[0], py = p[1] / box.width[1];
+  const px = p[0] / box.width[0],
+    py = p[1] / box.width[1];
   for (let k = 0; k + 1 < curve.length; k++) {
-    const ax = curve[k][0] / box.width[0], ay = curve[k][1] / box.width[1];
-    const dx = curve[k + 1][0] / box.width[0] - ax, dy = curve[k + 1][1] / box.width[1] - ay;
+    const ax = curve[k][0] / box.width[0],
+      ay = curve[k][1] / box.width[1];
+    const dx = curve[k + 1][0] / box.width[0] - ax,
+      dy = curve[k + 1][1] / box.width[1] - ay;
     const len2 = dx * dx + dy * dy;
     const u = len2 > 0 ? Math.min(1, Math.max(0, ((px - ax) * dx + (py - ay) * dy) / len2)) : 0;
     const d = Math.hypot(px - ax - u * dx, py - ay - u * dy);
@@ -201,11 +215,17 @@ const basinHorizon = (results: Results) => (results.settings.basins as { horizon
  * An independent uniform n × n grid of reference labels (Dormand–Prince in the test), at the given cell
  * centres.
  */
-function referenceGrid(f: Field, results: Results, n: number, centreOf: (i: number, j: number) => Point): string[] {
+function referenceGrid(
+  f: Field,
+  results: Results,
+  n: number,
+  centreOf: (i: number, j: number) => Point,
+): string[] {
   const targets = targetsOf(results);
   const horizon = basinHorizon(results);
   const out: string[] = [];
-  for (let j = 0; j < n; j++) for (let i = 0; i < n; i++) out.push(referenceFate(f, centreOf(i, j), targets, horizon));
+  for (let j = 0; j < n; j++)
+    for (let i = 0; i < n; i++) out.push(referenceFate(f, centreOf(i, j), targets, horizon));
   return out;
 }
 
@@ -221,14 +241,17 @@ function fractionsOf(names: string[]): Record<string, number> {
  */
 function boundaryFraction(names: string[], n: number): number {
   let count = 0;
-  for (let j = 0; j < n; j++) for (let i = 0; i < n; i++) {
-    let differs = false;
-    for (let dj = -1; dj <= 1 && !differs; dj++) for (let di = -1; di <= 1 && !differs; di++) {
-      const a = i + di, b = j + dj;
-      if (a >= 0 && a < n && b >= 0 && b < n && names[b * n + a] !== names[j * n + i]) differs = true;
+  for (let j = 0; j < n; j++)
+    for (let i = 0; i < n; i++) {
+      let differs = false;
+      for (let dj = -1; dj <= 1 && !differs; dj++)
+        for (let di = -1; di <= 1 && !differs; di++) {
+          const a = i + di,
+            b = j + dj;
+          if (a >= 0 && a < n && b >= 0 && b < n && names[b * n + a] !== names[j * n + i]) differs = true;
+        }
+      if (differs) count++;
     }
-    if (differs) count++;
-  }
   return count / (n * n);
 }
 
@@ -236,16 +259,20 @@ function boundaryFraction(names: string[], n: number): number {
  * Whether fine cell (i, j) of the map is a boundary cell (borders another label), as errorBound counts them.
  */
 function isMapBoundary(names: string[], n: number, i: number, j: number): boolean {
-  for (let dj = -1; dj <= 1; dj++) for (let di = -1; di <= 1; di++) {
-    const a = i + di, b = j + dj;
-    if (a >= 0 && a < n && b >= 0 && b < n && names[b * n + a] !== names[j * n + i]) return true;
-  }
+  for (let dj = -1; dj <= 1; dj++)
+    for (let di = -1; di <= 1; di++) {
+      const a = i + di,
+        b = j + dj;
+      if (a >= 0 && a < n && b >= 0 && b < n && names[b * n + a] !== names[j * n + i]) return true;
+    }
   return false;
 }
 
 function equilibriumAt(results: Results, point: Point): string {
   const [a, b] = results.model.states;
-  const found = results.equilibria.find((e) => Math.abs(e.point[a] - point[0]) < 1e-9 && Math.abs(e.point[b] - point[1]) < 1e-9);
+  const found = results.equilibria.find(
+    (e) => Math.abs(e.point[a] - point[0]) < 1e-9 && Math.abs(e.point[b] - point[1]) < 1e-9,
+  );
   if (!found) throw new Error(`no equilibrium at ${point}`);
   return found.id;
 }
@@ -271,18 +298,32 @@ describe("basin map of the competition model (Strogatz, Nonlinear Dynamics and C
   it("analyze(competition).basins labels every cell farther than 3 cells from the saddle's stable manifold with its side's attractor", () => {
     const curve = saddleStableCurve(competitionField, results, equilibriumAt(results, [1, 1]));
     // which side is whose, decided by the attractors' own positions
-    const sideLabel = new Map([[nearestSide(box, curve, [0, 2]).side, upperLeft], [nearestSide(box, curve, [3, 0]).side, lowerRight]]);
+    const sideLabel = new Map([
+      [nearestSide(box, curve, [0, 2]).side, upperLeft],
+      [nearestSide(box, curve, [3, 0]).side, lowerRight],
+    ]);
     expect(sideLabel.size).toBe(2);
     const { n, names } = gridNames(results);
     const near = NEAR_CURVE_CELLS / n;
-    let far = 0, wrongFar = 0, close = 0, disagreeClose = 0;
-    for (let j = 0; j < n; j++) for (let i = 0; i < n; i++) {
-      const { distance, side } = nearestSide(box, curve, cellCentre(box, n, i, j));
-      const agrees = names[j * n + i] === sideLabel.get(side);
-      if (distance > near) { far++; if (!agrees) wrongFar++; }
-      else { close++; if (!agrees) disagreeClose++; }
-    }
-    console.info(`competition ${n}x${n}: ${far} cells beyond ${NEAR_CURVE_CELLS} cells of the separatrix, ${wrongFar} mislabelled; ${close} within, ${disagreeClose} of them on the other side's label`);
+    let far = 0,
+      wrongFar = 0,
+      close = 0,
+      disagreeClose = 0;
+    for (let j = 0; j < n; j++)
+      for (let i = 0; i < n; i++) {
+        const { distance, side } = nearestSide(box, curve, cellCentre(box, n, i, j));
+        const agrees = names[j * n + i] === sideLabel.get(side);
+        if (distance > near) {
+          far++;
+          if (!agrees) wrongFar++;
+        } else {
+          close++;
+          if (!agrees) disagreeClose++;
+        }
+      }
+    console.info(
+      `competition ${n}x${n}: ${far} cells beyond ${NEAR_CURVE_CELLS} cells of the separatrix, ${wrongFar} mislabelled; ${close} within, ${disagreeClose} of them on the other side's label`,
+    );
     expect(wrongFar).toBe(0);
     // the band near the curve must not swallow the test
     expect(far).toBeGreaterThan(0.9 * n * n);
@@ -301,16 +342,31 @@ describe("basin map of the competition model (Strogatz, Nonlinear Dynamics and C
  * cells (those errorBound counts) or within FRACTION_ALLOWANCE_CELLS; fractions then differ by at
  * most errorBound plus that allowance.
  */
-function expectLabelsAndFractionsAgree(results: Results, names: string[], independent: string[], n: number, what: string) {
-  let differ = 0, differOffBoundary = 0;
-  for (let j = 0; j < n; j++) for (let i = 0; i < n; i++) {
-    if (names[j * n + i] === independent[j * n + i]) continue;
-    differ++;
-    if (!isMapBoundary(names, n, i, j)) differOffBoundary++;
-  }
-  const mine = fractionsOf(names), theirs = fractionsOf(independent);
-  const worst = Math.max(...[...new Set([...Object.keys(mine), ...Object.keys(theirs)])].map((k) => Math.abs((mine[k] ?? 0) - (theirs[k] ?? 0))));
-  console.info(`${what}: ${differ} of ${n * n} cells differ from the reference (${differOffBoundary} off the map's boundary); worst fraction gap ${worst.toExponential(2)}, errorBound ${results.basins.errorBound.toExponential(2)}`);
+function expectLabelsAndFractionsAgree(
+  results: Results,
+  names: string[],
+  independent: string[],
+  n: number,
+  what: string,
+) {
+  let differ = 0,
+    differOffBoundary = 0;
+  for (let j = 0; j < n; j++)
+    for (let i = 0; i < n; i++) {
+      if (names[j * n + i] === independent[j * n + i]) continue;
+      differ++;
+      if (!isMapBoundary(names, n, i, j)) differOffBoundary++;
+    }
+  const mine = fractionsOf(names),
+    theirs = fractionsOf(independent);
+  const worst = Math.max(
+    ...[...new Set([...Object.keys(mine), ...Object.keys(theirs)])].map((k) =>
+      Math.abs((mine[k] ?? 0) - (theirs[k] ?? 0)),
+    ),
+  );
+  console.info(
+    `${what}: ${differ} of ${n * n} cells differ from the reference (${differOffBoundary} off the map's boundary); worst fraction gap ${worst.toExponential(2)}, errorBound ${results.basins.errorBound.toExponential(2)}`,
+  );
   expect(differOffBoundary).toBeLessThanOrEqual(FRACTION_ALLOWANCE_CELLS);
   expect(worst).toBeLessThanOrEqual(results.basins.errorBound + FRACTION_ALLOWANCE_CELLS / (n * n));
 }
@@ -320,7 +376,8 @@ function expectLabelsAndFractionsAgree(results: Results, names: string[], indepe
 describe("basin maps of the example specs", () => {
   const examples: Record<string, { model: Model; results: Results; kernel: BasinKernel }> = {};
   beforeAll(async () => {
-    for (const file of ["reservoir-competition.json", "grazer-forage.json"]) examples[file] = await analyzeKeepingKernel(JSON.stringify(exampleSpec(file)));
+    for (const file of ["reservoir-competition.json", "grazer-forage.json"])
+      examples[file] = await analyzeKeepingKernel(JSON.stringify(exampleSpec(file)));
   });
 
   it("analyzeAsync(examples) kernel labels 500 seeded random starts each as the reference Dormand–Prince does", () => {
@@ -329,7 +386,9 @@ describe("basin maps of the example specs", () => {
       const f = exampleFieldOf(file);
       const targets = targetsOf(results);
       const horizon = basinHorizon(results);
-      const curves = results.separatrices.filter((s) => s.manifold === "stable" && s.path.t.length > 0).map((s) => branchPolyline(f, results, s));
+      const curves = results.separatrices
+        .filter((s) => s.manifold === "stable" && s.path.t.length > 0)
+        .map((s) => branchPolyline(f, results, s));
       const uniform = seededUniform(0x5eed + file.length);
       const starts = new Float64Array(1000);
       for (let k = 0; k < 500; k++) {
@@ -345,10 +404,14 @@ describe("basin maps of the example specs", () => {
         const theirs = referenceFate(f, start, targets, horizon);
         if (mine === theirs) continue;
         const distance = Math.min(...curves.map((c) => nearestSide(box, c, start).distance));
-        mismatches.push(`(${start}) kernel ${mine}, reference ${theirs}, ${distance.toExponential(1)} from a separatrix`);
+        mismatches.push(
+          `(${start}) kernel ${mine}, reference ${theirs}, ${distance.toExponential(1)} from a separatrix`,
+        );
         expect(distance, mismatches.at(-1)).toBeLessThan(SEPARATRIX_NEAR);
       }
-      console.info(`${file}: ${mismatches.length} of 500 starts labelled differently by kernel and reference${mismatches.length ? `: ${mismatches.join("; ")}` : ""}`);
+      console.info(
+        `${file}: ${mismatches.length} of 500 starts labelled differently by kernel and reference${mismatches.length ? `: ${mismatches.join("; ")}` : ""}`,
+      );
       // every label is an attractor: none of these starts leaves the window or stays undecided
       expect(Array.from(labels).every((l) => l >= 0)).toBe(true);
     }
@@ -357,21 +420,30 @@ describe("basin maps of the example specs", () => {
   it("analyzeAsync(grazer-forage).basins at 1024 fractions agree with the reference on every 8th fine cell", () => {
     const { results } = examples["grazer-forage.json"];
     const { n, names } = gridNames(results);
-    const step = 8, m = n / step;
+    const step = 8,
+      m = n / step;
     const box = boxOf(results);
-    const independent = referenceGrid(exampleFieldOf("grazer-forage.json"), results, m, (i, j) => cellCentre(box, n, step * i + step / 2, step * j + step / 2));
-    let differ = 0, differOffBoundary = 0;
-    for (let j = 0; j < m; j++) for (let i = 0; i < m; i++) {
-      const fi = step * i + step / 2, fj = step * j + step / 2;
-      if (names[fj * n + fi] === independent[j * m + i]) continue;
-      differ++;
-      if (!isMapBoundary(names, n, fi, fj)) differOffBoundary++;
-    }
+    const independent = referenceGrid(exampleFieldOf("grazer-forage.json"), results, m, (i, j) =>
+      cellCentre(box, n, step * i + step / 2, step * j + step / 2),
+    );
+    let differ = 0,
+      differOffBoundary = 0;
+    for (let j = 0; j < m; j++)
+      for (let i = 0; i < m; i++) {
+        const fi = step * i + step / 2,
+          fj = step * j + step / 2;
+        if (names[fj * n + fi] === independent[j * m + i]) continue;
+        differ++;
+        if (!isMapBoundary(names, n, fi, fj)) differOffBoundary++;
+      }
     // the sample is a 128 x 128 uniform grid: its fractions carry its own boundary fraction as error
-    const mine = results.basins.fractions, theirs = fractionsOf(independent);
+    const mine = results.basins.fractions,
+      theirs = fractionsOf(independent);
     const worst = Math.max(...results.basins.attractors.map((k) => Math.abs(mine[k] - (theirs[k] ?? 0))));
     const sampleError = boundaryFraction(independent, m);
-    console.info(`grazer-forage 1024/64 sampled at ${m}x${m}: ${differ} differ from the reference (${differOffBoundary} off the map's boundary); fraction gap ${worst.toExponential(2)}, errorBound ${results.basins.errorBound.toExponential(2)} + sample error ${sampleError.toExponential(2)}`);
+    console.info(
+      `grazer-forage 1024/64 sampled at ${m}x${m}: ${differ} differ from the reference (${differOffBoundary} off the map's boundary); fraction gap ${worst.toExponential(2)}, errorBound ${results.basins.errorBound.toExponential(2)} + sample error ${sampleError.toExponential(2)}`,
+    );
     expect(differOffBoundary).toBeLessThanOrEqual(FRACTION_ALLOWANCE_CELLS);
     expect(worst).toBeLessThanOrEqual(results.basins.errorBound + sampleError);
   });
@@ -379,7 +451,9 @@ describe("basin maps of the example specs", () => {
   it("analyzeAsync(examples).basins needs under a tenth of the uniform grid's trajectories at 1024 x 1024", () => {
     for (const [file, { results }] of Object.entries(examples)) {
       const b = results.basins;
-      console.info(`${file}: ${b.trajectories} trajectories for ${b.uniformTrajectories} cells, ratio ${(b.trajectories / b.uniformTrajectories).toFixed(4)}`);
+      console.info(
+        `${file}: ${b.trajectories} trajectories for ${b.uniformTrajectories} cells, ratio ${(b.trajectories / b.uniformTrajectories).toFixed(4)}`,
+      );
       expect(b.resolution).toBe(1024);
       expect(b.uniformTrajectories).toBe(1024 * 1024);
       expect(b.trajectories / b.uniformTrajectories).toBeLessThan(0.1);
@@ -403,7 +477,9 @@ describe("basin map of grazer-forage at resolution 128", () => {
     const { results } = run(withBasins(exampleSpec("grazer-forage.json"), { resolution: 128, coarse: 64 }));
     fine = results;
     const box = boxOf(results);
-    independent = referenceGrid(exampleFieldOf("grazer-forage.json"), results, 128, (i, j) => cellCentre(box, 128, i, j));
+    independent = referenceGrid(exampleFieldOf("grazer-forage.json"), results, 128, (i, j) =>
+      cellCentre(box, 128, i, j),
+    );
   });
 
   it("analyze(grazer-forage, 128/64).basins agrees cell by cell with a uniform 128 x 128 reference grid, fractions within errorBound", () => {
@@ -414,10 +490,13 @@ describe("basin map of grazer-forage at resolution 128", () => {
   it("analyze(grazer-forage, 128/16).basins fractions agree with a uniform 128 x 128 reference grid within errorBound", () => {
     const { results } = run(withBasins(exampleSpec("grazer-forage.json"), { resolution: 128, coarse: 16 }));
     const { n, names } = gridNames(results);
-    const mine = fractionsOf(names), theirs = fractionsOf(independent);
+    const mine = fractionsOf(names),
+      theirs = fractionsOf(independent);
     const lost = names.filter((name, k) => name !== independent[k]).length;
     const worst = Math.max(...results.basins.attractors.map((k) => Math.abs(mine[k] - (theirs[k] ?? 0))));
-    console.info(`grazer-forage 128/16: ${lost} cells differ from the reference (the sliver along V = 0); fraction gap ${worst.toExponential(2)}, errorBound ${results.basins.errorBound.toExponential(2)}`);
+    console.info(
+      `grazer-forage 128/16: ${lost} cells differ from the reference (the sliver along V = 0); fraction gap ${worst.toExponential(2)}, errorBound ${results.basins.errorBound.toExponential(2)}`,
+    );
     expect(worst).toBeLessThanOrEqual(results.basins.errorBound + FRACTION_ALLOWANCE_CELLS / (n * n));
   });
 });
@@ -444,15 +523,19 @@ describe("basin map of the van der Pol oscillator (Strogatz, Nonlinear Dynamics 
     const orbit = results.cycles[0].orbit;
     let insideOrbit = 0;
     // resolution 128 is even, so no cell centre sits on the focus (0, 0)
-    for (let j = 0; j < n; j++) for (let i = 0; i < n; i++) {
-      const p = cellCentre(box, n, i, j);
-      const label = names[j * n + i];
-      expect(["C1", "left-window"], `cell (${p})`).toContain(label);
-      // the region inside a closed orbit is invariant: from there every trajectory stays, and tends to the
-      // cycle
-      const inside = Math.hypot(p[0], p[1]) < 1.5 || insidePolygon(orbit.x, orbit.y, p);
-      if (inside) { insideOrbit++; expect(label, `cell (${p})`).toBe("C1"); }
-    }
+    for (let j = 0; j < n; j++)
+      for (let i = 0; i < n; i++) {
+        const p = cellCentre(box, n, i, j);
+        const label = names[j * n + i];
+        expect(["C1", "left-window"], `cell (${p})`).toContain(label);
+        // the region inside a closed orbit is invariant: from there every trajectory stays, and tends to the
+        // cycle
+        const inside = Math.hypot(p[0], p[1]) < 1.5 || insidePolygon(orbit.x, orbit.y, p);
+        if (inside) {
+          insideOrbit++;
+          expect(label, `cell (${p})`).toBe("C1");
+        }
+      }
     expect(insideOrbit).toBeGreaterThan(0.1 * n * n);
   });
 });
@@ -461,7 +544,8 @@ describe("basin map of the van der Pol oscillator (Strogatz, Nonlinear Dynamics 
 function insidePolygon(xs: number[], ys: number[], p: Point): boolean {
   let inside = false;
   for (let a = 0, b = xs.length - 1; a < xs.length; b = a++) {
-    if ((ys[a] > p[1]) !== (ys[b] > p[1]) && p[0] < ((xs[b] - xs[a]) * (p[1] - ys[a])) / (ys[b] - ys[a]) + xs[a]) inside = !inside;
+    if (ys[a] > p[1] !== ys[b] > p[1] && p[0] < ((xs[b] - xs[a]) * (p[1] - ys[a])) / (ys[b] - ys[a]) + xs[a])
+      inside = !inside;
   }
   return inside;
 }
@@ -473,8 +557,16 @@ describe("basin kernel on escapes, blow-ups and slow approaches, against closed 
   // exponential escape from the window (a plain exit); x' = x² gives x0 / (1 − x0 t), a blow-up
   // at t = 1/x0 for x0 > 0 and, for x0 < 0, an algebraic approach to the non-hyperbolic origin.
   const cases: { name: string; fixture: ModelFixture; expected: (x: number) => string }[] = [
-    { name: "x' = x, y' = -y", fixture: { id: "escape", equations: { x: "x", y: "-y" }, window: { x: [-1, 1], y: [-1, 1] } }, expected: () => "left-window" },
-    { name: "x' = x^2, y' = -y", fixture: { id: "blow-up", equations: { x: "x^2", y: "-y" }, window: { x: [-1, 1], y: [-1, 1] } }, expected: (x) => (x > 0 ? "blow-up" : "E1") },
+    {
+      name: "x' = x, y' = -y",
+      fixture: { id: "escape", equations: { x: "x", y: "-y" }, window: { x: [-1, 1], y: [-1, 1] } },
+      expected: () => "left-window",
+    },
+    {
+      name: "x' = x^2, y' = -y",
+      fixture: { id: "blow-up", equations: { x: "x^2", y: "-y" }, window: { x: [-1, 1], y: [-1, 1] } },
+      expected: (x) => (x > 0 ? "blow-up" : "E1"),
+    },
   ];
   for (const { name, fixture, expected } of cases) {
     it(`analyze(${name}).basins labels every cell as the closed form says`, () => {
@@ -482,10 +574,11 @@ describe("basin kernel on escapes, blow-ups and slow approaches, against closed 
       const { n, names } = gridNames(results);
       const box = boxOf(results);
       // 16 is even: no cell centre lies on x = 0, where the closed forms change kind
-      for (let j = 0; j < n; j++) for (let i = 0; i < n; i++) {
-        const p = cellCentre(box, n, i, j);
-        expect(names[j * n + i], `cell (${p})`).toBe(expected(p[0]));
-      }
+      for (let j = 0; j < n; j++)
+        for (let i = 0; i < n; i++) {
+          const p = cellCentre(box, n, i, j);
+          expect(names[j * n + i], `cell (${p})`).toBe(expected(p[0]));
+        }
     });
   }
 });

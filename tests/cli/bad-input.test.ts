@@ -12,7 +12,15 @@
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
-import { listEntries, listFiles, makeWorkDir, removeWorkDirs, runKeel, STACK_FRAME, type CliResult } from "../fixtures/cli.js";
+import {
+  listEntries,
+  listFiles,
+  makeWorkDir,
+  removeWorkDirs,
+  runKeel,
+  STACK_FRAME,
+  type CliResult,
+} from "../fixtures/cli.js";
 import type { JsonSpec } from "../fixtures/examples.js";
 
 type SpecObject = JsonSpec;
@@ -29,7 +37,8 @@ const withEquations = (x: string, y?: string) =>
     s.equations.x = x;
     if (y !== undefined) s.equations.y = y;
   });
-const withParameterNames = (...names: string[]) => specWith((s) => names.forEach((name, i) => (s.parameters[i].name = name)));
+const withParameterNames = (...names: string[]) =>
+  specWith((s) => names.forEach((name, i) => (s.parameters[i].name = name)));
 /** Text edits for what JSON.stringify cannot write: an own "__proto__" key, a number that overflows. */
 const baseTextWith = (from: string, to: string): string => {
   const text = JSON.stringify(baseSpec(), null, 2);
@@ -58,7 +67,8 @@ const eq = (state: "x" | "y", message: RegExp, line: string, column: number, len
   message,
   caret: { line, column, length },
 });
-const unexpected = (ch: string) => new RegExp(`unexpected character '${ch.replace(/[.*+?^${}()|[\]\\]/g, "\\$&")}'`);
+const unexpected = (ch: string) =>
+  new RegExp(`unexpected character '${ch.replace(/[.*+?^${}()|[\]\\]/g, "\\$&")}'`);
 const implicit = /write '\*' for multiplication/;
 const unknownName = (name: string) => new RegExp(`unknown name '${name}'`);
 
@@ -69,40 +79,58 @@ const fileFaults: BadSpec[] = [
   {
     name: "a doubled comma",
     text: '{\n  "keel": 1,\n  "id": "x",,\n}\n',
-    faults: [{
-      path: "(top level)",
-      message: /not valid JSON \(line 3, column 13\): expected a key in double quotes, found ','/,
-      caret: { line: '  "id": "x",,', column: 13 },
-    }],
+    faults: [
+      {
+        path: "(top level)",
+        message: /not valid JSON \(line 3, column 13\): expected a key in double quotes, found ','/,
+        caret: { line: '  "id": "x",,', column: 13 },
+      },
+    ],
   },
   {
     // V8's own message for this fault carries no position; keel still names line and column
     name: "an unquoted value",
     text: '{\n  "keel": 1,\n  "id": bad-input\n}\n',
-    faults: [{
-      path: "(top level)",
-      message: /not valid JSON \(line 3, column 9\): expected a value, found 'b'/,
-      caret: { line: '  "id": bad-input', column: 9 },
-    }],
+    faults: [
+      {
+        path: "(top level)",
+        message: /not valid JSON \(line 3, column 9\): expected a value, found 'b'/,
+        caret: { line: '  "id": bad-input', column: 9 },
+      },
+    ],
   },
   {
     name: "single-quoted keys",
     text: "{ 'keel': 1 }",
-    faults: [{ path: "(top level)", message: /not valid JSON \(line 1, column 3\): .*double quotes/, caret: { line: "{ 'keel': 1 }", column: 3 } }],
+    faults: [
+      {
+        path: "(top level)",
+        message: /not valid JSON \(line 1, column 3\): .*double quotes/,
+        caret: { line: "{ 'keel': 1 }", column: 3 },
+      },
+    ],
   },
   {
     name: "a file cut short",
     text: '{\n  "keel": 1,\n  "id": "a"',
-    faults: [{
-      path: "(top level)",
-      message: /not valid JSON \(line 3, column 12\): the file ends where ',' or '}' is expected/,
-      caret: { line: '  "id": "a"', column: 12 },
-    }],
+    faults: [
+      {
+        path: "(top level)",
+        message: /not valid JSON \(line 3, column 12\): the file ends where ',' or '}' is expected/,
+        caret: { line: '  "id": "a"', column: 12 },
+      },
+    ],
   },
   {
     name: "an empty file",
     text: "",
-    faults: [{ path: "(top level)", message: /not valid JSON \(line 1, column 1\): the file ends where a value is expected/, caret: { line: "", column: 1 } }],
+    faults: [
+      {
+        path: "(top level)",
+        message: /not valid JSON \(line 1, column 1\): the file ends where a value is expected/,
+        caret: { line: "", column: 1 },
+      },
+    ],
   },
   {
     name: "a top-level array",
@@ -162,7 +190,10 @@ const shapeFaults: BadSpec[] = [
     name: "a parameter value that overflows to Infinity, and a zero horizon",
     text: baseTextWith('"value": 1,', '"value": 1e999,').replace('"horizon": 20', '"horizon": 0'),
     faults: [
-      { path: "parameters[0].value", message: /expected a finite number; this one is beyond double precision/ },
+      {
+        path: "parameters[0].value",
+        message: /expected a finite number; this one is beyond double precision/,
+      },
       { path: "scenarios[0].horizon", message: /the horizon must be positive/ },
     ],
   },
@@ -183,12 +214,18 @@ const shapeFaults: BadSpec[] = [
   {
     name: "invalid identifiers 2x, a-b and _x",
     text: withParameterNames("2x", "a-b", "_x"),
-    faults: ["2x", "a-b", "_x"].map((name, i) => ({ path: `parameters[${i}].name`, message: new RegExp(`'${name}' is not a valid name`) })),
+    faults: ["2x", "a-b", "_x"].map((name, i) => ({
+      path: `parameters[${i}].name`,
+      message: new RegExp(`'${name}' is not a valid name`),
+    })),
   },
   {
     name: "reserved names e, pi, constructor and this",
     text: withParameterNames("e", "pi", "constructor", "this"),
-    faults: ["e", "pi", "constructor", "this"].map((name, i) => ({ path: `parameters[${i}].name`, message: new RegExp(`'${name}' is reserved`) })),
+    faults: ["e", "pi", "constructor", "this"].map((name, i) => ({
+      path: `parameters[${i}].name`,
+      message: new RegExp(`'${name}' is reserved`),
+    })),
   },
   {
     name: "reserved names t, exp and __proto__",
@@ -270,7 +307,10 @@ const expressionFaults: BadSpec[] = [
   {
     name: "a function used as a value and a parameter called as a function",
     text: withEquations("x*exp", "r(x)"),
-    faults: [eq("x", /'exp' is a function/, "x*exp", 3, 3), eq("y", /'r' is a name, not a function/, "r(x)", 1)],
+    faults: [
+      eq("x", /'exp' is a function/, "x*exp", 3, 3),
+      eq("y", /'r' is a name, not a function/, "r(x)", 1),
+    ],
   },
   {
     name: "operators x! and x % 2",
@@ -323,18 +363,27 @@ const expressionFaults: BadSpec[] = [
     // an expression that stops early is marked just past its last character
     name: "a trailing operator and an unclosed parenthesis",
     text: withEquations("x +", "(x"),
-    faults: [eq("x", /the expression ends after '\+'/, "x +", 4), eq("y", /this '\(' is never closed/, "(x", 1)],
+    faults: [
+      eq("x", /the expression ends after '\+'/, "x +", 4),
+      eq("y", /this '\(' is never closed/, "(x", 1),
+    ],
   },
   {
     name: "an unmatched ')' and an empty argument",
     text: withEquations("x)", "min(x,)"),
-    faults: [eq("x", /this '\)' has no matching '\('/, "x)", 2), eq("y", /cannot read the expression: Value expected/, "min(x,)", 7)],
+    faults: [
+      eq("x", /this '\)' has no matching '\('/, "x)", 2),
+      eq("y", /cannot read the expression: Value expected/, "min(x,)", 7),
+    ],
   },
   {
     // a line break is shown as a space, so the caret still stands under its column
     name: "an empty equation and a line break inside one",
     text: withEquations("", "x\n+ y"),
-    faults: [eq("x", /the expression is empty/, "", 1), eq("y", /unexpected character "\\n" \(U\+000A\)/, "x + y", 2)],
+    faults: [
+      eq("x", /the expression is empty/, "", 1),
+      eq("y", /unexpected character "\\n" \(U\+000A\)/, "x + y", 2),
+    ],
   },
   {
     name: "conditions with no comparison and with two",
@@ -343,14 +392,28 @@ const expressionFaults: BadSpec[] = [
       s.assumptions.push({ text: "Chained comparison (invented).", condition: "m < a*K < 2" });
     }),
     faults: [
-      { path: "assumptions[0].condition", message: /a condition must compare two expressions/, caret: { line: "a*K + m", column: 1 } },
-      { path: "assumptions[1].condition", message: /a condition must compare two expressions/, caret: { line: "m < a*K < 2", column: 9 } },
+      {
+        path: "assumptions[0].condition",
+        message: /a condition must compare two expressions/,
+        caret: { line: "a*K + m", column: 1 },
+      },
+      {
+        path: "assumptions[1].condition",
+        message: /a condition must compare two expressions/,
+        caret: { line: "m < a*K < 2", column: 9 },
+      },
     ],
   },
   {
     name: "a state in a condition",
     text: specWith((s) => (s.assumptions[0].condition = "a*x > m")),
-    faults: [{ path: "assumptions[0].condition", message: /'x' is a state; a condition relates parameters only/, caret: { line: "a*x > m", column: 3 } }],
+    faults: [
+      {
+        path: "assumptions[0].condition",
+        message: /'x' is a state; a condition relates parameters only/,
+        caret: { line: "a*x > m", column: 3 },
+      },
+    ],
   },
 ];
 
@@ -371,7 +434,10 @@ const injections: BadSpec[] = [
   {
     name: "Function('...')() and a template string",
     text: withEquations("Function('process.exit(7)')()", "`${process.exit(0)}`"),
-    faults: [eq("x", unexpected("'"), "Function('process.exit(7)')()", 10), eq("y", unexpected("`"), "`${process.exit(0)}`", 1)],
+    faults: [
+      eq("x", unexpected("'"), "Function('process.exit(7)')()", 10),
+      eq("y", unexpected("`"), "`${process.exit(0)}`", 1),
+    ],
   },
   {
     name: "constructor.constructor(...) and this.process",
@@ -384,7 +450,10 @@ const injections: BadSpec[] = [
   {
     name: "the names constructor and __proto__",
     text: withEquations("x*constructor", "x + __proto__"),
-    faults: [eq("x", unknownName("constructor"), "x*constructor", 3, 11), eq("y", unknownName("__proto__"), "x + __proto__", 5, 9)],
+    faults: [
+      eq("x", unknownName("constructor"), "x*constructor", 3, 11),
+      eq("y", unknownName("__proto__"), "x + __proto__", 5, 9),
+    ],
   },
   {
     name: "this, and a string",
@@ -394,13 +463,21 @@ const injections: BadSpec[] = [
   {
     name: "process.exit(0) in an assumption's condition",
     text: specWith((s) => (s.assumptions[0].condition = "process.exit(0) < 1")),
-    faults: [{ path: "assumptions[0].condition", message: unexpected("."), caret: { line: "process.exit(0) < 1", column: 8 } }],
+    faults: [
+      {
+        path: "assumptions[0].condition",
+        message: unexpected("."),
+        caret: { line: "process.exit(0) < 1", column: 8 },
+      },
+    ],
   },
   {
     // JSON.parse keeps "__proto__" as an own key; copied into a record it would vanish silently
     name: "__proto__ keys in equations and window",
-    text: baseTextWith('"equations": {', '"equations": {\n    "__proto__": "process.exit(0)",')
-      .replace('"window": {', '"window": {\n    "__proto__": [0, 1],'),
+    text: baseTextWith('"equations": {', '"equations": {\n    "__proto__": "process.exit(0)",').replace(
+      '"window": {',
+      '"window": {\n    "__proto__": [0, 1],',
+    ),
     faults: [
       { path: "equations.__proto__", message: /the key '__proto__' is not accepted/ },
       { path: "window.__proto__", message: /the key '__proto__' is not accepted/ },
@@ -444,7 +521,9 @@ function expectRejected(run: CliResult, bad: BadSpec): void {
   if (!bad.cascades) expect(blocks.length, shown).toBe(bad.faults.length);
   for (const fault of bad.faults) {
     const prefix = `error spec.json: at ${fault.path}: `;
-    const block = blocks.find((b) => b.head.startsWith(prefix) && fault.message.test(b.head.slice(prefix.length)));
+    const block = blocks.find(
+      (b) => b.head.startsWith(prefix) && fault.message.test(b.head.slice(prefix.length)),
+    );
     expect(block, `no issue at ${fault.path} matching ${fault.message}${shown}`).toBeDefined();
     if (!fault.caret) continue;
     expect(block!.source, shown).toBe(fault.caret.line);
@@ -460,7 +539,10 @@ function expectRejected(run: CliResult, bad: BadSpec): void {
 function checkBadSpec(bad: BadSpec): void {
   const dir = makeWorkDir();
   const out = join(dir, "o");
-  const analyzed = runKeel(["analyze", "spec.json", "--out", out], { cwd: dir, files: { "spec.json": bad.text } });
+  const analyzed = runKeel(["analyze", "spec.json", "--out", out], {
+    cwd: dir,
+    files: { "spec.json": bad.text },
+  });
   expectRejected(analyzed, bad);
   expect(listEntries(dir), "analyze wrote something").toEqual(["spec.json"]);
 

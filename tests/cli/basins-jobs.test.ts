@@ -76,7 +76,7 @@ describe("analyzeAsync with an evaluator that splits batches oddly", () => {
       const counter = { chunks: 0 };
       const oddly = await analyzeAsync(model, reversedChunks(counter));
       const direct = analyze(model);
-      expect(counter.chunks).toBeGreaterThan(16 * 16 / ODD_CHUNK);
+      expect(counter.chunks).toBeGreaterThan((16 * 16) / ODD_CHUNK);
       expect(oddly).toEqual(direct);
       expect(JSON.stringify(oddly)).toBe(JSON.stringify(direct));
     });

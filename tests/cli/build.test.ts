@@ -7,13 +7,23 @@ import { chmodSync, existsSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { CHROMIUM_ENV, findChromium } from "../../src/report/render/chromium.js";
-import { listFiles, makeWorkDir, removeWorkDirs, runKeel, STACK_FRAME, type CliResult } from "../fixtures/cli.js";
+import {
+  listFiles,
+  makeWorkDir,
+  removeWorkDirs,
+  runKeel,
+  STACK_FRAME,
+  type CliResult,
+} from "../fixtures/cli.js";
 import { pdfinfo, pdfPageSize, popplerAvailable, popplerMissingMessage } from "../fixtures/poppler.js";
 import { exampleSpec, SMALL_BASINS } from "../fixtures/examples.js";
 
 const chromium = findChromium(process.env);
 const canPrint = chromium !== null && popplerAvailable;
-if (chromium === null) console.warn(`skipping PDF checks of keel build: no Chromium found (set ${CHROMIUM_ENV} or apt-get install chromium)`);
+if (chromium === null)
+  console.warn(
+    `skipping PDF checks of keel build: no Chromium found (set ${CHROMIUM_ENV} or apt-get install chromium)`,
+  );
 else if (!popplerAvailable) console.warn(`skipping PDF checks of keel build: ${popplerMissingMessage}`);
 
 const EPOCH = "1700000000";
@@ -77,7 +87,8 @@ describe("keel build twice with the same SOURCE_DATE_EPOCH", () => {
     // two separate folders: an absolute path leaking into an output would differ between them
     first = build(smallExample());
     second = build(smallExample());
-    for (const b of [first, second]) if (b.run.status !== 0) throw new Error(`keel build exited ${b.run.status}: ${b.run.stderr}`);
+    for (const b of [first, second])
+      if (b.run.status !== 0) throw new Error(`keel build exited ${b.run.status}: ${b.run.stderr}`);
   });
 
   it("keel build(reservoir-competition) twice writes the same set of files", () => {
@@ -97,7 +108,9 @@ describe("keel build twice with the same SOURCE_DATE_EPOCH", () => {
 
   it("keel build(reservoir-competition) twice gives byte-identical figures", () => {
     for (const name of listFiles(first.out).filter((f) => f.startsWith("figures/"))) {
-      expect(readFileSync(join(first.out, name)).equals(readFileSync(join(second.out, name))), name).toBe(true);
+      expect(readFileSync(join(first.out, name)).equals(readFileSync(join(second.out, name))), name).toBe(
+        true,
+      );
     }
   });
 
@@ -125,7 +138,9 @@ describe.skipIf(!canPrint)("keel build --paper letter", () => {
   });
 
   it("keel build --paper letter records the paper in manifest.json", () => {
-    const manifest = JSON.parse(readFileSync(join(letter.out, "manifest.json"), "utf8")) as { options: { paper: string; pdf: boolean } };
+    const manifest = JSON.parse(readFileSync(join(letter.out, "manifest.json"), "utf8")) as {
+      options: { paper: string; pdf: boolean };
+    };
     expect(manifest.options).toEqual({ paper: "letter", pdf: true });
   });
 });

@@ -6,9 +6,19 @@
 import { readdirSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { listFiles, makeWorkDir, PROJECT_ROOT, removeWorkDirs, runKeel, STACK_FRAME, type CliResult } from "../fixtures/cli.js";
+import {
+  listFiles,
+  makeWorkDir,
+  PROJECT_ROOT,
+  removeWorkDirs,
+  runKeel,
+  STACK_FRAME,
+  type CliResult,
+} from "../fixtures/cli.js";
 
-const packageJson = JSON.parse(readFileSync(join(PROJECT_ROOT, "package.json"), "utf8")) as { version: string };
+const packageJson = JSON.parse(readFileSync(join(PROJECT_ROOT, "package.json"), "utf8")) as {
+  version: string;
+};
 
 /**
  * The only values `equilibria[].type` may take: the classes of the trace–determinant plane (Hirsch,
@@ -16,12 +26,23 @@ const packageJson = JSON.parse(readFileSync(join(PROJECT_ROOT, "package.json"), 
  * ed., section 4.1) and `non-hyperbolic` for a zero eigenvalue.
  */
 const EQUILIBRIUM_TYPES = new Set([
-  "saddle", "stable-node", "unstable-node", "stable-focus", "unstable-focus", "center",
-  "stable-degenerate-node", "unstable-degenerate-node", "stable-star", "unstable-star", "non-hyperbolic",
+  "saddle",
+  "stable-node",
+  "unstable-node",
+  "stable-focus",
+  "unstable-focus",
+  "center",
+  "stable-degenerate-node",
+  "unstable-degenerate-node",
+  "stable-star",
+  "unstable-star",
+  "non-hyperbolic",
 ]);
 
 const SPECS_DIR = join(PROJECT_ROOT, "specs");
-const exampleFiles = readdirSync(SPECS_DIR).filter((f) => f.endsWith(".json")).sort();
+const exampleFiles = readdirSync(SPECS_DIR)
+  .filter((f) => f.endsWith(".json"))
+  .sort();
 
 interface Example {
   file: string;
@@ -57,7 +78,8 @@ describe("keel --version and --help", () => {
     const run = runKeel(["--help"]);
     expect(run.status, run.stderr).toBe(0);
     expect(run.stdout).toMatch(/^Usage: keel /);
-    for (const command of ["check", "analyze", "schema"]) expect(run.stdout).toMatch(new RegExp(`^  ${command}\\b`, "m"));
+    for (const command of ["check", "analyze", "schema"])
+      expect(run.stdout).toMatch(new RegExp(`^  ${command}\\b`, "m"));
   });
 
   it("keel analyze --help documents --out and exits 0", () => {
@@ -83,7 +105,9 @@ describe("keel usage errors exit 2 with a message and no stack trace", () => {
   });
 
   it("keel analyze SPEC --frobnicate (an unknown command option) exits 2 and writes nothing", () => {
-    const run = runKeel(["analyze", "spec.json", "--frobnicate"], { files: { "spec.json": examples[0].text } });
+    const run = runKeel(["analyze", "spec.json", "--frobnicate"], {
+      files: { "spec.json": examples[0].text },
+    });
     expectUsageError(run, /unknown option '--frobnicate'/);
     expect(listFiles(run.cwd)).toEqual(["spec.json"]);
   });
@@ -93,13 +117,20 @@ describe("keel usage errors exit 2 with a message and no stack trace", () => {
   });
 
   it("keel --jobs 0 check SPEC exits 2", () => {
-    expectUsageError(runKeel(["--jobs", "0", "check", "spec.json"], { files: { "spec.json": examples[0].text } }), /--jobs/);
+    expectUsageError(
+      runKeel(["--jobs", "0", "check", "spec.json"], { files: { "spec.json": examples[0].text } }),
+      /--jobs/,
+    );
   });
 });
 
 describe("keel check and analyze on a spec file that cannot be read or written", () => {
   it("keel check missing.json and keel analyze missing.json exit 2 naming the file, and write nothing", () => {
-    for (const args of [["check", "missing.json"], ["analyze", "missing.json", "--out", "o"], ["analyze", "missing.json"]]) {
+    for (const args of [
+      ["check", "missing.json"],
+      ["analyze", "missing.json", "--out", "o"],
+      ["analyze", "missing.json"],
+    ]) {
       const run = runKeel(args);
       expectUsageError(run, /^error: cannot read missing\.json: no such file$/m);
       expect(listFiles(run.cwd)).toEqual([]);
@@ -112,8 +143,13 @@ describe("keel check and analyze on a spec file that cannot be read or written",
   });
 
   it("keel analyze SPEC --out FILE (a file in the way) exits 2 naming the path, and leaves the file alone", () => {
-    const run = runKeel(["analyze", "spec.json", "--out", "taken"], { files: { "spec.json": examples[0].text, taken: "mine" } });
-    expectUsageError(run, /^error: cannot write taken[/\\]results\.json: a file stands where a folder is needed$/m);
+    const run = runKeel(["analyze", "spec.json", "--out", "taken"], {
+      files: { "spec.json": examples[0].text, taken: "mine" },
+    });
+    expectUsageError(
+      run,
+      /^error: cannot write taken[/\\]results\.json: a file stands where a folder is needed$/m,
+    );
     expect(readFileSync(join(run.cwd, "taken"), "utf8")).toBe("mine");
     expect(listFiles(run.cwd)).toEqual(["spec.json", "taken"]);
   });
@@ -176,7 +212,9 @@ describe.each(examples)("keel check and analyze on specs/$file", (example) => {
 
 describe("keel options and input encodings", () => {
   it("keel --quiet analyze SPEC --out DIR prints nothing and writes DIR/results.json", () => {
-    const run = runKeel(["--quiet", "analyze", "spec.json", "--out", "o"], { files: { "spec.json": examples[0].text } });
+    const run = runKeel(["--quiet", "analyze", "spec.json", "--out", "o"], {
+      files: { "spec.json": examples[0].text },
+    });
     expect(run.status, run.stderr).toBe(0);
     expect(run.stderr).toBe("");
     expect(run.stdout).toBe("");

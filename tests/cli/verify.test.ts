@@ -11,11 +11,21 @@ import { PDFArray, PDFDict, PDFDocument, PDFHexString, PDFName, PDFRawStream, PD
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { findChromium } from "../../src/report/render/chromium.js";
 import { manifestText, type Manifest } from "../../src/report/archive/manifest.js";
-import { listFiles, makeWorkDir, PROJECT_ROOT, removeWorkDirs, runKeel, type CliResult } from "../fixtures/cli.js";
+import {
+  listFiles,
+  makeWorkDir,
+  PROJECT_ROOT,
+  removeWorkDirs,
+  runKeel,
+  type CliResult,
+} from "../fixtures/cli.js";
 import { EXAMPLE_IDS, exampleSpec, SMALL_BASINS, withBasins } from "../fixtures/examples.js";
 
 const chromium = findChromium(process.env);
-if (!chromium) console.warn("skipping the PDF archive tests: no Chromium found (set KEEL_CHROMIUM or apt-get install chromium)");
+if (!chromium)
+  console.warn(
+    "skipping the PDF archive tests: no Chromium found (set KEEL_CHROMIUM or apt-get install chromium)",
+  );
 
 /** Fixed build date for reproducible builds (any whole number of seconds; this is 2023-11-14). */
 const EPOCH = "1700000000";
@@ -56,9 +66,15 @@ function decodeName(value: unknown): string | null {
  * pdf-lib would: each named attachment's file stream is swapped for a new one; the rest of the
  * document is left as it is.
  */
-async function replaceEmbedded(pdf: Uint8Array, replacements: Record<string, Uint8Array>): Promise<Uint8Array> {
+async function replaceEmbedded(
+  pdf: Uint8Array,
+  replacements: Record<string, Uint8Array>,
+): Promise<Uint8Array> {
   const doc = await PDFDocument.load(pdf, { updateMetadata: false });
-  const names = doc.catalog.lookup(PDFName.of("Names"), PDFDict).lookup(PDFName.of("EmbeddedFiles"), PDFDict).lookup(PDFName.of("Names"), PDFArray);
+  const names = doc.catalog
+    .lookup(PDFName.of("Names"), PDFDict)
+    .lookup(PDFName.of("EmbeddedFiles"), PDFDict)
+    .lookup(PDFName.of("Names"), PDFArray);
   const replaced = new Set<string>();
   for (let k = 0; k + 1 < names.size(); k += 2) {
     const name = decodeName(names.lookup(k));
@@ -67,7 +83,11 @@ async function replaceEmbedded(pdf: Uint8Array, replacements: Record<string, Uin
     const old = ef.lookup(PDFName.of("F"));
     if (!(old instanceof PDFRawStream)) throw new Error(`the attachment ${name} has no file stream`);
     const bytes = replacements[name];
-    const stream = doc.context.flateStream(bytes, { Type: "EmbeddedFile", Subtype: old.dict.get(PDFName.of("Subtype")), Params: { Size: bytes.length } });
+    const stream = doc.context.flateStream(bytes, {
+      Type: "EmbeddedFile",
+      Subtype: old.dict.get(PDFName.of("Subtype")),
+      Params: { Size: bytes.length },
+    });
     ef.set(PDFName.of("F"), doc.context.register(stream));
     replaced.add(name);
   }
@@ -79,7 +99,10 @@ async function replaceEmbedded(pdf: Uint8Array, replacements: Record<string, Uin
 /** The embedded files of a PDF, read back with pdf-lib's own name-tree walk (not keel's reader). */
 async function embeddedNames(pdf: Uint8Array): Promise<string[]> {
   const doc = await PDFDocument.load(pdf, { updateMetadata: false });
-  const names = doc.catalog.lookup(PDFName.of("Names"), PDFDict).lookup(PDFName.of("EmbeddedFiles"), PDFDict).lookup(PDFName.of("Names"), PDFArray);
+  const names = doc.catalog
+    .lookup(PDFName.of("Names"), PDFDict)
+    .lookup(PDFName.of("EmbeddedFiles"), PDFDict)
+    .lookup(PDFName.of("Names"), PDFArray);
   const out: string[] = [];
   for (let k = 0; k < names.size(); k += 2) out.push(decodeName(names.lookup(k)) ?? "?");
   return out.sort();
@@ -145,9 +168,15 @@ describe.skipIf(!chromium)("keel verify on a build with its PDF", () => {
     writeFileSync(join(work, "spec.json"), fastSpec(MAIN_EXAMPLE, MAIN_STUDIED));
     built = join(work, "jobs-1");
     builtTwoJobs = join(work, "jobs-2");
-    for (const [jobs, out] of [["1", built], ["2", builtTwoJobs]]) {
-      const run = runKeel(["--quiet", "--jobs", jobs, "build", "spec.json", "--pdf", "--out", out], { cwd: work });
-      if (run.status !== 0) throw new Error(`keel build --jobs ${jobs} failed (exit ${run.status}):\n${run.stderr}`);
+    for (const [jobs, out] of [
+      ["1", built],
+      ["2", builtTwoJobs],
+    ]) {
+      const run = runKeel(["--quiet", "--jobs", jobs, "build", "spec.json", "--pdf", "--out", out], {
+        cwd: work,
+      });
+      if (run.status !== 0)
+        throw new Error(`keel build --jobs ${jobs} failed (exit ${run.status}):\n${run.stderr}`);
     }
   });
 
@@ -164,7 +193,11 @@ describe.skipIf(!chromium)("keel verify on a build with its PDF", () => {
     for (const f of onDisk) expect(manifest.files[f], f).toBe(sha256(readFileSync(join(built, f))));
     expect(manifest.node).toBe(process.version);
     expect(manifest.lockfileSha256).toBe(sha256(readFileSync(join(PROJECT_ROOT, "package-lock.json"))));
-    expect(await embeddedNames(readFileSync(join(built, "dossier.pdf")))).toEqual(["manifest.json", "results.json", "spec.json"]);
+    expect(await embeddedNames(readFileSync(join(built, "dossier.pdf")))).toEqual([
+      "manifest.json",
+      "results.json",
+      "spec.json",
+    ]);
   });
 
   it("keel verify DIR exits 0 on a fresh build", () => {
@@ -182,15 +215,19 @@ describe.skipIf(!chromium)("keel verify on a build with its PDF", () => {
     expect(run.stdout).toMatch(/^verify: all checks hold$/m);
   });
 
-  it.each(["spec.json", "results.json", "dossier.html", "manifest.json", "figures/portrait.svg", "dossier.pdf"])(
-    "keel verify DIR exits 3 and names %s after a one-byte change to it",
-    (file) => {
-      const dir = copyOfBuild();
-      changeFileByte(join(dir, file));
-      const escaped = file.replace(/[./]/g, "\\$&");
-      expectFailsNaming(verify(dir), new RegExp(`^FAIL tampered: ${escaped}\\b`, "m"));
-    },
-  );
+  it.each([
+    "spec.json",
+    "results.json",
+    "dossier.html",
+    "manifest.json",
+    "figures/portrait.svg",
+    "dossier.pdf",
+  ])("keel verify DIR exits 3 and names %s after a one-byte change to it", (file) => {
+    const dir = copyOfBuild();
+    changeFileByte(join(dir, file));
+    const escaped = file.replace(/[./]/g, "\\$&");
+    expectFailsNaming(verify(dir), new RegExp(`^FAIL tampered: ${escaped}\\b`, "m"));
+  });
 
   it("keel verify DIR exits 3 and names manifest.json after a one-byte change that keeps its meaning (a space made a tab)", () => {
     const dir = copyOfBuild();
@@ -219,7 +256,10 @@ describe.skipIf(!chromium)("keel verify on a build with its PDF", () => {
       // the embedded manifest lacks the PDF's own entry; a change to the disk copy's bytes stands in for it
       const copy = file === "manifest.json" ? new TextEncoder().encode(embeddedManifest(dir)) : original;
       writeFileSync(pdfPath, await replaceEmbedded(readFileSync(pdfPath), { [file]: changeOneByte(copy) }));
-      expectFailsNaming(verify(dir), new RegExp(`^FAIL tampered: ${file.replace(".", "\\.")} inside dossier\\.pdf\\b`, "m"));
+      expectFailsNaming(
+        verify(dir),
+        new RegExp(`^FAIL tampered: ${file.replace(".", "\\.")} inside dossier\\.pdf\\b`, "m"),
+      );
     },
   );
 
@@ -228,14 +268,26 @@ describe.skipIf(!chromium)("keel verify on a build with its PDF", () => {
     async (file) => {
       const dir = copyOfBuild();
       const pdfPath = join(dir, "dossier.pdf");
-      writeFileSync(pdfPath, await replaceEmbedded(readFileSync(pdfPath), { [file]: changeOneByte(readFileSync(join(dir, file))) }));
-      expectFailsNaming(verify(pdfPath), new RegExp(`^FAIL tampered: ${file.replace(".", "\\.")} inside the PDF\\b`, "m"));
+      writeFileSync(
+        pdfPath,
+        await replaceEmbedded(readFileSync(pdfPath), {
+          [file]: changeOneByte(readFileSync(join(dir, file))),
+        }),
+      );
+      expectFailsNaming(
+        verify(pdfPath),
+        new RegExp(`^FAIL tampered: ${file.replace(".", "\\.")} inside the PDF\\b`, "m"),
+      );
     },
   );
 
   describe("a forged results.json with every hash fixed", () => {
     /** An equilibrium off both axes, so every coordinate is non-zero and a relative change moves it. */
-    function interiorEquilibrium(results: Record<string, unknown>): { index: number; state: string; value: number } {
+    function interiorEquilibrium(results: Record<string, unknown>): {
+      index: number;
+      state: string;
+      value: number;
+    } {
       const list = results.equilibria as { point: Record<string, number> }[];
       const index = list.findIndex((e) => Object.values(e.point).every((v) => v !== 0));
       if (index < 0) throw new Error("the example has no interior equilibrium");
@@ -251,11 +303,18 @@ describe.skipIf(!chromium)("keel verify on a build with its PDF", () => {
       let target = { index: -1, state: "", value: 0 };
       await forgeResults(dir, (results) => {
         target = interiorEquilibrium(results);
-        (results.equilibria as { point: Record<string, number> }[])[target.index].point[target.state] = target.value * (1 + DRIFT);
+        (results.equilibria as { point: Record<string, number> }[])[target.index].point[target.state] =
+          target.value * (1 + DRIFT);
       });
       const run = verify(dir);
       const path = `equilibria[${target.index}].point.${target.state}`;
-      expectFailsNaming(run, new RegExp(`^FAIL drifted: ${path.replace(/[[\].]/g, "\\$&")}: archived ${target.value * (1 + DRIFT)}, now ${target.value}$`, "m"));
+      expectFailsNaming(
+        run,
+        new RegExp(
+          `^FAIL drifted: ${path.replace(/[[\].]/g, "\\$&")}: archived ${target.value * (1 + DRIFT)}, now ${target.value}$`,
+          "m",
+        ),
+      );
       expect(failLines(run).filter((l) => /tampered|missing/.test(l))).toEqual([]);
     });
 
@@ -264,7 +323,8 @@ describe.skipIf(!chromium)("keel verify on a build with its PDF", () => {
       let path = "";
       await forgeResults(dir, (results) => {
         const target = interiorEquilibrium(results);
-        (results.equilibria as { point: Record<string, number> }[])[target.index].point[target.state] = target.value * (1 + DRIFT);
+        (results.equilibria as { point: Record<string, number> }[])[target.index].point[target.state] =
+          target.value * (1 + DRIFT);
         path = `equilibria[${target.index}].point.${target.state}`;
       });
       const run = verify(join(dir, "dossier.pdf"));
@@ -284,7 +344,13 @@ describe.skipIf(!chromium)("keel verify on a build with its PDF", () => {
       });
       expect(index).toBeGreaterThanOrEqual(0);
       const run = verify(dir);
-      expectFailsNaming(run, new RegExp(`^FAIL changed: equilibria\\[${index}\\]\\.type: archived "stable-node", now "${was}"$`, "m"));
+      expectFailsNaming(
+        run,
+        new RegExp(
+          `^FAIL changed: equilibria\\[${index}\\]\\.type: archived "stable-node", now "${was}"$`,
+          "m",
+        ),
+      );
       expect(failLines(run).filter((l) => /tampered|missing|drifted/.test(l))).toEqual([]);
     });
   });
@@ -292,8 +358,10 @@ describe.skipIf(!chromium)("keel verify on a build with its PDF", () => {
   it("keel build with SOURCE_DATE_EPOCH gives byte-identical files with --jobs 1 and --jobs 2", () => {
     const files = listFiles(built);
     expect(listFiles(builtTwoJobs)).toEqual(files);
-    for (const f of ["results.json", "dossier.html", "dossier.pdf", "manifest.json"]) expect(files).toContain(f);
-    for (const f of files) expect(sha256(readFileSync(join(builtTwoJobs, f))), f).toBe(sha256(readFileSync(join(built, f))));
+    for (const f of ["results.json", "dossier.html", "dossier.pdf", "manifest.json"])
+      expect(files).toContain(f);
+    for (const f of files)
+      expect(sha256(readFileSync(join(builtTwoJobs, f))), f).toBe(sha256(readFileSync(join(built, f))));
   });
 });
 

@@ -9,9 +9,15 @@ const unit: Record<string, [number, number]> = { x: [-5, 5], y: [-5, 5] };
 
 // Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., section 6.4: the competition model and its
 // Jacobian J = [[3 − 2x − 2y, −2x], [−y, 2 − x − 2y]], derived by hand.
-const competition: ModelFixture = { equations: { x: "x*(3 - x - 2*y)", y: "y*(2 - x - y)" }, window: { x: [0, 4], y: [0, 4] } };
+const competition: ModelFixture = {
+  equations: { x: "x*(3 - x - 2*y)", y: "y*(2 - x - y)" },
+  window: { x: [0, 4], y: [0, 4] },
+};
 const handRhs = (x: number, y: number) => [x * (3 - x - 2 * y), y * (2 - x - y)];
-const handJacobian = (x: number, y: number) => [[3 - 2 * x - 2 * y, -2 * x], [-y, 2 - x - 2 * y]];
+const handJacobian = (x: number, y: number) => [
+  [3 - 2 * x - 2 * y, -2 * x],
+  [-y, 2 - x - 2 * y],
+];
 
 describe("compileModel", () => {
   it("compileModel(competition) describes the model in state and parameter order", () => {
@@ -27,9 +33,20 @@ describe("compileModel", () => {
 
   it("compileModel(competition).rhs and .jacobianAt match the hand-derived forms", () => {
     const model = buildModel(competition);
-    for (const [x, y] of [[0, 0], [1, 1], [3, 0], [0, 2], [0.25, 3.5], [2.5, 1.75]]) {
-      rhsAt(model, [x, y]).forEach((v, i) => expect(Math.abs(v - handRhs(x, y)[i])).toBeLessThanOrEqual(EXACT_TOL));
-      jacobianAt(model, [x, y]).flat().forEach((v, k) => expect(Math.abs(v - handJacobian(x, y).flat()[k])).toBeLessThanOrEqual(EXACT_TOL));
+    for (const [x, y] of [
+      [0, 0],
+      [1, 1],
+      [3, 0],
+      [0, 2],
+      [0.25, 3.5],
+      [2.5, 1.75],
+    ]) {
+      rhsAt(model, [x, y]).forEach((v, i) =>
+        expect(Math.abs(v - handRhs(x, y)[i])).toBeLessThanOrEqual(EXACT_TOL),
+      );
+      jacobianAt(model, [x, y])
+        .flat()
+        .forEach((v, k) => expect(Math.abs(v - handJacobian(x, y).flat()[k])).toBeLessThanOrEqual(EXACT_TOL));
     }
   });
 
@@ -49,7 +66,11 @@ describe("compileModel", () => {
   });
 
   it("compileModel binds nominal parameter values into rhs and reads p in rhsParametric", () => {
-    const fixture: ModelFixture = { equations: { x: "r*x - a*x*y", y: "-m*y + a*x*y" }, window: unit, parameters: { r: 2, a: 0.5, m: 3 } };
+    const fixture: ModelFixture = {
+      equations: { x: "r*x - a*x*y", y: "-m*y + a*x*y" },
+      window: unit,
+      parameters: { r: 2, a: 0.5, m: 3 },
+    };
     const model = buildModel(fixture);
     // x' = 2·1 − 0.5·1·2 = 1, y' = −3·2 + 0.5·1·2 = −5 at (1, 2)
     expect(rhsAt(model, [1, 2])).toEqual([1, -5]);
@@ -67,7 +88,11 @@ describe("compileModel", () => {
     expect(result.ok).toBe(false);
     if (result.ok) return;
     expect(result.issues).toHaveLength(1);
-    expect(result.issues[0]).toMatchObject({ code: "function_not_allowed", path: ["equations", "x"], source: { column: 1, length: 3 } });
+    expect(result.issues[0]).toMatchObject({
+      code: "function_not_allowed",
+      path: ["equations", "x"],
+      source: { column: 1, length: 3 },
+    });
   });
 
   it("compileModel collects an issue from every faulty equation", () => {
@@ -75,11 +100,18 @@ describe("compileModel", () => {
     const result = compileModel(spec);
     expect(result.ok).toBe(false);
     if (result.ok) return;
-    expect(result.issues.map((i) => i.path)).toEqual([["equations", "x"], ["equations", "y"]]);
+    expect(result.issues.map((i) => i.path)).toEqual([
+      ["equations", "x"],
+      ["equations", "y"],
+    ]);
   });
 
   it("compileModel evaluates an assumption's condition at given parameter values", () => {
-    const spec = buildSpec({ equations: { x: "r1*x", y: "-y" }, window: unit, parameters: { r1: 0.5, a12: 0.1, K2: 4 } });
+    const spec = buildSpec({
+      equations: { x: "r1*x", y: "-y" },
+      window: unit,
+      parameters: { r1: 0.5, a12: 0.1, K2: 4 },
+    });
     const model = compileModel({ ...spec, assumptions: [{ text: "coexistence", condition: "K2 < r1/a12" }] });
     if (!model.ok) throw new Error("did not compile");
     const [condition] = model.value.assumptionConditions;
@@ -115,14 +147,24 @@ describe("compileModel derivative rules (standard derivative table, common pract
     // min/max take the derivative of the selected argument; at a tie, the first argument's
     { f: "min(x, 1)", df: (x) => (x <= 1 ? 1 : 0), at: [0, 1, 2] },
     { f: "max(x, 1)", df: (x) => (x <= 1 ? 0 : 1), at: [0, 2] },
-    { f: "min(3*x, 1, -x)", df: (x) => selected(Math.min, [3 * x, 1, -x], [3, 0, -1]), at: [-2, -0.25, 0.5, 2] },
-    { f: "max(x^2, 2*x, 1)", df: (x) => selected(Math.max, [x * x, 2 * x, 1], [2 * x, 2, 0]), at: [-2, 0.25, 1, 3] },
+    {
+      f: "min(3*x, 1, -x)",
+      df: (x) => selected(Math.min, [3 * x, 1, -x], [3, 0, -1]),
+      at: [-2, -0.25, 0.5, 2],
+    },
+    {
+      f: "max(x^2, 2*x, 1)",
+      df: (x) => selected(Math.max, [x * x, 2 * x, 1], [2 * x, 2, 0]),
+      at: [-2, 0.25, 1, 3],
+    },
   ];
   for (const c of cases) {
     it(`compileModel differentiates ${c.f}`, () => {
       for (const x of c.at) {
         const want = c.df(x);
-        expect(Math.abs(derivativeAt(c.f, x) - want), `at x = ${x}`).toBeLessThanOrEqual(EXACT_TOL * Math.max(1, Math.abs(want)));
+        expect(Math.abs(derivativeAt(c.f, x) - want), `at x = ${x}`).toBeLessThanOrEqual(
+          EXACT_TOL * Math.max(1, Math.abs(want)),
+        );
       }
     });
   }
@@ -132,8 +174,15 @@ describe("compileModel derivative rules (standard derivative table, common pract
     const model = buildModel({ equations: { x: "x^y", y: "pow(y, x)" }, window: unit });
     const [x, y] = [1.5, 2.5];
     const J = jacobianAt(model, [x, y]);
-    const want = [[y * x ** (y - 1), x ** y * Math.log(x)], [y ** x * Math.log(y), x * y ** (x - 1)]];
-    J.flat().forEach((v, k) => expect(Math.abs(v - want.flat()[k])).toBeLessThanOrEqual(EXACT_TOL * Math.max(1, Math.abs(want.flat()[k]))));
+    const want = [
+      [y * x ** (y - 1), x ** y * Math.log(x)],
+      [y ** x * Math.log(y), x * y ** (x - 1)],
+    ];
+    J.flat().forEach((v, k) =>
+      expect(Math.abs(v - want.flat()[k])).toBeLessThanOrEqual(
+        EXACT_TOL * Math.max(1, Math.abs(want.flat()[k])),
+      ),
+    );
   });
 
   it("compileModel respects operator precedence: -x^2, 2^3^x and x/y/2", () => {

@@ -113,13 +113,18 @@ function scopeOf(model: Model, point: number[]): Record<string, number> {
 const pointIn = (domains: PropertyCase["domains"]) =>
   fc.oneof(
     ...domains.map((d) =>
-      fc.tuple(fc.double({ min: d.x[0], max: d.x[1], noNaN: true }), fc.double({ min: d.y[0], max: d.y[1], noNaN: true })),
+      fc.tuple(
+        fc.double({ min: d.x[0], max: d.x[1], noNaN: true }),
+        fc.double({ min: d.y[0], max: d.y[1], noNaN: true }),
+      ),
     ),
   );
 
 function expectClose(actual: number, expected: number, relTol: number, scale: number, what: string) {
   expect(Number.isFinite(actual), `${what} is finite`).toBe(true);
-  expect(Math.abs(actual - expected), `${what}: ${actual} vs ${expected}`).toBeLessThanOrEqual(relTol * Math.max(1, scale));
+  expect(Math.abs(actual - expected), `${what}: ${actual} vs ${expected}`).toBeLessThanOrEqual(
+    relTol * Math.max(1, scale),
+  );
 }
 
 for (const c of CASES) {
@@ -175,7 +180,9 @@ for (const c of CASES) {
           model.rhsParametric([x, y], model.parameterValues, f);
           model.jacobianParametric([x, y], model.parameterValues, J);
           expect(Array.from(f)).toEqual(rhsAt(model, [x, y]));
-          expect([Array.from(J.subarray(0, 2)), Array.from(J.subarray(2, 4))]).toEqual(jacobianAt(model, [x, y]));
+          expect([Array.from(J.subarray(0, 2)), Array.from(J.subarray(2, 4))]).toEqual(
+            jacobianAt(model, [x, y]),
+          );
         }),
         { seed: SEED + 3, numRuns: RUNS },
       );
@@ -190,13 +197,17 @@ describe("compiled model with other parameter values", () => {
   it("model.rhsParametric(y, p) equals rhs of the model compiled with values p", () => {
     const positive = fc.double({ min: 0.05, max: 5, noNaN: true });
     fc.assert(
-      fc.property(fc.array(positive, { minLength: 6, maxLength: 6 }), pointIn(CASES[3].domains), (values, point) => {
-        const parameters = Object.fromEntries(model.parameterNames.map((n, i) => [n, values[i]]));
-        const bound = buildModel({ ...base, parameters });
-        const f = new Float64Array(2);
-        model.rhsParametric(point, values, f);
-        expect(Array.from(f)).toEqual(rhsAt(bound, point));
-      }),
+      fc.property(
+        fc.array(positive, { minLength: 6, maxLength: 6 }),
+        pointIn(CASES[3].domains),
+        (values, point) => {
+          const parameters = Object.fromEntries(model.parameterNames.map((n, i) => [n, values[i]]));
+          const bound = buildModel({ ...base, parameters });
+          const f = new Float64Array(2);
+          model.rhsParametric(point, values, f);
+          expect(Array.from(f)).toEqual(rhsAt(bound, point));
+        },
+      ),
       { seed: SEED + 4, numRuns: 12 },
     );
   });

@@ -14,7 +14,10 @@ import { pdfinfo, pdftotext, popplerAvailable, popplerMissingMessage } from "../
 
 const chromium = findChromium(process.env);
 const canPrint = chromium !== null && popplerAvailable;
-if (chromium === null) console.warn(`skipping dossier PDF checks: no Chromium found (set ${CHROMIUM_ENV} or apt-get install chromium)`);
+if (chromium === null)
+  console.warn(
+    `skipping dossier PDF checks: no Chromium found (set ${CHROMIUM_ENV} or apt-get install chromium)`,
+  );
 else if (!popplerAvailable) console.warn(`skipping dossier PDF checks: ${popplerMissingMessage}`);
 
 /** 2023-11-14T22:13:20Z; SOURCE_DATE_EPOCH is seconds since 1970 (reproducible-builds.org, "SOURCE_DATE_EPOCH" specification). */
@@ -79,7 +82,9 @@ const SPECS_DIR = join(PROJECT_ROOT, "specs");
 const exampleSpecs = readdirSync(SPECS_DIR)
   .filter((f) => f.endsWith(".json"))
   .sort()
-  .map((f) => JSON.parse(readFileSync(join(SPECS_DIR, f), "utf8")) as Record<string, unknown> & { id: string });
+  .map(
+    (f) => JSON.parse(readFileSync(join(SPECS_DIR, f), "utf8")) as Record<string, unknown> & { id: string },
+  );
 
 // ---- reading HTML without a browser: enough for markup we generate ourselves ----
 
@@ -87,7 +92,10 @@ const exampleSpecs = readdirSync(SPECS_DIR)
 function decodeEntities(text: string): string {
   const named: Record<string, string> = { lt: "<", gt: ">", amp: "&", quot: '"', apos: "'", nbsp: "\u00a0" };
   return text.replace(/&(#x[0-9a-f]+|#\d+|[a-z]+);/gi, (whole, ref: string) => {
-    if (ref[0] === "#") return String.fromCodePoint(ref[1] === "x" || ref[1] === "X" ? parseInt(ref.slice(2), 16) : Number(ref.slice(1)));
+    if (ref[0] === "#")
+      return String.fromCodePoint(
+        ref[1] === "x" || ref[1] === "X" ? parseInt(ref.slice(2), 16) : Number(ref.slice(1)),
+      );
     return named[ref.toLowerCase()] ?? whole;
   });
 }
@@ -102,13 +110,17 @@ function visibleText(html: string): string {
 function startTags(html: string): { name: string; attributes: string[] }[] {
   return [...html.matchAll(/<([a-zA-Z][\w:-]*)((?:[^>"']|"[^"]*"|'[^']*')*)>/g)].map(([, name, rest]) => ({
     name: name.toLowerCase(),
-    attributes: [...rest.replace(/"[^"]*"|'[^']*'/g, "").matchAll(/([^\s=/]+)\s*=/g)].map((a) => a[1].toLowerCase()),
+    attributes: [...rest.replace(/"[^"]*"|'[^']*'/g, "").matchAll(/([^\s=/]+)\s*=/g)].map((a) =>
+      a[1].toLowerCase(),
+    ),
   }));
 }
 
 /** Values of every src, href and xlink:href attribute. */
 function linkValues(html: string): string[] {
-  return [...html.matchAll(/\s(?:src|href|xlink:href)\s*=\s*("([^"]*)"|'([^']*)'|([^\s>]+))/gi)].map((m) => m[2] ?? m[3] ?? m[4]);
+  return [...html.matchAll(/\s(?:src|href|xlink:href)\s*=\s*("([^"]*)"|'([^']*)'|([^\s>]+))/gi)].map(
+    (m) => m[2] ?? m[3] ?? m[4],
+  );
 }
 
 /** Text with all white space removed, so a line broken by the PDF's layout still matches. */
@@ -133,7 +145,9 @@ function expectedOutline(results: Results): { id: string; heading: string | null
     { id: "equilibria", heading: "Equilibria" },
     { id: "portrait", heading: "Phase portrait" },
     ...(results.basins.attractors.length > 0 ? [{ id: "basins", heading: "Basins of attraction" }] : []),
-    ...(results.conditions.studies.length + results.conditions.invasion.length > 0 ? [{ id: "conditions", heading: "Deciding conditions" }] : []),
+    ...(results.conditions.studies.length + results.conditions.invasion.length > 0
+      ? [{ id: "conditions", heading: "Deciding conditions" }]
+      : []),
     { id: "methods", heading: "Methods and provenance" },
     { id: "cautions", heading: "Cautions" },
   ];
@@ -144,13 +158,18 @@ function equilibriaRows(html: string): string[][] {
   const table = /<table class="equilibria-table[^"]*">[\s\S]*?<tbody>([\s\S]*?)<\/tbody>/.exec(html);
   if (!table) throw new Error("no equilibria table in the HTML");
   return [...table[1].matchAll(/<tr>([\s\S]*?)<\/tr>/g)].map((row) =>
-    [...row[1].matchAll(/<td[^>]*>([\s\S]*?)<\/td>/g)].map((cell) => decodeEntities(cell[1].replace(/<[^>]+>/g, "")).trim()),
+    [...row[1].matchAll(/<td[^>]*>([\s\S]*?)<\/td>/g)].map((cell) =>
+      decodeEntities(cell[1].replace(/<[^>]+>/g, "")).trim(),
+    ),
   );
 }
 
 /** The running header Chromium prints on every page: the model id, then "spec <hash>…". */
 function withoutRunningHeader(page: string, id: string): string[] {
-  return page.split("\n").map((l) => l.trim()).filter((l) => l !== "" && l !== id && !/^spec [0-9a-f]{16}…$/.test(l) && !/^page \d+ of \d+$/.test(l));
+  return page
+    .split("\n")
+    .map((l) => l.trim())
+    .filter((l) => l !== "" && l !== id && !/^spec [0-9a-f]{16}…$/.test(l) && !/^page \d+ of \d+$/.test(l));
 }
 
 afterAll(removeWorkDirs);
@@ -162,97 +181,111 @@ function buildExample(spec: Record<string, unknown> & { id: string }): Built {
   return builtExamples.get(spec.id)!;
 }
 
-for (const spec of exampleSpecs) describe(`keel build specs/${spec.id}.json: the dossier`, () => {
-  let built: Built;
-  let text: string[] = []; // PDF text, one entry per page
+for (const spec of exampleSpecs)
+  describe(`keel build specs/${spec.id}.json: the dossier`, () => {
+    let built: Built;
+    let text: string[] = []; // PDF text, one entry per page
 
-  beforeAll(() => {
-    built = buildExample(spec);
-    if (canPrint && built.pdf) text = pdftotext(built.pdf).split("\f");
-  });
-
-  it("buildDossier(example) prints every section, in order, under its heading", () => {
-    expect(sectionOutline(built.html)).toEqual(expectedOutline(built.results));
-  });
-
-  it("buildDossier(example) puts title, id, date from SOURCE_DATE_EPOCH, spec hash and keel version on the cover", () => {
-    const cover = /<section class="cover"[\s\S]*?<\/section>/.exec(built.html)![0];
-    const coverText = visibleText(cover);
-    for (const fact of [spec.title as string, spec.id, EPOCH_DATE, built.results.spec.sha256, `keel ${built.results.keel}`]) {
-      expect(coverText).toContain(fact);
-    }
-  });
-
-  it("buildDossier(example) refers to no URL: no script, link, @import, remote src/href or url() but data:", () => {
-    const html = built.html;
-    const tagNames = new Set(startTags(html).map((t) => t.name));
-    for (const name of ["script", "link", "iframe", "object", "embed", "base"]) expect(tagNames, `<${name}>`).not.toContain(name);
-    expect(html).not.toMatch(/@import/i);
-    for (const value of linkValues(html)) expect(value, "src/href value").toMatch(/^(data:|#)/);
-    for (const img of html.matchAll(/<img\b[^>]*>/gi)) expect(img[0]).toMatch(/\ssrc\s*=\s*["']?data:/i);
-    const urls = [...html.matchAll(/url\(\s*(["']?)([^"')\s]{0,12})/gi)].map((m) => m[2]);
-    expect(urls.length).toBeGreaterThan(0); // the inlined KaTeX fonts: the check did look
-    for (const target of urls) expect(target).toMatch(/^data:/);
-    // the example specs mention no web address, so none may appear anywhere, markup or text
-    expect(html).not.toMatch(/https?:|(?:src|href)\s*=\s*["']?\/\//i);
-  });
-
-  it("keel build(example) reports no blocked network request while printing", () => {
-    expect(built.run.stderr).not.toMatch(/blocked/i);
-  });
-
-  describe.skipIf(!canPrint)("its PDF", () => {
-    it(`keel build(example) prints between ${PAGE_RANGE.min} and ${PAGE_RANGE.max} pages, as pdfinfo counts them`, () => {
-      const pages = Number(pdfinfo(built.pdf!).Pages);
-      expect(pages).toBeGreaterThanOrEqual(PAGE_RANGE.min);
-      expect(pages).toBeLessThanOrEqual(PAGE_RANGE.max);
-      expect(text.filter((p) => p.trim() !== "").length).toBe(pages);
+    beforeAll(() => {
+      built = buildExample(spec);
+      if (canPrint && built.pdf) text = pdftotext(built.pdf).split("\f");
     });
 
-    it("keel build(example) PDF text holds every equilibria-table value as the HTML prints it, row by row", () => {
-      const rows = equilibriaRows(built.html);
-      expect(rows.map((r) => r[0])).toEqual(built.results.equilibria.map((e) => e.id));
-      const all = squeeze(text.join("\n"));
-      const table = all.slice(all.indexOf(squeeze("Every equilibrium found")), all.indexOf(squeeze("Jacobian at each equilibrium")));
-      expect(table.length).toBeGreaterThan(0);
-      for (const row of rows) {
-        // each cell in order after the row's id: pdftotext reads the table row by row
-        let at = table.indexOf(row[0]);
-        for (const cell of row) {
-          const found = table.indexOf(squeeze(cell), at);
-          expect(found, `${row[0]}: "${cell}" in the PDF's equilibria table`).toBeGreaterThanOrEqual(0);
-          at = found + squeeze(cell).length;
+    it("buildDossier(example) prints every section, in order, under its heading", () => {
+      expect(sectionOutline(built.html)).toEqual(expectedOutline(built.results));
+    });
+
+    it("buildDossier(example) puts title, id, date from SOURCE_DATE_EPOCH, spec hash and keel version on the cover", () => {
+      const cover = /<section class="cover"[\s\S]*?<\/section>/.exec(built.html)![0];
+      const coverText = visibleText(cover);
+      for (const fact of [
+        spec.title as string,
+        spec.id,
+        EPOCH_DATE,
+        built.results.spec.sha256,
+        `keel ${built.results.keel}`,
+      ]) {
+        expect(coverText).toContain(fact);
+      }
+    });
+
+    it("buildDossier(example) refers to no URL: no script, link, @import, remote src/href or url() but data:", () => {
+      const html = built.html;
+      const tagNames = new Set(startTags(html).map((t) => t.name));
+      for (const name of ["script", "link", "iframe", "object", "embed", "base"])
+        expect(tagNames, `<${name}>`).not.toContain(name);
+      expect(html).not.toMatch(/@import/i);
+      for (const value of linkValues(html)) expect(value, "src/href value").toMatch(/^(data:|#)/);
+      for (const img of html.matchAll(/<img\b[^>]*>/gi)) expect(img[0]).toMatch(/\ssrc\s*=\s*["']?data:/i);
+      const urls = [...html.matchAll(/url\(\s*(["']?)([^"')\s]{0,12})/gi)].map((m) => m[2]);
+      expect(urls.length).toBeGreaterThan(0); // the inlined KaTeX fonts: the check did look
+      for (const target of urls) expect(target).toMatch(/^data:/);
+      // the example specs mention no web address, so none may appear anywhere, markup or text
+      expect(html).not.toMatch(/https?:|(?:src|href)\s*=\s*["']?\/\//i);
+    });
+
+    it("keel build(example) reports no blocked network request while printing", () => {
+      expect(built.run.stderr).not.toMatch(/blocked/i);
+    });
+
+    describe.skipIf(!canPrint)("its PDF", () => {
+      it(`keel build(example) prints between ${PAGE_RANGE.min} and ${PAGE_RANGE.max} pages, as pdfinfo counts them`, () => {
+        const pages = Number(pdfinfo(built.pdf!).Pages);
+        expect(pages).toBeGreaterThanOrEqual(PAGE_RANGE.min);
+        expect(pages).toBeLessThanOrEqual(PAGE_RANGE.max);
+        expect(text.filter((p) => p.trim() !== "").length).toBe(pages);
+      });
+
+      it("keel build(example) PDF text holds every equilibria-table value as the HTML prints it, row by row", () => {
+        const rows = equilibriaRows(built.html);
+        expect(rows.map((r) => r[0])).toEqual(built.results.equilibria.map((e) => e.id));
+        const all = squeeze(text.join("\n"));
+        const table = all.slice(
+          all.indexOf(squeeze("Every equilibrium found")),
+          all.indexOf(squeeze("Jacobian at each equilibrium")),
+        );
+        expect(table.length).toBeGreaterThan(0);
+        for (const row of rows) {
+          // each cell in order after the row's id: pdftotext reads the table row by row
+          let at = table.indexOf(row[0]);
+          for (const cell of row) {
+            const found = table.indexOf(squeeze(cell), at);
+            expect(found, `${row[0]}: "${cell}" in the PDF's equilibria table`).toBeGreaterThanOrEqual(0);
+            at = found + squeeze(cell).length;
+          }
         }
-      }
-      // negative values keep the true minus sign through the PDF, as printed in the HTML
-      const negatives = rows.flat().filter((c) => c.startsWith(MINUS));
-      expect(negatives.length).toBeGreaterThan(0);
-      for (const cell of negatives) expect(table).toContain(squeeze(cell));
-    });
+        // negative values keep the true minus sign through the PDF, as printed in the HTML
+        const negatives = rows.flat().filter((c) => c.startsWith(MINUS));
+        expect(negatives.length).toBeGreaterThan(0);
+        for (const cell of negatives) expect(table).toContain(squeeze(cell));
+      });
 
-    it("keel build(example) PDF numbers the section headings 1, 2, 3… in document order", () => {
-      const lines = text.join("\n").split("\n").map((l) => l.trim());
-      let at = -1;
-      for (const [k, section] of expectedOutline(built.results).slice(1).entries()) {
-        const found = lines.indexOf(`${k + 1}\u2002${section.heading}`, at + 1);
-        const plain = lines.indexOf(`${k + 1} ${section.heading}`, at + 1);
-        const where = found >= 0 ? found : plain;
-        expect(where, `"${k + 1} ${section.heading}" after line ${at}`).toBeGreaterThan(at);
-        at = where;
-      }
-    });
+      it("keel build(example) PDF numbers the section headings 1, 2, 3… in document order", () => {
+        const lines = text
+          .join("\n")
+          .split("\n")
+          .map((l) => l.trim());
+        let at = -1;
+        for (const [k, section] of expectedOutline(built.results).slice(1).entries()) {
+          const found = lines.indexOf(`${k + 1}\u2002${section.heading}`, at + 1);
+          const plain = lines.indexOf(`${k + 1} ${section.heading}`, at + 1);
+          const where = found >= 0 ? found : plain;
+          expect(where, `"${k + 1} ${section.heading}" after line ${at}`).toBeGreaterThan(at);
+          at = where;
+        }
+      });
 
-    it("keel build(example) fits the Summary of findings on page 2; page 3 starts the Model section", () => {
-      const summary = /<section class="summary"[\s\S]*?<\/section>/.exec(built.html)![0];
-      const headings = [...summary.matchAll(/<h3>([\s\S]*?)<\/h3>/g)].map((h) => decodeEntities(h[1]));
-      expect(headings.length).toBeGreaterThan(2);
-      const page2 = text[1];
-      expect(page2).toContain("Summary of findings");
-      for (const h of headings) expect(page2, `summary heading "${h}" on page 2`).toContain(h);
-      expect(withoutRunningHeader(text[2], spec.id)[0]).toMatch(/^\d+\s+Model$/);
+      it("keel build(example) fits the Summary of findings on page 2; page 3 starts the Model section", () => {
+        const summary = /<section class="summary"[\s\S]*?<\/section>/.exec(built.html)![0];
+        const headings = [...summary.matchAll(/<h3>([\s\S]*?)<\/h3>/g)].map((h) => decodeEntities(h[1]));
+        expect(headings.length).toBeGreaterThan(2);
+        const page2 = text[1];
+        expect(page2).toContain("Summary of findings");
+        for (const h of headings) expect(page2, `summary heading "${h}" on page 2`).toContain(h);
+        expect(withoutRunningHeader(text[2], spec.id)[0]).toMatch(/^\d+\s+Model$/);
+      });
     });
   });
-});
 
 describe.skipIf(!canPrint)("renderPdf(dossier HTML with an injected remote image)", () => {
   // The templates escape all spec text, so a request can only be injected behind them, here.
@@ -263,7 +296,12 @@ describe.skipIf(!canPrint)("renderPdf(dossier HTML with an injected remote image
     const built = buildExample(exampleSpecs[0]);
     const html = built.html.replace("</body>", `<img src="${REMOTE}" alt="">\n</body>`);
     expect(html).toContain(REMOTE);
-    const printed = await renderPdf(html, { chromiumPath: chromium!, paper: "a4", headerLeft: built.id, headerRight: "spec test" });
+    const printed = await renderPdf(html, {
+      chromiumPath: chromium!,
+      paper: "a4",
+      headerLeft: built.id,
+      headerRight: "spec test",
+    });
     expect(printed.blockedRequests).toEqual([REMOTE]);
     expect(printed.pageCount).toBeGreaterThanOrEqual(PAGE_RANGE.min);
   });
@@ -297,9 +335,30 @@ function hostileSpec(base: Record<string, unknown>): Record<string, unknown> {
   spec.cautions = [...spec.cautions, mark("caution")];
   return spec;
 }
-const FIELDS = ["title", "purpose", "author", "organisation", "state", "parameter", "source", "assumption", "claim", "scenario", "caution"];
+const FIELDS = [
+  "title",
+  "purpose",
+  "author",
+  "organisation",
+  "state",
+  "parameter",
+  "source",
+  "assumption",
+  "claim",
+  "scenario",
+  "caution",
+];
 /** Fields printed in running text or figure labels, where pdftotext keeps the whole string in one run. */
-const FULL_WIDTH_FIELDS = ["title", "purpose", "author", "organisation", "state", "assumption", "scenario", "caution"];
+const FULL_WIDTH_FIELDS = [
+  "title",
+  "purpose",
+  "author",
+  "organisation",
+  "state",
+  "assumption",
+  "scenario",
+  "caution",
+];
 
 describe("keel build(spec whose text carries <script>, <img onerror> and {{…}})", () => {
   const base = exampleSpecs.find((s) => s.id === "reservoir-competition") ?? exampleSpecs[0];
@@ -329,7 +388,9 @@ describe("keel build(spec whose text carries <script>, <img onerror> and {{…}}
   it("buildDossier(hostile text) leaves {{…}} as text: Handlebars does not evaluate data", () => {
     // Handlebars escapes & < > " ' ` = in {{expr}} output and never re-reads it as a template (handlebarsjs.com, "HTML escaping")
     expect(built.html).toContain("{{constructor.constructor(");
-    expect(visibleText(built.html).split("{{constructor.constructor('x')()}}").length - 1).toBeGreaterThanOrEqual(FIELDS.length);
+    expect(
+      visibleText(built.html).split("{{constructor.constructor('x')()}}").length - 1,
+    ).toBeGreaterThanOrEqual(FIELDS.length);
   });
 
   it.skipIf(!canPrint)("keel build(hostile text) PDF shows the literal characters", () => {

@@ -10,16 +10,33 @@ import { branchPieces, buildBifurcationFigure, labelNumber } from "../../src/rep
 import { outcomeLetter } from "../../src/report/figures/outcomeMap.js";
 import { outcomeWords } from "../../src/report/words/index.js";
 import {
-  BRANCH_STYLES, EQUILIBRIUM_MARKERS, REGION_FILLS, SPECIAL_POINT_MARKERS, SPECIAL_REGION_FILLS, THRESHOLD_CURVE_STYLES,
+  BRANCH_STYLES,
+  EQUILIBRIUM_MARKERS,
+  REGION_FILLS,
+  SPECIAL_POINT_MARKERS,
+  SPECIAL_REGION_FILLS,
+  THRESHOLD_CURVE_STYLES,
 } from "../../src/report/figures/palette.js";
 import { compileFigure, renderSvg } from "../../src/report/render/svg.js";
 
 type Row = Record<string, unknown>;
-type View = { name?: string; data?: { values: Row[] }; mark?: Record<string, unknown>; layer?: View[]; hconcat?: View[]; vconcat?: View[]; encoding?: Record<string, { scale?: { domain?: number[] } }> };
+type View = {
+  name?: string;
+  data?: { values: Row[] };
+  mark?: Record<string, unknown>;
+  layer?: View[];
+  hconcat?: View[];
+  vconcat?: View[];
+  encoding?: Record<string, { scale?: { domain?: number[] } }>;
+};
 
 /** Every layer of a figure, however its views are nested. */
 function layersOf(view: View): View[] {
-  return [...(view.layer ?? []), ...(view.hconcat ?? []).flatMap(layersOf), ...(view.vconcat ?? []).flatMap(layersOf)];
+  return [
+    ...(view.layer ?? []),
+    ...(view.hconcat ?? []).flatMap(layersOf),
+    ...(view.vconcat ?? []).flatMap(layersOf),
+  ];
 }
 const layer = (f: Figure, name: string) => layersOf(f.spec as View).find((l) => l.name === name);
 const rowsOf = (f: Figure, name: string) => layer(f, name)?.data?.values ?? [];
@@ -48,7 +65,8 @@ const runs = new Map<string, PipelineOutput>();
 const figures = new Map<string, Figure[]>();
 const svgs = new Map<string, string>();
 const warnings = new Map<string, string[]>();
-const isNew = (f: Figure) => f.id === "basins" || f.id.startsWith("bifurcation-") || f.id.startsWith("outcome-map-");
+const isNew = (f: Figure) =>
+  f.id === "basins" || f.id.startsWith("bifurcation-") || f.id.startsWith("outcome-map-");
 
 beforeAll(async () => {
   for (const id of EXAMPLES) {
@@ -70,9 +88,15 @@ describe("buildFigures with basins, studies and maps", () => {
   it("buildFigures(example) orders trace-determinant, portrait, basins, bifurcations, outcome maps, time series", () => {
     for (const id of EXAMPLES) {
       const { results } = runs.get(id)!;
-      const studied = results.conditions.studies.filter((s) => s.thresholds.length > 0 || s.continuation.branches.length > 1);
-      expect(figures.get(id)!.map((f) => f.id), id).toEqual([
-        "trace-determinant", "portrait",
+      const studied = results.conditions.studies.filter(
+        (s) => s.thresholds.length > 0 || s.continuation.branches.length > 1,
+      );
+      expect(
+        figures.get(id)!.map((f) => f.id),
+        id,
+      ).toEqual([
+        "trace-determinant",
+        "portrait",
         ...(results.basins.attractors.length ? ["basins"] : []),
         ...studied.map((s) => `bifurcation-${s.parameter}`),
         ...results.conditions.maps.map((m) => `outcome-map-${m.parameters[0]}-${m.parameters[1]}`),
@@ -82,16 +106,18 @@ describe("buildFigures with basins, studies and maps", () => {
     // pinned: both examples have a basin map; the competition model's a12 and a21 each have a
     // transcritical threshold (see below), and the one map asked for
     const ids = figures.get("reservoir-competition")!.map((f) => f.id);
-    for (const fid of ["basins", "bifurcation-a12", "bifurcation-a21", "outcome-map-a12-a21"]) expect(ids).toContain(fid);
+    for (const fid of ["basins", "bifurcation-a12", "bifurcation-a21", "outcome-map-a12-a21"])
+      expect(ids).toContain(fid);
     expect(figures.get("grazer-forage")!.map((f) => f.id)).toContain("basins");
   });
 
   it("compileFigure(basin, bifurcation and outcome-map figures) raises no vega-lite warning", () => {
-    for (const [id, built] of figures) for (const f of built.filter(isNew)) {
-      const found: string[] = [];
-      compileFigure(f.spec, found);
-      expect(found, `${id}/${f.id}`).toEqual([]);
-    }
+    for (const [id, built] of figures)
+      for (const f of built.filter(isNew)) {
+        const found: string[] = [];
+        compileFigure(f.spec, found);
+        expect(found, `${id}/${f.id}`).toEqual([]);
+      }
   });
 
   it("renderSvg(basin, bifurcation and outcome-map figures) logs no warning and holds no URL", () => {
@@ -100,14 +126,17 @@ describe("buildFigures with basins, studies and maps", () => {
       expect(warnings.get(key), key).toEqual([]);
       expect(svg.startsWith("<svg"), key).toBe(true);
       expect(svg, key).not.toMatch(/http|url\(|<script|xmlns/i);
-      expect(JSON.stringify(figures.get(key.split("/")[0])!.find((f) => key.endsWith(`/${f.id}`))!.spec)).not.toMatch(/"url"|"\$schema"/);
+      expect(
+        JSON.stringify(figures.get(key.split("/")[0])!.find((f) => key.endsWith(`/${f.id}`))!.spec),
+      ).not.toMatch(/"url"|"\$schema"/);
     }
   });
 
   it("renderSvg(basin, bifurcation and outcome-map figures) is byte-identical when rendered twice", async () => {
-    for (const [id, built] of figures) for (const f of built.filter(isNew)) {
-      expect(await renderSvg(f.spec), f.id).toBe(svgs.get(`${id}/${f.id}`));
-    }
+    for (const [id, built] of figures)
+      for (const f of built.filter(isNew)) {
+        expect(await renderSvg(f.spec), f.id).toBe(svgs.get(`${id}/${f.id}`));
+      }
   });
 
   it("buildFigures(results) leaves the basin grid, the studies and the maps unchanged", () => {
@@ -120,8 +149,16 @@ describe("buildFigures with basins, studies and maps", () => {
   it("buildFigures(no attractor, one branch and no threshold) leaves out the basin map and that bifurcation diagram", () => {
     const { results, spec } = runs.get("reservoir-competition")!;
     const [first, ...rest] = results.conditions.studies;
-    const lonely = { ...first, thresholds: [], continuation: { ...first.continuation, branches: first.continuation.branches.slice(0, 1) } };
-    const trimmed: Results = { ...results, basins: { ...results.basins, attractors: [] }, conditions: { ...results.conditions, studies: [lonely, ...rest] } };
+    const lonely = {
+      ...first,
+      thresholds: [],
+      continuation: { ...first.continuation, branches: first.continuation.branches.slice(0, 1) },
+    };
+    const trimmed: Results = {
+      ...results,
+      basins: { ...results.basins, attractors: [] },
+      conditions: { ...results.conditions, studies: [lonely, ...rest] },
+    };
     const ids = buildFigures(trimmed, spec).map((f) => f.id);
     expect(ids).not.toContain("basins");
     expect(ids).not.toContain(`bifurcation-${first.parameter}`);
@@ -130,7 +167,14 @@ describe("buildFigures with basins, studies and maps", () => {
 
   it("buildFigures(results with no equilibria, orbits or manifolds) still gives basin, bifurcation and map figures that render cleanly", async () => {
     const { results, spec } = runs.get("reservoir-competition")!;
-    const empty: Results = { ...results, equilibria: [], scenarios: [], trajectories: [], separatrices: [], cycles: [] };
+    const empty: Results = {
+      ...results,
+      equilibria: [],
+      scenarios: [],
+      trajectories: [],
+      separatrices: [],
+      cycles: [],
+    };
     const built = buildFigures(empty, spec).filter(isNew);
     expect(built.map((f) => f.id)).toContain("basins");
     expect(built.map((f) => f.id)).toContain("outcome-map-a12-a21");
@@ -149,7 +193,10 @@ describe("the basin map", () => {
       const drawn = downsampleBasinGrid(results.basins.grid);
       expect(drawn.factor).toBe(1); // 128 cells a side, under BASIN_DRAW_MAX
       const cells = rowsOf(figure(id, "basins"), "cells");
-      expect(cells.reduce((s, r) => s + Number(r.cells), 0), id).toBe(drawn.nx * drawn.ny);
+      expect(
+        cells.reduce((s, r) => s + Number(r.cells), 0),
+        id,
+      ).toBe(drawn.nx * drawn.ny);
       expect(countMarks(svgs.get(`${id}/basins`)!, "rect", "cells"), id).toBe(cells.length);
     }
   });
@@ -176,13 +223,13 @@ describe("the basin map", () => {
 
   it("downsampleBasinGrid(4 × 4, at most 2 a side) takes each 2 × 2 block's majority, a tie to the first legend entry", () => {
     // hand-worked; rows from the bottom: blocks (lower left, lower right, upper left, upper right)
-    const cells = [
-      0, 1, 2, 2,
-      1, 1, 2, 0,
-      0, 0, 1, 2,
-      1, 1, 2, 1,
-    ];
-    const grid = { nx: 4, ny: 4, legend: ["E1", "E2", "undecided"], runs: encodeRuns(Int32Array.from(cells), (l) => l) };
+    const cells = [0, 1, 2, 2, 1, 1, 2, 0, 0, 0, 1, 2, 1, 1, 2, 1];
+    const grid = {
+      nx: 4,
+      ny: 4,
+      legend: ["E1", "E2", "undecided"],
+      runs: encodeRuns(Int32Array.from(cells), (l) => l),
+    };
     const drawn = downsampleBasinGrid(grid, 2);
     expect(drawn.factor).toBe(2);
     // lower left 0,1,1,1 → 1; lower right 2,2,2,0 → 2; upper left 0,0,1,1 → tie → 0; upper right 1,2,2,1 → tie → 1
@@ -194,8 +241,17 @@ describe("the basin map", () => {
     const n = 1024;
     const labels = new Int32Array(n * n);
     // a disc of E2 in E4, with one undecided row through it
-    for (let j = 0; j < n; j++) for (let i = 0; i < n; i++) labels[j * n + i] = Math.hypot(i - 400, j - 600) < 300 ? 0 : j === 100 ? 4 : 1;
-    const big: Results = { ...results, basins: { ...results.basins, resolution: n, grid: { ...results.basins.grid, nx: n, ny: n, runs: encodeRuns(labels, (l) => l) } } };
+    for (let j = 0; j < n; j++)
+      for (let i = 0; i < n; i++)
+        labels[j * n + i] = Math.hypot(i - 400, j - 600) < 300 ? 0 : j === 100 ? 4 : 1;
+    const big: Results = {
+      ...results,
+      basins: {
+        ...results.basins,
+        resolution: n,
+        grid: { ...results.basins.grid, nx: n, ny: n, runs: encodeRuns(labels, (l) => l) },
+      },
+    };
     const f = buildFigures(big, spec).find((q) => q.id === "basins")!;
     expect(BASIN_DRAW_MAX).toBe(256);
     const rows = rowsOf(f, "cells");
@@ -215,12 +271,20 @@ describe("the basin map of a limit cycle", () => {
     // In Cartesian form x' = x − y − x(x² + y²), y' = x + y − y(x² + y²): the cycle r = 1 attracts
     // every start but the unstable focus at the origin (Strogatz, Nonlinear Dynamics and Chaos,
     // 2nd ed., Example 7.1.1), so its basin is the whole window.
-    const out = run(JSON.stringify({
-      keel: 1, id: "unit-cycle", title: "unit cycle", time: { unit: "s" },
-      states: [{ name: "x", min: -2, max: 2 }, { name: "y", min: -2, max: 2 }],
-      equations: { x: "x - y - x*(x^2 + y^2)", y: "x + y - y*(x^2 + y^2)" },
-      analysis: { basins: { resolution: 32, coarse: 8 } },
-    }));
+    const out = run(
+      JSON.stringify({
+        keel: 1,
+        id: "unit-cycle",
+        title: "unit cycle",
+        time: { unit: "s" },
+        states: [
+          { name: "x", min: -2, max: 2 },
+          { name: "y", min: -2, max: 2 },
+        ],
+        equations: { x: "x - y - x*(x^2 + y^2)", y: "x + y - y*(x^2 + y^2)" },
+        analysis: { basins: { resolution: 32, coarse: 8 } },
+      }),
+    );
     expect(out.results.basins.attractors).toEqual(["C1"]);
     const f = buildFigures(out.results, out.spec).find((q) => q.id === "basins")!;
     const key = rowsOf(f, "key_symbols").map((r) => r.what);
@@ -248,13 +312,19 @@ describe("the bifurcation diagrams", () => {
           expect(countMarks(svg, "symbol", `special_points_${k + 1}`), f.id).toBe(study.thresholds.length);
           rows.forEach((r, i) => {
             // plotted data keep 7 significant digits (geometry.ts DATA_DIGITS)
-            expect(Math.abs(Number(r.x) - study.thresholds[i].value)).toBeLessThanOrEqual(1e-6 * (study.range[1] - study.range[0]));
+            expect(Math.abs(Number(r.x) - study.thresholds[i].value)).toBeLessThanOrEqual(
+              1e-6 * (study.range[1] - study.range[0]),
+            );
             expect(r.shape).toBe(SPECIAL_POINT_MARKERS[study.thresholds[i].kind].shape);
             const [lo, hi] = results.model.window[state];
-            expect(Math.abs(Number(r.y) - study.thresholds[i].point[state])).toBeLessThanOrEqual(1e-6 * (hi - lo));
+            expect(Math.abs(Number(r.y) - study.thresholds[i].point[state])).toBeLessThanOrEqual(
+              1e-6 * (hi - lo),
+            );
           });
         });
-        const labels = layersOf(f.spec as View).filter((l) => /^special_labels_\d_(left|right)$/.test(l.name ?? "")).flatMap((l) => l.data!.values);
+        const labels = layersOf(f.spec as View)
+          .filter((l) => /^special_labels_\d_(left|right)$/.test(l.name ?? ""))
+          .flatMap((l) => l.data!.values);
         expect(labels.length, f.id).toBe(study.thresholds.length);
       }
     }
@@ -273,7 +343,10 @@ describe("the bifurcation diagrams", () => {
     expect(Number(inN[0].x)).toBeCloseTo(p.K1 / p.K2, 6);
     expect(Number(inN[0].y)).toBeCloseTo(0, 3);
     expect(Number(inS[0].y) / p.K2).toBeCloseTo(1, 6);
-    const text = layersOf(f.spec as View).filter((l) => /^special_labels_1_(left|right)$/.test(l.name ?? "")).flatMap((l) => l.data!.values).map((r) => r.text);
+    const text = layersOf(f.spec as View)
+      .filter((l) => /^special_labels_1_(left|right)$/.test(l.name ?? ""))
+      .flatMap((l) => l.data!.values)
+      .map((r) => r.text);
     expect(text).toEqual([`transcritical ${labelNumber(p.K1 / p.K2)}`]);
     expect(labelNumber(p.K1 / p.K2)).toBe("0.6667");
   });
@@ -289,11 +362,12 @@ describe("the bifurcation diagrams", () => {
           expect(now.encoding!.x.scale!.domain).toEqual(study.range);
           expect(now.encoding!.y.scale!.domain).toEqual(results.model.window[state]);
           expect(now.data!.values.map((r) => r.x)).toEqual([study.nominal, study.nominal]);
-          for (const s of ["stable", "unstable", "undecided"]) for (const r of rowsOf(f, `branches_${s}_${k + 1}`)) {
-            const [lo, hi] = results.model.window[state];
-            expect(Number(r.y)).toBeGreaterThanOrEqual(lo - 1e-6 * (hi - lo));
-            expect(Number(r.y)).toBeLessThanOrEqual(hi + 1e-6 * (hi - lo));
-          }
+          for (const s of ["stable", "unstable", "undecided"])
+            for (const r of rowsOf(f, `branches_${s}_${k + 1}`)) {
+              const [lo, hi] = results.model.window[state];
+              expect(Number(r.y)).toBeGreaterThanOrEqual(lo - 1e-6 * (hi - lo));
+              expect(Number(r.y)).toBeLessThanOrEqual(hi + 1e-6 * (hi - lo));
+            }
         });
         expect(rowsOf(f, "now_label").map((r) => r.text)).toEqual(["now"]);
       }
@@ -308,12 +382,24 @@ describe("the bifurcation diagrams", () => {
   });
 
   const branch = (values: number[], ys: number[], stable: (boolean | null)[]): BranchResult => ({
-    index: 0, seed: { value: values[0], point: { x: 0, y: ys[0] } }, ends: ["range", "range"],
-    points: values.map((v, k) => ({ value: v, point: { x: 0, y: ys[k] }, stable: stable[k], type: "saddle", trace: 0, determinant: 0 })),
+    index: 0,
+    seed: { value: values[0], point: { x: 0, y: ys[0] } },
+    ends: ["range", "range"],
+    points: values.map((v, k) => ({
+      value: v,
+      point: { x: 0, y: ys[k] },
+      stable: stable[k],
+      type: "saddle",
+      trace: 0,
+      determinant: 0,
+    })),
   });
 
   it("branchPieces(stable, stable, unstable, unstable, undecided) splits at the midpoint and lets a lone undecided end follow its neighbour", () => {
-    const pieces = branchPieces(branch([0, 1, 2, 3, 4], [0, 10, 20, 30, 40], [true, true, false, false, null]), "y");
+    const pieces = branchPieces(
+      branch([0, 1, 2, 3, 4], [0, 10, 20, 30, 40], [true, true, false, false, null]),
+      "y",
+    );
     expect(pieces).toEqual([
       { stability: "stable", line: { x: [0, 1, 1.5], y: [0, 10, 15] } },
       { stability: "unstable", line: { x: [1.5, 2, 3, 4], y: [15, 20, 30, 40] } },
@@ -340,7 +426,10 @@ describe("the bifurcation diagrams", () => {
     const f = buildBifurcationFigure(results, spec, { ...study, thresholds: [hopf] });
     const asFigure = { id: "x", title: "", caption: "", spec: f };
     expect(rowsOf(asFigure, "special_points_1")[0].shape).toBe(SPECIAL_POINT_MARKERS.hopf.shape);
-    const text = layersOf(f as View).filter((l) => /^special_labels_1_(left|right)$/.test(l.name ?? "")).flatMap((l) => l.data!.values).map((r) => r.text);
+    const text = layersOf(f as View)
+      .filter((l) => /^special_labels_1_(left|right)$/.test(l.name ?? ""))
+      .flatMap((l) => l.data!.values)
+      .map((r) => r.text);
     expect(text).toEqual([`Hopf (sub) ${labelNumber(hopf.value)}`]);
   });
 });
@@ -352,7 +441,9 @@ describe("the outcome map", () => {
     const f = figure("reservoir-competition", "outcome-map-a12-a21");
     const cells = rowsOf(f, "cells");
     expect(cells.length).toBe(map.nx * map.ny);
-    expect(countMarks(svgs.get("reservoir-competition/outcome-map-a12-a21")!, "rect", "cells")).toBe(map.nx * map.ny);
+    expect(countMarks(svgs.get("reservoir-competition/outcome-map-a12-a21")!, "rect", "cells")).toBe(
+      map.nx * map.ny,
+    );
     expect(cells.map((r) => r.what)).toEqual(map.cells.map((c) => `outcome ${outcomeLetter(c)}`));
   });
 
@@ -364,14 +455,24 @@ describe("the outcome map", () => {
     const p = results.model.parameters;
     const map = results.conditions.maps[0];
     const f = figure("reservoir-competition", "outcome-map-a12-a21");
-    const dx = (map.ranges[0][1] - map.ranges[0][0]) / map.nx, dy = (map.ranges[1][1] - map.ranges[1][0]) / map.ny;
+    const dx = (map.ranges[0][1] - map.ranges[0][0]) / map.nx,
+      dy = (map.ranges[1][1] - map.ranges[1][0]) / map.ny;
     // the stable equilibria, each by the states it keeps present
     const expected = (a12: number, a21: number) => {
-      const perchInvades = a12 < p.K1 / p.K2, breamInvades = a21 < p.K2 / p.K1;
-      return perchInvades && breamInvades ? ["N,S"] : !perchInvades && !breamInvades ? ["N", "S"] : perchInvades ? ["N"] : ["S"];
+      const perchInvades = a12 < p.K1 / p.K2,
+        breamInvades = a21 < p.K2 / p.K1;
+      return perchInvades && breamInvades
+        ? ["N,S"]
+        : !perchInvades && !breamInvades
+          ? ["N", "S"]
+          : perchInvades
+            ? ["N"]
+            : ["S"];
     };
     rowsOf(f, "cells").forEach((r, c) => {
-      const found = map.legend[map.cells[c]].attractors.map((a) => (a.kind === "equilibrium" ? a.present.join() : "cycle")).sort();
+      const found = map.legend[map.cells[c]].attractors
+        .map((a) => (a.kind === "equilibrium" ? a.present.join() : "cycle"))
+        .sort();
       expect(found).toEqual(expected(Number(r.x) + dx / 2, Number(r.y) + dy / 2));
     });
   });
@@ -400,26 +501,37 @@ describe("the outcome map", () => {
       expect(key).toContain(`outcome ${outcomeLetter(k)}`);
       expect(f.caption).toContain(`${outcomeLetter(k)}, ${outcomeWords(outcome, results.model.states)}`);
     });
-    expect(rowsOf(f, "letters").map((r) => r.text).sort()).toEqual(map.legend.map((_, k) => outcomeLetter(k)).filter((_, k) => map.cells.includes(k)));
+    expect(
+      rowsOf(f, "letters")
+        .map((r) => r.text)
+        .sort(),
+    ).toEqual(map.legend.map((_, k) => outcomeLetter(k)).filter((_, k) => map.cells.includes(k)));
     expect([0, 25, 26, 27].map(outcomeLetter)).toEqual(["A", "Z", "AA", "AB"]);
   });
 });
 
 describe("visual code of the maps and diagrams", () => {
   // CIELAB lightness from sRGB (D65), CIE 15:2004 formulae
-  const channel = (c: number) => { const s = c / 255; return s <= 0.04045 ? s / 12.92 : ((s + 0.055) / 1.055) ** 2.4; };
+  const channel = (c: number) => {
+    const s = c / 255;
+    return s <= 0.04045 ? s / 12.92 : ((s + 0.055) / 1.055) ** 2.4;
+  };
   const lightness = (hex: string) => {
     const [r, g, b] = [1, 3, 5].map((i) => channel(parseInt(hex.slice(i, i + 2), 16)));
     const Y = 0.2126 * r + 0.7152 * g + 0.0722 * b;
-    return 116 * (Y > 216 / 24389 ? Math.cbrt(Y) : (24389 / 27 * Y + 16) / 116) - 16;
+    return 116 * (Y > 216 / 24389 ? Math.cbrt(Y) : ((24389 / 27) * Y + 16) / 116) - 16;
   };
 
   it("palette: region fills and the special greys differ pairwise in lightness, so they part in grey-scale print", () => {
     // 5 L* units is a clearly visible step in grey (common practice)
     const fills = [...REGION_FILLS, ...Object.values(SPECIAL_REGION_FILLS)];
-    for (let i = 0; i < fills.length; i++) for (let j = i + 1; j < fills.length; j++) {
-      expect(Math.abs(lightness(fills[i]) - lightness(fills[j])), `${fills[i]} ${fills[j]}`).toBeGreaterThanOrEqual(5);
-    }
+    for (let i = 0; i < fills.length; i++)
+      for (let j = i + 1; j < fills.length; j++) {
+        expect(
+          Math.abs(lightness(fills[i]) - lightness(fills[j])),
+          `${fills[i]} ${fills[j]}`,
+        ).toBeGreaterThanOrEqual(5);
+      }
     // light enough that ink markers and the separatrix (L* 36) keep their contrast over them (common practice)
     for (const f of fills) expect(lightness(f)).toBeGreaterThanOrEqual(50);
   });
@@ -429,7 +541,10 @@ describe("visual code of the maps and diagrams", () => {
     expect(new Set(shapes).size).toBe(4);
     // the Hopf ring shares the stable disc's outline but not its fill
     const looks = (m: { shape: string; fill: string }) => `${m.shape} ${m.fill}`;
-    for (const m of Object.values(EQUILIBRIUM_MARKERS)) expect(Object.values(SPECIAL_POINT_MARKERS).map(looks)).not.toContain(looks(m));
-    expect(new Set(Object.values(THRESHOLD_CURVE_STYLES).map((s) => JSON.stringify(s.strokeDash))).size).toBe(4);
+    for (const m of Object.values(EQUILIBRIUM_MARKERS))
+      expect(Object.values(SPECIAL_POINT_MARKERS).map(looks)).not.toContain(looks(m));
+    expect(new Set(Object.values(THRESHOLD_CURVE_STYLES).map((s) => JSON.stringify(s.strokeDash))).size).toBe(
+      4,
+    );
   });
 });

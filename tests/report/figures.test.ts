@@ -8,12 +8,23 @@ import { clipPolyline, type PlotFrame } from "../../src/report/figures/geometry.
 import { wrapLabel } from "../../src/report/figures/key.js";
 import { placeOnTraceDeterminant, SPREAD_LIMIT } from "../../src/report/figures/traceDeterminant.js";
 import {
-  classifyForDrawing, EQUILIBRIUM_CLASSES, EQUILIBRIUM_MARKERS, FIELD_STYLE, LINE_STYLES, NULLCLINE_STYLES, PAPER,
+  classifyForDrawing,
+  EQUILIBRIUM_CLASSES,
+  EQUILIBRIUM_MARKERS,
+  FIELD_STYLE,
+  LINE_STYLES,
+  NULLCLINE_STYLES,
+  PAPER,
 } from "../../src/report/figures/palette.js";
 import { compileFigure, renderSvg } from "../../src/report/render/svg.js";
 import { textWidthPx } from "../../src/report/render/textWidth.js";
 
-type Layer = { name?: string; data?: { values: Record<string, unknown>[] }; mark?: Record<string, unknown>; layer?: Layer[] };
+type Layer = {
+  name?: string;
+  data?: { values: Record<string, unknown>[] };
+  mark?: Record<string, unknown>;
+  layer?: Layer[];
+};
 
 interface Example {
   run: PipelineOutput;
@@ -40,7 +51,10 @@ function views(figure: Figure): Layer[] {
   const spec = figure.spec as { hconcat?: Layer[]; vconcat?: Layer[] };
   return spec.hconcat ?? spec.vconcat ?? [];
 }
-const layerNamed = (figure: Figure, name: string) => views(figure).flatMap((v) => v.layer ?? []).find((l) => l.name === name);
+const layerNamed = (figure: Figure, name: string) =>
+  views(figure)
+    .flatMap((v) => v.layer ?? [])
+    .find((l) => l.name === name);
 
 beforeAll(async () => {
   for (const id of EXAMPLES) {
@@ -60,7 +74,9 @@ describe("buildFigures on the example specs", () => {
       const ex = examples.get(id)!;
       const ids = ex.figures.map((f) => f.id);
       expect(ids.slice(0, 2)).toEqual(["trace-determinant", "portrait"]);
-      expect(ids.slice(-ex.run.results.scenarios.length)).toEqual(ex.run.results.scenarios.map((s) => `timeseries-${s.name}`));
+      expect(ids.slice(-ex.run.results.scenarios.length)).toEqual(
+        ex.run.results.scenarios.map((s) => `timeseries-${s.name}`),
+      );
       for (const f of ex.figures) {
         expect(f.title.length).toBeGreaterThan(0);
         expect(f.caption.length).toBeGreaterThan(40);
@@ -69,11 +85,12 @@ describe("buildFigures on the example specs", () => {
   });
 
   it("compileFigure(every figure) raises no vega-lite warning", () => {
-    for (const ex of examples.values()) for (const f of ex.figures) {
-      const warnings: string[] = [];
-      compileFigure(f.spec, warnings);
-      expect(warnings, f.id).toEqual([]);
-    }
+    for (const ex of examples.values())
+      for (const f of ex.figures) {
+        const warnings: string[] = [];
+        compileFigure(f.spec, warnings);
+        expect(warnings, f.id).toEqual([]);
+      }
   });
 
   it("renderSvg(every figure) logs no warning from vega-lite or vega", () => {
@@ -91,9 +108,10 @@ describe("buildFigures on the example specs", () => {
   });
 
   it("renderSvg(every figure) is byte-identical when rendered twice", async () => {
-    for (const [id, ex] of examples) for (const f of ex.figures) {
-      expect(await renderSvg(f.spec), f.id).toBe(svgs.get(`${id}/${f.id}`));
-    }
+    for (const [id, ex] of examples)
+      for (const f of ex.figures) {
+        expect(await renderSvg(f.spec), f.id).toBe(svgs.get(`${id}/${f.id}`));
+      }
   });
 
   it("buildFigures leaves its inputs unchanged", () => {
@@ -106,7 +124,12 @@ describe("buildFigures on the example specs", () => {
   it("buildFigures(results with nothing to draw) still gives figures that compile and render", async () => {
     const ex = examples.get("reservoir-competition")!;
     const empty: Results = {
-      ...ex.run.results, equilibria: [], scenarios: [], trajectories: [], separatrices: [], cycles: [],
+      ...ex.run.results,
+      equilibria: [],
+      scenarios: [],
+      trajectories: [],
+      separatrices: [],
+      cycles: [],
       basins: { ...ex.run.results.basins, attractors: [] },
       conditions: { invasion: [], studies: [], maps: [] },
     };
@@ -120,10 +143,11 @@ describe("buildFigures on the example specs", () => {
   });
 
   it("the figure specs carry inline data only: no url, no $schema", () => {
-    for (const ex of examples.values()) for (const f of ex.figures) {
-      const json = JSON.stringify(f.spec);
-      expect(json).not.toMatch(/"url"|"\$schema"|http/);
-    }
+    for (const ex of examples.values())
+      for (const f of ex.figures) {
+        const json = JSON.stringify(f.spec);
+        expect(json).not.toMatch(/"url"|"\$schema"|http/);
+      }
   });
 });
 
@@ -139,17 +163,29 @@ describe("the phase portrait", () => {
       expect(n).toBeGreaterThan(0);
       expect(countSymbols(svgs.get(`${id}/portrait`)!, "equilibria"), id).toBe(n);
       const portrait = ex.figures.find((f) => f.id === "portrait")!;
-      expect(layerNamed(portrait, "equilibria")!.data!.values.map((r) => r.what)).toEqual(ex.run.results.equilibria.map((e) => e.id));
+      expect(layerNamed(portrait, "equilibria")!.data!.values.map((r) => r.what)).toEqual(
+        ex.run.results.equilibria.map((e) => e.id),
+      );
     }
   });
 
   it("portrait(example) draws both nullclines, the field, the scenarios and the separatrices", () => {
     for (const ex of examples.values()) {
       const portrait = ex.figures.find((f) => f.id === "portrait")!;
-      for (const name of ["nullcline_1", "nullcline_2", "field", "scenarios", "stable_manifolds", "unstable_manifolds", "trajectories"]) {
+      for (const name of [
+        "nullcline_1",
+        "nullcline_2",
+        "field",
+        "scenarios",
+        "stable_manifolds",
+        "unstable_manifolds",
+        "trajectories",
+      ]) {
         expect(layerNamed(portrait, name)?.data?.values.length ?? 0, name).toBeGreaterThan(0);
       }
-      const starts = layerNamed(portrait, "scenario_marks")!.data!.values.filter((r) => String(r.what).startsWith("start "));
+      const starts = layerNamed(portrait, "scenario_marks")!.data!.values.filter((r) =>
+        String(r.what).startsWith("start "),
+      );
       expect(starts.map((r) => r.what)).toEqual(ex.run.results.scenarios.map((s) => `start ${s.name}`));
     }
   });
@@ -167,15 +203,16 @@ describe("the phase portrait", () => {
       const [a, b] = ex.run.results.model.states;
       const [wa, wb] = [ex.run.results.model.window[a], ex.run.results.model.window[b]];
       const plot = views(portrait)[0].layer!;
-      for (const layer of plot) for (const r of layer.data!.values) {
-        if (layer.mark!.type === "text") continue; // labels sit beside their points
-        // rounding to 7 significant digits may step a point on the edge out by a hair
-        const slack = 1e-6;
-        expect(Number(r.x), layer.name).toBeGreaterThanOrEqual(wa[0] - slack * (wa[1] - wa[0]));
-        expect(Number(r.x), layer.name).toBeLessThanOrEqual(wa[1] + slack * (wa[1] - wa[0]));
-        expect(Number(r.y), layer.name).toBeGreaterThanOrEqual(wb[0] - slack * (wb[1] - wb[0]));
-        expect(Number(r.y), layer.name).toBeLessThanOrEqual(wb[1] + slack * (wb[1] - wb[0]));
-      }
+      for (const layer of plot)
+        for (const r of layer.data!.values) {
+          if (layer.mark!.type === "text") continue; // labels sit beside their points
+          // rounding to 7 significant digits may step a point on the edge out by a hair
+          const slack = 1e-6;
+          expect(Number(r.x), layer.name).toBeGreaterThanOrEqual(wa[0] - slack * (wa[1] - wa[0]));
+          expect(Number(r.x), layer.name).toBeLessThanOrEqual(wa[1] + slack * (wa[1] - wa[0]));
+          expect(Number(r.y), layer.name).toBeGreaterThanOrEqual(wb[0] - slack * (wb[1] - wb[0]));
+          expect(Number(r.y), layer.name).toBeLessThanOrEqual(wb[1] + slack * (wb[1] - wb[0]));
+        }
     }
   });
 
@@ -183,11 +220,16 @@ describe("the phase portrait", () => {
     for (const ex of examples.values()) {
       const portrait = ex.figures.find((f) => f.id === "portrait")!;
       const [plot, key] = views(portrait);
-      const style = (l: Layer) => `${l.mark!.color} ${JSON.stringify(l.mark!.strokeDash ?? [])} ${l.mark!.strokeWidth}`;
+      const style = (l: Layer) =>
+        `${l.mark!.color} ${JSON.stringify(l.mark!.strokeDash ?? [])} ${l.mark!.strokeWidth}`;
       const keyStyles = new Set(key.layer!.filter((l) => l.mark!.type === "line").map(style));
-      for (const l of plot.layer!.filter((q) => q.mark!.type === "line")) expect(keyStyles.has(style(l)), l.name).toBe(true);
-      const keyShapes = new Set(layerNamed(portrait, "key_symbols")!.data!.values.map((r) => `${r.shape} ${r.fill}`));
-      for (const r of layerNamed(portrait, "equilibria")!.data!.values) expect(keyShapes.has(`${r.shape} ${r.fill}`), String(r.what)).toBe(true);
+      for (const l of plot.layer!.filter((q) => q.mark!.type === "line"))
+        expect(keyStyles.has(style(l)), l.name).toBe(true);
+      const keyShapes = new Set(
+        layerNamed(portrait, "key_symbols")!.data!.values.map((r) => `${r.shape} ${r.fill}`),
+      );
+      for (const r of layerNamed(portrait, "equilibria")!.data!.values)
+        expect(keyShapes.has(`${r.shape} ${r.fill}`), String(r.what)).toBe(true);
     }
   });
 });
@@ -197,19 +239,29 @@ describe("the phase portrait of a limit cycle", () => {
     // In Cartesian form x' = x − y − x(x² + y²), y' = x + y − y(x² + y²): a stable limit cycle
     // r = 1 of period 2π around an unstable focus (Strogatz, Nonlinear Dynamics and Chaos,
     // 2nd ed., Example 7.1.1).
-    const ex = runExample(JSON.stringify({
-      keel: 1, id: "unit-cycle", title: "unit cycle", time: { unit: "s" },
-      states: [{ name: "x", min: -2, max: 2 }, { name: "y", min: -2, max: 2 }],
-      equations: { x: "x - y - x*(x^2 + y^2)", y: "x + y - y*(x^2 + y^2)" },
-      scenarios: [{ name: "inside", initial: { x: 0.1, y: 0 }, horizon: 30 }],
-    }));
+    const ex = runExample(
+      JSON.stringify({
+        keel: 1,
+        id: "unit-cycle",
+        title: "unit cycle",
+        time: { unit: "s" },
+        states: [
+          { name: "x", min: -2, max: 2 },
+          { name: "y", min: -2, max: 2 },
+        ],
+        equations: { x: "x - y - x*(x^2 + y^2)", y: "x + y - y*(x^2 + y^2)" },
+        scenarios: [{ name: "inside", initial: { x: 0.1, y: 0 }, horizon: 30 }],
+      }),
+    );
     const portrait = ex.figures.find((f) => f.id === "portrait")!;
     const orbit = layerNamed(portrait, "cycles_attracting")!.data!.values;
     expect(orbit.length).toBeGreaterThan(50);
     for (const r of orbit) expect(Math.hypot(Number(r.x), Number(r.y))).toBeCloseTo(1, 4);
     const names = views(portrait)[0].layer!.map((l) => l.name);
     expect(names.indexOf("cycles_attracting")).toBeGreaterThan(names.indexOf("scenarios"));
-    expect(layerNamed(portrait, "equilibria")!.data!.values.map((r) => r.shape)).toEqual([EQUILIBRIUM_MARKERS.unstable.shape]);
+    expect(layerNamed(portrait, "equilibria")!.data!.values.map((r) => r.shape)).toEqual([
+      EQUILIBRIUM_MARKERS.unstable.shape,
+    ]);
     const warnings: string[] = [];
     compileFigure(portrait.spec, warnings);
     expect(warnings).toEqual([]);
@@ -253,13 +305,27 @@ describe("the trace–determinant diagram", () => {
   });
 
   const equilibrium = (id: string, jacobian: number[][]): EquilibriumResult => ({
-    id, point: { x: 0, y: 0 }, onBoundary: false, boundaryStates: [], residual: 0, ...classifyEquilibrium(jacobian),
+    id,
+    point: { x: 0, y: 0 },
+    onBoundary: false,
+    boundaryStates: [],
+    residual: 0,
+    ...classifyEquilibrium(jacobian),
   });
 
   it("placeOnTraceDeterminant(rates 1000 times apart) switches to τ/ρ, Δ/ρ² and keeps every point in its region", () => {
-    const fast = equilibrium("E1", [[-1000, 0], [0, -3000]]); // stable node, ρ = 3000
-    const slow = equilibrium("E2", [[0.5, 1], [-1, 0.5]]); // unstable focus, ρ = √1.25
-    const saddle = equilibrium("E3", [[2, 0], [0, -1]]);
+    const fast = equilibrium("E1", [
+      [-1000, 0],
+      [0, -3000],
+    ]); // stable node, ρ = 3000
+    const slow = equilibrium("E2", [
+      [0.5, 1],
+      [-1, 0.5],
+    ]); // unstable focus, ρ = √1.25
+    const saddle = equilibrium("E3", [
+      [2, 0],
+      [0, -1],
+    ]);
     const placed = placeOnTraceDeterminant([fast, slow, saddle]);
     expect(placed.mode).toBe("normalised");
     for (const [k, e] of [fast, slow, saddle].entries()) {
@@ -276,17 +342,38 @@ describe("the trace–determinant diagram", () => {
   });
 
   it("placeOnTraceDeterminant(rates within a factor 10) keeps the actual trace and determinant", () => {
-    const placed = placeOnTraceDeterminant([equilibrium("E1", [[-1, 0], [0, -2]]), equilibrium("E2", [[3, 0], [0, -1]])]);
+    const placed = placeOnTraceDeterminant([
+      equilibrium("E1", [
+        [-1, 0],
+        [0, -2],
+      ]),
+      equilibrium("E2", [
+        [3, 0],
+        [0, -1],
+      ]),
+    ]);
     expect(SPREAD_LIMIT).toBe(10);
     expect(placed.mode).toBe("linear");
-    expect(placed.points.map((p) => [p.x, p.y])).toEqual([[-3, 2], [2, -3]]);
+    expect(placed.points.map((p) => [p.x, p.y])).toEqual([
+      [-3, 2],
+      [2, -3],
+    ]);
   });
 
   it("buildFigures(widely spread rates) says in the caption that the diagram is normalised", () => {
     const ex = examples.get("reservoir-competition")!;
     const results: Results = {
       ...ex.run.results,
-      equilibria: [equilibrium("E1", [[-1000, 0], [0, -3000]]), equilibrium("E2", [[0.5, 1], [-1, 0.5]])],
+      equilibria: [
+        equilibrium("E1", [
+          [-1000, 0],
+          [0, -3000],
+        ]),
+        equilibrium("E2", [
+          [0.5, 1],
+          [-1, 0.5],
+        ]),
+      ],
       scenarios: [],
     };
     const td = buildFigures(results, ex.run.spec, ex.extras).find((f) => f.id === "trace-determinant")!;
@@ -299,17 +386,18 @@ describe("the trace–determinant diagram", () => {
 
 describe("time series", () => {
   it("timeseries(example) stacks one panel per state on a shared time axis, from the scenario's series", () => {
-    for (const ex of examples.values()) for (const s of ex.run.results.scenarios) {
-      const f = ex.figures.find((q) => q.id === `timeseries-${s.name}`)!;
-      const panels = (f.spec as { vconcat: Layer[] }).vconcat;
-      expect(panels.length).toBe(2);
-      const first = panels[0].layer!.find((l) => l.name === "series_1")!.data!.values;
-      const second = panels[1].layer!.find((l) => l.name === "series_2")!.data!.values;
-      expect(first.length).toBe(s.series.t.length);
-      expect(Number(first[0].y)).toBeCloseTo(s.start[ex.run.results.model.states[0]], 6);
-      expect(Number(second[0].y)).toBeCloseTo(s.start[ex.run.results.model.states[1]], 6);
-      expect((f.spec as { resolve: unknown }).resolve).toEqual({ scale: { x: "shared" } });
-    }
+    for (const ex of examples.values())
+      for (const s of ex.run.results.scenarios) {
+        const f = ex.figures.find((q) => q.id === `timeseries-${s.name}`)!;
+        const panels = (f.spec as { vconcat: Layer[] }).vconcat;
+        expect(panels.length).toBe(2);
+        const first = panels[0].layer!.find((l) => l.name === "series_1")!.data!.values;
+        const second = panels[1].layer!.find((l) => l.name === "series_2")!.data!.values;
+        expect(first.length).toBe(s.series.t.length);
+        expect(Number(first[0].y)).toBeCloseTo(s.start[ex.run.results.model.states[0]], 6);
+        expect(Number(second[0].y)).toBeCloseTo(s.start[ex.run.results.model.states[1]], 6);
+        expect((f.spec as { resolve: unknown }).resolve).toEqual({ scale: { x: "shared" } });
+      }
   });
 });
 
@@ -337,16 +425,22 @@ describe("labels from the spec", () => {
 describe("visual code", () => {
   // Relative luminance and contrast ratio as defined in W3C, Web Content Accessibility Guidelines
   // (WCAG) 2.1, "relative luminance" and "contrast ratio"; SC 1.4.11 asks 3:1 for graphical objects.
-  const channel = (c: number) => { const s = c / 255; return s <= 0.04045 ? s / 12.92 : ((s + 0.055) / 1.055) ** 2.4; };
+  const channel = (c: number) => {
+    const s = c / 255;
+    return s <= 0.04045 ? s / 12.92 : ((s + 0.055) / 1.055) ** 2.4;
+  };
   const linear = (hex: string) => [1, 3, 5].map((i) => channel(parseInt(hex.slice(i, i + 2), 16)));
   const luminance = (rgb: number[]) => 0.2126 * rgb[0] + 0.7152 * rgb[1] + 0.0722 * rgb[2];
-  const contrast = (a: string, b: string) => { const [hi, lo] = [luminance(linear(a)), luminance(linear(b))].sort((p, q) => q - p); return (hi + 0.05) / (lo + 0.05); };
+  const contrast = (a: string, b: string) => {
+    const [hi, lo] = [luminance(linear(a)), luminance(linear(b))].sort((p, q) => q - p);
+    return (hi + 0.05) / (lo + 0.05);
+  };
   // CIELAB from linear sRGB (D65), CIE 15:2004 formulae
   const lab = (rgb: number[]) => {
     const X = (0.4124 * rgb[0] + 0.3576 * rgb[1] + 0.1805 * rgb[2]) / 0.95047;
     const Y = 0.2126 * rgb[0] + 0.7152 * rgb[1] + 0.0722 * rgb[2];
     const Z = (0.0193 * rgb[0] + 0.1192 * rgb[1] + 0.9505 * rgb[2]) / 1.08883;
-    const f = (t: number) => (t > 216 / 24389 ? Math.cbrt(t) : (24389 / 27 * t + 16) / 116);
+    const f = (t: number) => (t > 216 / 24389 ? Math.cbrt(t) : ((24389 / 27) * t + 16) / 116);
     return [116 * f(Y) - 16, 500 * (f(X) - f(Y)), 200 * (f(Y) - f(Z))];
   };
   const deltaE = (a: number[], b: number[]) => Math.hypot(...lab(a).map((v, k) => v - lab(b)[k]));
@@ -354,11 +448,24 @@ describe("visual code", () => {
   // "A Physiologically-based Model for Simulation of Color Vision Deficiency", IEEE TVCG 15(6),
   // 2009, table of precomputed matrices (values from memory).
   const DICHROMATS: Record<string, number[][]> = {
-    protanopia: [[0.152286, 1.052583, -0.204868], [0.114503, 0.786281, 0.099216], [-0.003882, -0.048116, 1.051998]],
-    deuteranopia: [[0.367322, 0.860646, -0.227968], [0.280085, 0.672501, 0.047413], [-0.01182, 0.04294, 0.968881]],
-    tritanopia: [[1.255528, -0.076749, -0.178779], [-0.078411, 0.930809, 0.147602], [0.004733, 0.691367, 0.3039]],
+    protanopia: [
+      [0.152286, 1.052583, -0.204868],
+      [0.114503, 0.786281, 0.099216],
+      [-0.003882, -0.048116, 1.051998],
+    ],
+    deuteranopia: [
+      [0.367322, 0.860646, -0.227968],
+      [0.280085, 0.672501, 0.047413],
+      [-0.01182, 0.04294, 0.968881],
+    ],
+    tritanopia: [
+      [1.255528, -0.076749, -0.178779],
+      [-0.078411, 0.930809, 0.147602],
+      [0.004733, 0.691367, 0.3039],
+    ],
   };
-  const simulate = (m: number[][], rgb: number[]) => m.map((row) => Math.min(1, Math.max(0, row[0] * rgb[0] + row[1] * rgb[1] + row[2] * rgb[2])));
+  const simulate = (m: number[][], rgb: number[]) =>
+    m.map((row) => Math.min(1, Math.max(0, row[0] * rgb[0] + row[1] * rgb[1] + row[2] * rgb[2])));
   const lightness = (hex: string) => lab(linear(hex))[0];
 
   /** Colours that meet in one figure and must be told apart. */
@@ -371,21 +478,32 @@ describe("visual code", () => {
   ];
 
   it("palette: every data line has at least 3:1 contrast with the paper (WCAG 2.1 SC 1.4.11)", () => {
-    const lines = [...NULLCLINE_STYLES.map((s) => s.color), LINE_STYLES.scenario.color, LINE_STYLES.stableManifold.color,
-      LINE_STYLES.unstableManifold.color, LINE_STYLES.cycleStable.color, FIELD_STYLE.color];
+    const lines = [
+      ...NULLCLINE_STYLES.map((s) => s.color),
+      LINE_STYLES.scenario.color,
+      LINE_STYLES.stableManifold.color,
+      LINE_STYLES.unstableManifold.color,
+      LINE_STYLES.cycleStable.color,
+      FIELD_STYLE.color,
+    ];
     for (const c of lines) expect(contrast(c, PAPER), c).toBeGreaterThanOrEqual(3);
   });
 
   it("palette: colours that meet in a figure differ in lightness, so they part in grey-scale print", () => {
     // 5 L* units is a clearly visible step in grey (common practice)
-    for (const [what, a, b] of PAIRS) expect(Math.abs(lightness(a) - lightness(b)), what).toBeGreaterThanOrEqual(5);
+    for (const [what, a, b] of PAIRS)
+      expect(Math.abs(lightness(a) - lightness(b)), what).toBeGreaterThanOrEqual(5);
   });
 
   it("palette: colours that meet in a figure stay apart for protan, deutan and tritan dichromats", () => {
     // ΔE*ab of 10 or more is an obvious difference side by side (common practice)
-    for (const [name, m] of Object.entries(DICHROMATS)) for (const [what, a, b] of PAIRS) {
-      expect(deltaE(simulate(m, linear(a)), simulate(m, linear(b))), `${what}, ${name}`).toBeGreaterThanOrEqual(10);
-    }
+    for (const [name, m] of Object.entries(DICHROMATS))
+      for (const [what, a, b] of PAIRS) {
+        expect(
+          deltaE(simulate(m, linear(a)), simulate(m, linear(b))),
+          `${what}, ${name}`,
+        ).toBeGreaterThanOrEqual(10);
+      }
   });
 
   it("markers: stable, unstable, saddle and non-hyperbolic have four different shapes", () => {
@@ -394,11 +512,46 @@ describe("visual code", () => {
   });
 
   it("classifyForDrawing(type) sends saddles, undecided and hyperbolic points to their classes", () => {
-    expect(classifyForDrawing(classifyEquilibrium([[1, 0], [0, -1]]))).toBe("saddle");
-    expect(classifyForDrawing(classifyEquilibrium([[-1, 2], [-2, -1]]))).toBe("stable");
-    expect(classifyForDrawing(classifyEquilibrium([[1, 0], [0, 2]]))).toBe("unstable");
-    expect(classifyForDrawing(classifyEquilibrium([[0, 1], [-1, 0]]))).toBe("non-hyperbolic"); // a linear centre
-    expect(classifyForDrawing(classifyEquilibrium([[0, 0], [0, -1]]))).toBe("non-hyperbolic"); // a zero eigenvalue
+    expect(
+      classifyForDrawing(
+        classifyEquilibrium([
+          [1, 0],
+          [0, -1],
+        ]),
+      ),
+    ).toBe("saddle");
+    expect(
+      classifyForDrawing(
+        classifyEquilibrium([
+          [-1, 2],
+          [-2, -1],
+        ]),
+      ),
+    ).toBe("stable");
+    expect(
+      classifyForDrawing(
+        classifyEquilibrium([
+          [1, 0],
+          [0, 2],
+        ]),
+      ),
+    ).toBe("unstable");
+    expect(
+      classifyForDrawing(
+        classifyEquilibrium([
+          [0, 1],
+          [-1, 0],
+        ]),
+      ),
+    ).toBe("non-hyperbolic"); // a linear centre
+    expect(
+      classifyForDrawing(
+        classifyEquilibrium([
+          [0, 0],
+          [0, -1],
+        ]),
+      ),
+    ).toBe("non-hyperbolic"); // a zero eigenvalue
   });
 });
 
@@ -408,12 +561,18 @@ describe("geometry and text", () => {
   it("clipPolyline(a path that leaves and re-enters) cuts it exactly at the window edges", () => {
     // hand-worked: (5,5)→(15,5) leaves through x = 10; (15,5)→(5,8) re-enters at x = 10, y = 6.5
     const pieces = clipPolyline(frame, { x: [5, 15, 5], y: [5, 5, 8] });
-    expect(pieces).toEqual([{ x: [5, 10], y: [5, 5] }, { x: [10, 5], y: [6.5, 8] }]);
+    expect(pieces).toEqual([
+      { x: [5, 10], y: [5, 5] },
+      { x: [10, 5], y: [6.5, 8] },
+    ]);
   });
 
   it("clipPolyline(a path wholly outside, or with a non-finite point) keeps only drawable runs", () => {
     expect(clipPolyline(frame, { x: [11, 12], y: [1, 2] })).toEqual([]);
-    expect(clipPolyline(frame, { x: [1, 2, NaN, 4, 5], y: [1, 2, 3, 4, 5] })).toEqual([{ x: [1, 2], y: [1, 2] }, { x: [4, 5], y: [4, 5] }]);
+    expect(clipPolyline(frame, { x: [1, 2, NaN, 4, 5], y: [1, 2, 3, 4, 5] })).toEqual([
+      { x: [1, 2], y: [1, 2] },
+      { x: [4, 5], y: [4, 5] },
+    ]);
   });
 
   it("wrapLabel(long label) breaks at spaces within the line width", () => {
@@ -422,36 +581,45 @@ describe("geometry and text", () => {
   });
 
   const FONT = "/usr/share/fonts/truetype/dejavu/DejaVuSans.ttf";
-  it.skipIf(!existsSync(FONT))("textWidthPx(text) matches DejaVu Sans's own advance widths (hmtx table)", () => {
-    // Reference: the font file itself (DejaVu Sans, Debian's fonts-dejavu-core), read with the
-    // table layout of the OpenType specification (Microsoft, OpenType 1.9: cmap format 4, hhea, hmtx).
-    const font = readFileSync(FONT);
-    const tables = new Map<string, number>();
-    for (let i = 0; i < font.readUInt16BE(4); i++) tables.set(font.toString("latin1", 12 + 16 * i, 16 + 16 * i), font.readUInt32BE(20 + 16 * i));
-    const unitsPerEm = font.readUInt16BE(tables.get("head")! + 18);
-    const metrics = font.readUInt16BE(tables.get("hhea")! + 34);
-    const cmap = tables.get("cmap")!;
-    let sub = -1;
-    for (let i = 0; i < font.readUInt16BE(cmap + 2); i++) {
-      if (font.readUInt16BE(cmap + 4 + 8 * i) === 3 && font.readUInt16BE(cmap + 6 + 8 * i) === 1) sub = cmap + font.readUInt32BE(cmap + 8 + 8 * i);
-    }
-    const segments = font.readUInt16BE(sub + 6) / 2;
-    const at = (array: number, k: number) => font.readUInt16BE(sub + 14 + array * (2 * segments) + (array > 0 ? 2 : 0) + 2 * k);
-    const glyph = (code: number) => {
-      for (let k = 0; k < segments; k++) {
-        if (code < at(1, k) || code > at(0, k)) continue;
-        const delta = at(2, k), rangeOffset = at(3, k);
-        if (rangeOffset === 0) return (code + delta) & 0xffff;
-        const address = sub + 14 + 3 * (2 * segments) + 2 + 2 * k + rangeOffset + 2 * (code - at(1, k));
-        const g = font.readUInt16BE(address);
-        return g === 0 ? 0 : (g + delta) & 0xffff;
+  it.skipIf(!existsSync(FONT))(
+    "textWidthPx(text) matches DejaVu Sans's own advance widths (hmtx table)",
+    () => {
+      // Reference: the font file itself (DejaVu Sans, Debian's fonts-dejavu-core), read with the
+      // table layout of the OpenType specification (Microsoft, OpenType 1.9: cmap format 4, hhea, hmtx).
+      const font = readFileSync(FONT);
+      const tables = new Map<string, number>();
+      for (let i = 0; i < font.readUInt16BE(4); i++)
+        tables.set(font.toString("latin1", 12 + 16 * i, 16 + 16 * i), font.readUInt32BE(20 + 16 * i));
+      const unitsPerEm = font.readUInt16BE(tables.get("head")! + 18);
+      const metrics = font.readUInt16BE(tables.get("hhea")! + 34);
+      const cmap = tables.get("cmap")!;
+      let sub = -1;
+      for (let i = 0; i < font.readUInt16BE(cmap + 2); i++) {
+        if (font.readUInt16BE(cmap + 4 + 8 * i) === 3 && font.readUInt16BE(cmap + 6 + 8 * i) === 1)
+          sub = cmap + font.readUInt32BE(cmap + 8 + 8 * i);
       }
-      return 0;
-    };
-    const advance = (ch: string) => font.readUInt16BE(tables.get("hmtx")! + 4 * Math.min(glyph(ch.codePointAt(0)!), metrics - 1));
-    const sample = "dN/dt = 0 (N-nullcline) stable manifold, τ² = 4Δ −0.15 80,000 fish & fry ABCDEFGHIJKLMNOPQRSTUVWXYZ";
-    for (const ch of new Set(sample)) {
-      expect(textWidthPx(ch, unitsPerEm), JSON.stringify(ch)).toBe(advance(ch));
-    }
-  });
+      const segments = font.readUInt16BE(sub + 6) / 2;
+      const at = (array: number, k: number) =>
+        font.readUInt16BE(sub + 14 + array * (2 * segments) + (array > 0 ? 2 : 0) + 2 * k);
+      const glyph = (code: number) => {
+        for (let k = 0; k < segments; k++) {
+          if (code < at(1, k) || code > at(0, k)) continue;
+          const delta = at(2, k),
+            rangeOffset = at(3, k);
+          if (rangeOffset === 0) return (code + delta) & 0xffff;
+          const address = sub + 14 + 3 * (2 * segments) + 2 + 2 * k + rangeOffset + 2 * (code - at(1, k));
+          const g = font.readUInt16BE(address);
+          return g === 0 ? 0 : (g + delta) & 0xffff;
+        }
+        return 0;
+      };
+      const advance = (ch: string) =>
+        font.readUInt16BE(tables.get("hmtx")! + 4 * Math.min(glyph(ch.codePointAt(0)!), metrics - 1));
+      const sample =
+        "dN/dt = 0 (N-nullcline) stable manifold, τ² = 4Δ −0.15 80,000 fish & fry ABCDEFGHIJKLMNOPQRSTUVWXYZ";
+      for (const ch of new Set(sample)) {
+        expect(textWidthPx(ch, unitsPerEm), JSON.stringify(ch)).toBe(advance(ch));
+      }
+    },
+  );
 });

@@ -8,12 +8,20 @@ import { PDFDict, PDFDocument, PDFHexString, PDFName, PDFString } from "pdf-lib"
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { CHROMIUM_ENV, findChromium } from "../../src/report/render/chromium.js";
 import { PdfRenderError, renderPdf, type PdfRenderResult } from "../../src/report/render/pdf.js";
-import { pdfPageSize, pdfinfo, pdftotext, popplerAvailable, popplerMissingMessage } from "../fixtures/poppler.js";
+import {
+  pdfPageSize,
+  pdfinfo,
+  pdftotext,
+  popplerAvailable,
+  popplerMissingMessage,
+} from "../fixtures/poppler.js";
 
 const chromium = findChromium(process.env);
 const canPrint = chromium !== null && popplerAvailable;
 if (chromium === null) {
-  console.warn(`skipping PDF rendering tests: no Chromium found (set ${CHROMIUM_ENV} or apt-get install chromium)`);
+  console.warn(
+    `skipping PDF rendering tests: no Chromium found (set ${CHROMIUM_ENV} or apt-get install chromium)`,
+  );
 } else if (!popplerAvailable) {
   console.warn(`skipping PDF rendering tests: ${popplerMissingMessage}`);
 }
@@ -96,7 +104,10 @@ function readSiblings(first: PDFDict | undefined): OutlineItem[] {
   const items: OutlineItem[] = [];
   for (let node = first; node; node = node.lookupMaybe(PDFName.of("Next"), PDFDict)) {
     const title = node.lookupMaybe(PDFName.of("Title"), PDFString, PDFHexString);
-    items.push({ title: title?.decodeText() ?? "", children: readSiblings(node.lookupMaybe(PDFName.of("First"), PDFDict)) });
+    items.push({
+      title: title?.decodeText() ?? "",
+      children: readSiblings(node.lookupMaybe(PDFName.of("First"), PDFDict)),
+    });
   }
   return items;
 }

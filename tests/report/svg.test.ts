@@ -1,15 +1,37 @@
 import { describe, expect, it } from "vitest";
-import { compileFigure, normalizeSvgNumbers, renderSvg, SVG_DECIMALS, stripNamespaces, toStandaloneSvg } from "../../src/report/render/svg.js";
+import {
+  compileFigure,
+  normalizeSvgNumbers,
+  renderSvg,
+  SVG_DECIMALS,
+  stripNamespaces,
+  toStandaloneSvg,
+} from "../../src/report/render/svg.js";
 
 /** A small chart with awkward numbers and a label that holds markup. */
 const chart = () => ({
   width: 200,
   height: 120,
   config: { font: "DejaVu Sans, sans-serif", aria: false },
-  data: { values: [{ x: 1 / 3, y: Math.PI, label: "<b>bold</b> & co" }, { x: 2 / 3, y: Math.E, label: "second" }] },
+  data: {
+    values: [
+      { x: 1 / 3, y: Math.PI, label: "<b>bold</b> & co" },
+      { x: 2 / 3, y: Math.E, label: "second" },
+    ],
+  },
   layer: [
-    { mark: { type: "line" }, encoding: { x: { field: "x", type: "quantitative" }, y: { field: "y", type: "quantitative" } } },
-    { mark: { type: "text", dx: 5 }, encoding: { x: { field: "x", type: "quantitative" }, y: { field: "y", type: "quantitative" }, text: { field: "label" } } },
+    {
+      mark: { type: "line" },
+      encoding: { x: { field: "x", type: "quantitative" }, y: { field: "y", type: "quantitative" } },
+    },
+    {
+      mark: { type: "text", dx: 5 },
+      encoding: {
+        x: { field: "x", type: "quantitative" },
+        y: { field: "y", type: "quantitative" },
+        text: { field: "label" },
+      },
+    },
   ],
 });
 
@@ -45,13 +67,20 @@ describe("renderSvg", () => {
   it("renderSvg(chart with an href channel) rejects rather than ship a link", async () => {
     const spec = chart();
     const layer = spec.layer[0] as { mark: unknown; encoding: Record<string, unknown> };
-    spec.layer[0] = { mark: { type: "point" }, encoding: { ...layer.encoding, href: { value: "https://example.org" } } } as never;
+    spec.layer[0] = {
+      mark: { type: "point" },
+      encoding: { ...layer.encoding, href: { value: "https://example.org" } },
+    } as never;
     await expect(renderSvg(spec)).rejects.toThrow(/asks for a link/);
   });
 
   it("renderSvg(chart) collects vega-lite warnings instead of printing them", async () => {
     const spec = chart();
-    (spec.layer[0].encoding as Record<string, unknown>).x = { field: "x", type: "quantitative", aggregate: "no-such-op" };
+    (spec.layer[0].encoding as Record<string, unknown>).x = {
+      field: "x",
+      type: "quantitative",
+      aggregate: "no-such-op",
+    };
     const diagnostics = { warnings: [] as string[] };
     await renderSvg(spec, diagnostics);
     expect(diagnostics.warnings.join("\n")).toMatch(/no-such-op/);
@@ -63,8 +92,11 @@ describe("renderSvg", () => {
 
 describe("SVG post-processing", () => {
   it("normalizeSvgNumbers(markup) rounds numeric attributes and leaves text content alone", () => {
-    const svg = '<g transform="translate(39.99999999999999,15.0004)"><text x="1e-7" font-size="10px">3.14159265 widgets</text></g>';
-    expect(normalizeSvgNumbers(svg)).toBe('<g transform="translate(40,15)"><text x="0" font-size="10px">3.14159265 widgets</text></g>');
+    const svg =
+      '<g transform="translate(39.99999999999999,15.0004)"><text x="1e-7" font-size="10px">3.14159265 widgets</text></g>';
+    expect(normalizeSvgNumbers(svg)).toBe(
+      '<g transform="translate(40,15)"><text x="0" font-size="10px">3.14159265 widgets</text></g>',
+    );
   });
 
   it("normalizeSvgNumbers(-0.0001) writes 0, never -0", () => {
@@ -72,7 +104,8 @@ describe("SVG post-processing", () => {
   });
 
   it("stripNamespaces / toStandaloneSvg remove and restore the SVG namespace", () => {
-    const raw = '<svg xmlns="http://www.w3.org/2000/svg" xmlns:xlink="http://www.w3.org/1999/xlink" width="1"></svg>';
+    const raw =
+      '<svg xmlns="http://www.w3.org/2000/svg" xmlns:xlink="http://www.w3.org/1999/xlink" width="1"></svg>';
     const inline = stripNamespaces(raw);
     expect(inline).toBe('<svg width="1"></svg>');
     expect(toStandaloneSvg(inline)).toBe('<svg xmlns="http://www.w3.org/2000/svg" width="1"></svg>');

@@ -11,5 +11,8 @@ const PROJECT_ROOT = resolve(dirname(fileURLToPath(import.meta.url)), "../..");
 export default function buildOnce(): void {
   const build = spawnSync("npx", ["tsc", "-p", "tsconfig.json"], { cwd: PROJECT_ROOT, encoding: "utf8" });
   if (build.error) throw build.error;
-  if (build.status !== 0) throw new Error(`npx tsc -p tsconfig.json failed (exit ${build.status}):\n${build.stdout}${build.stderr}`);
+  if (build.status !== 0)
+    throw new Error(
+      `npx tsc -p tsconfig.json failed (exit ${build.status}):\n${build.stdout}${build.stderr}`,
+    );
 }

@@ -95,7 +95,11 @@ describe("hashSpec", () => {
   const reversed = (value: unknown): unknown => {
     if (Array.isArray(value)) return value.map(reversed);
     if (value && typeof value === "object")
-      return Object.fromEntries(Object.entries(value).reverse().map(([k, v]) => [k, reversed(v)]));
+      return Object.fromEntries(
+        Object.entries(value)
+          .reverse()
+          .map(([k, v]) => [k, reversed(v)]),
+      );
     return value;
   };
 
@@ -120,7 +124,10 @@ describe("hashSpec", () => {
   it("hashSpec changes when a value, a key or an array order changes", () => {
     const base = hashSpec(spec);
     const params = spec.parameters as { name: string; value: number }[];
-    const changedValue = { ...spec, parameters: params.map((p, i) => (i === 0 ? { ...p, value: p.value + 1e-12 } : p)) };
+    const changedValue = {
+      ...spec,
+      parameters: params.map((p, i) => (i === 0 ? { ...p, value: p.value + 1e-12 } : p)),
+    };
     const changedOrder = { ...spec, parameters: [...params].reverse() };
     const changedKey = { ...spec, cautions: undefined, caution: spec.cautions };
     const changedText = { ...spec, title: `${spec.title as string} ` };

@@ -1,4 +1,12 @@
-import { ConstantNode, derivative, rationalize, simplify, type MathNode } from "mathjs";
+import {
+  ConstantNode,
+  derivative,
+  isConstantNode,
+  isSymbolNode,
+  rationalize,
+  simplify,
+  type MathNode,
+} from "mathjs";
 import type { Model } from "../../model/types.js";
 import { differentiate } from "../../model/derivatives.js";
 import { emitExpression, PRELUDE } from "../../model/codegen.js";
@@ -46,13 +54,13 @@ export interface InvasionConditionResult {
 const symbol = (k: number) => `S${k}`;
 
 function substitute(node: MathNode, name: string, by: MathNode): MathNode {
-  return node.transform((n: any) => (n.type === "SymbolNode" && n.name === name ? by.cloneDeep() : n));
+  return node.transform((n) => (isSymbolNode(n) && n.name === name ? by.cloneDeep() : n));
 }
 
 function isZero(node: MathNode): boolean {
   try {
     const s = simplify(node);
-    return (s as any).type === "ConstantNode" && (s as any).value === 0;
+    return isConstantNode(s) && s.value === 0;
   } catch {
     return false;
   }
@@ -71,11 +79,17 @@ function evaluateAt(node: MathNode, p: ArrayLike<number>, state: [number, number
 
 const FACTORIALS = [1, 1, 2, 6];
 
+/** Part of what rationalize(expr, scope, true) returns that mathjs's declaration leaves out. */
+interface RationalParts {
+  numerator: MathNode;
+}
+
 /** Roots in closed form of a numerator that is a polynomial in `variable` of degree ≤ 2 once roots at 0 are factored out; null otherwise. */
 function polynomialRoots(expr: MathNode, variable: string): MathNode[] | null {
   let numerator: MathNode;
   try {
-    numerator = (rationalize(expr, {}, true) as any).numerator as MathNode;
+    const detailed = rationalize(expr, {}, true);
+    numerator = (detailed as typeof detailed & RationalParts).numerator;
   } catch {
     return null;
   }
@@ -186,7 +200,7 @@ function userNames(model: Model): Map<string, string> {
 }
 
 const mentions = (node: MathNode, sym: string) =>
-  node.filter((n: any) => n.type === "SymbolNode" && n.name === sym).length > 0;
+  node.filter((n) => isSymbolNode(n) && n.name === sym).length > 0;
 
 /** Whether the rate, as a function of parameter k alone, is affine in u(p): equal difference quotients at the screen's values. */
 function affineIn(rateAt: CompiledNode, p: ArrayLike<number>, k: number, u: (v: number) => number): boolean {

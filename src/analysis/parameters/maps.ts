@@ -25,7 +25,12 @@ export interface OutcomeMapResult {
   curves: { kind: string; origin: { parameter: string; value: number }; points: [number, number][] }[];
 }
 
-function outcomeGrid(model: Model, pair: [string, string], ranges: [[number, number], [number, number]], n: number) {
+function outcomeGrid(
+  model: Model,
+  pair: [string, string],
+  ranges: [[number, number], [number, number]],
+  n: number,
+) {
   const [i, j] = pair.map((name) => model.parameterNames.indexOf(name));
   const legend: OutcomeResult[] = [];
   const keys: string[] = [];
@@ -48,20 +53,33 @@ function outcomeGrid(model: Model, pair: [string, string], ranges: [[number, num
   return { legend, cells };
 }
 
-export function buildOutcomeMap(model: Model, pair: [string, string], studies: ParameterStudyResult[]): OutcomeMapResult {
+export function buildOutcomeMap(
+  model: Model,
+  pair: [string, string],
+  studies: ParameterStudyResult[],
+): OutcomeMapResult {
   const idx = pair.map((n) => model.parameterNames.indexOf(n)) as [number, number];
   const spec = model.spec.parameters;
   const ranges = [spec[idx[0]].range!, spec[idx[1]].range!] as [[number, number], [number, number]];
   const { legend, cells } = outcomeGrid(model, pair, ranges, MAP_RESOLUTION);
   const curves: OutcomeMapResult["curves"] = [];
-  for (const [which, study] of [[0, studies.find((s) => s.parameter === pair[0])], [1, studies.find((s) => s.parameter === pair[1])]] as const) {
+  for (const [which, study] of [
+    [0, studies.find((s) => s.parameter === pair[0])],
+    [1, studies.find((s) => s.parameter === pair[1])],
+  ] as const) {
     if (!study) continue;
-    for (const t of study.thresholds.filter((q) => q.decisive && q.kind !== "boundary-crossing" || q.decisive && q.bound)) {
+    for (const t of study.thresholds.filter(
+      (q) => (q.decisive && q.kind !== "boundary-crossing") || (q.decisive && q.bound),
+    )) {
       // continue in the other parameter; a threshold of the second parameter is continued with the roles swapped
       const order: [number, number] = which === 0 ? [idx[0], idx[1]] : [idx[1], idx[0]];
       const orderRanges: [[number, number], [number, number]] = which === 0 ? ranges : [ranges[1], ranges[0]];
       const points = traceThresholdCurve(model, order, orderRanges, t);
-      curves.push({ kind: t.kind, origin: { parameter: study.parameter, value: t.value }, points: which === 0 ? points : points.map(([a, b]) => [b, a]) });
+      curves.push({
+        kind: t.kind,
+        origin: { parameter: study.parameter, value: t.value },
+        points: which === 0 ? points : points.map(([a, b]) => [b, a]),
+      });
     }
   }
   return {

@@ -121,7 +121,6 @@ function equilibriumAttractors(model: Model, stable: EquilibriumResult[]): Map<s
   return named;
 }
 
-
 interface FateContext {
   model: Model;
   box: Box;

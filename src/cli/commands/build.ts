@@ -2,7 +2,9 @@ import { join } from "node:path";
 import { createRequire } from "node:module";
 import { runAnalysis } from "./run.js";
 import { serializeResults } from "../../report/archive/serialize.js";
-import { buildDossier } from "../../report/dossier.js";
+import { buildDossier, type Dossier } from "../../report/dossier.js";
+import type { Results } from "../../analysis/types.js";
+import type { NormalizedSpec } from "../../spec/types.js";
 import { findChromium } from "../../report/render/chromium.js";
 import { renderPdf } from "../../report/render/pdf.js";
 import { toStandaloneSvg } from "../../report/render/svg.js";
@@ -21,7 +23,18 @@ export interface BuildOptions {
   jobs?: number;
 }
 
-const REPORTED_LIBRARIES = ["mathjs", "ml-matrix", "odex", "d3-contour", "zod", "vega", "vega-lite", "katex", "handlebars", "puppeteer-core"];
+const REPORTED_LIBRARIES = [
+  "mathjs",
+  "ml-matrix",
+  "odex",
+  "d3-contour",
+  "zod",
+  "vega",
+  "vega-lite",
+  "katex",
+  "handlebars",
+  "puppeteer-core",
+];
 
 function libraryVersions(): Record<string, string> {
   const require = createRequire(import.meta.url);
@@ -35,7 +48,10 @@ function libraryVersions(): Record<string, string> {
         const file = join(dir, "package.json");
         if (!existsSync(file)) continue;
         const pkg = JSON.parse(readFileSync(file, "utf8")) as { name?: string; version?: string };
-        if (pkg.name === name && pkg.version) { out[name] = pkg.version; break; }
+        if (pkg.name === name && pkg.version) {
+          out[name] = pkg.version;
+          break;
+        }
       }
     } catch {
       // stays "unknown"
@@ -55,20 +71,102 @@ export function buildEpoch(env: NodeJS.ProcessEnv): { epoch: number; reproducibl
   const raw = env.SOURCE_DATE_EPOCH;
   if (raw !== undefined && raw !== "") {
     const n = Number(raw);
-    if (!Number.isInteger(n) || n < 0) throw new CliExit(EXIT.input, `error: SOURCE_DATE_EPOCH must be a whole number of seconds, got '${raw}'`);
+    if (!Number.isInteger(n) || n < 0)
+      throw new CliExit(
+        EXIT.input,
+        `error: SOURCE_DATE_EPOCH must be a whole number of seconds, got '${raw}'`,
+      );
     return { epoch: n, reproducible: true };
   }
   return { epoch: Math.floor(Date.now() / 1000), reproducible: false };
+}
+
+type OutputFiles = Map<string, string | Uint8Array>;
+
+/** Every output file but the PDF and the manifest, in memory. */
+function dossierFiles(specText: string, results: Results, dossier: Dossier): OutputFiles {
+  const files: OutputFiles = new Map();
+  files.set("spec.json", specText);
+  files.set("results.json", serializeResults(results));
+  for (const f of dossier.figures) {
+    // file names from ids, made safe: scenario names are free text
+    const base = f.id.replace(/[^A-Za-z0-9_-]+/g, "-");
+    files.set(`figures/${base}.svg`, toStandaloneSvg(f.svg) + "\n");
+    files.set(
+      `figures/${base}.vl.json`,
+      JSON.stringify({ $schema: "https://vega.github.io/schema/vega-lite/v6.json", ...f.vegaLite }, null, 2) +
+        "\n",
+    );
+  }
+  files.set("dossier.html", dossier.html);
+  return files;
+}
+
+function buildManifest(
+  spec: NormalizedSpec,
+  results: Results,
+  files: OutputFiles,
+  paper: string,
+  pdf: boolean,
+): Manifest {
+  return {
+    keel: results.keel,
+    node: process.version,
+    lockfileSha256: lockfileHash(),
+    spec: { file: "spec.json", sha256Canonical: spec.sha256 },
+    // --jobs is left out on purpose: results do not depend on it
+    options: { paper, pdf },
+    seeds: { claimSampler: 1 },
+    files: Object.fromEntries([...files].map(([name, content]) => [name, sha256(content)])),
+  };
+}
+
+/** Prints the dossier and embeds the archive in the PDF; adds dossier.pdf to files and manifest. */
+async function addPdf(
+  chromium: string,
+  spec: NormalizedSpec,
+  specText: string,
+  files: OutputFiles,
+  manifest: Manifest,
+  context: { paper: BuildOptions["paper"]; epoch: number; notes: string[] },
+): Promise<void> {
+  const printed = await renderPdf(files.get("dossier.html") as string, {
+    chromiumPath: chromium,
+    paper: context.paper,
+    headerLeft: spec.id,
+    headerRight: `spec ${spec.sha256.slice(0, 16)}…`,
+  });
+  if (printed.blockedRequests.length)
+    context.notes.push(
+      `blocked ${printed.blockedRequests.length} network request(s) while printing: ${printed.blockedRequests.join(", ")}`,
+    );
+  // the PDF carries the spec, the results and the manifest (which cannot list the PDF's own hash)
+  const embedded = {
+    "spec.json": specText,
+    "results.json": files.get("results.json") as string,
+    "manifest.json": manifestText(manifest),
+  };
+  const pdf = await embedArchive(printed.pdf, embedded, context.epoch, `${spec.title} — stability dossier`);
+  files.set("dossier.pdf", pdf);
+  manifest.files["dossier.pdf"] = sha256(pdf);
+}
+
+function chromiumFor(options: BuildOptions): string | null {
+  const chromium = options.pdf === false ? null : findChromium(process.env);
+  if (options.pdf === true && !chromium) {
+    throw new CliExit(
+      EXIT.input,
+      "error: --pdf was given but no Chromium was found; install it (apt-get install chromium) or set KEEL_CHROMIUM to its path",
+    );
+  }
+  return chromium;
 }
 
 /** `keel build SPEC`: results.json, figures, dossier.html and (when possible) dossier.pdf. */
 export async function runBuild(file: string, options: BuildOptions): Promise<string[]> {
   const { epoch, reproducible } = buildEpoch(process.env);
   const progress = makeProgress(options.quiet);
-  const chromium = options.pdf === false ? null : findChromium(process.env);
-  if (options.pdf === true && !chromium) {
-    throw new CliExit(EXIT.input, "error: --pdf was given but no Chromium was found; install it (apt-get install chromium) or set KEEL_CHROMIUM to its path");
-  }
+  const chromium = chromiumFor(options);
   const started = performance.now();
   const specText = readSpecFile(file);
   const output = await runAnalysis(specText, options.jobs, progress);
@@ -83,40 +181,16 @@ export async function runBuild(file: string, options: BuildOptions): Promise<str
     nodeVersion: process.version,
     libraries: libraryVersions(),
   });
-  // every file but the PDF and the manifest, in memory first
-  const files = new Map<string, string | Uint8Array>();
-  files.set("spec.json", specText);
-  files.set("results.json", serializeResults(results));
-  for (const f of dossier.figures) {
-    // file names from ids, made safe: scenario names are free text
-    const base = f.id.replace(/[^A-Za-z0-9_-]+/g, "-");
-    files.set(`figures/${base}.svg`, toStandaloneSvg(f.svg) + "\n");
-    files.set(`figures/${base}.vl.json`, JSON.stringify({ $schema: "https://vega.github.io/schema/vega-lite/v6.json", ...f.vegaLite }, null, 2) + "\n");
-  }
-  files.set("dossier.html", dossier.html);
-  const manifest: Manifest = {
-    keel: results.keel,
-    node: process.version,
-    lockfileSha256: lockfileHash(),
-    spec: { file: "spec.json", sha256Canonical: spec.sha256 },
-    // --jobs is left out on purpose: results do not depend on it
-    options: { paper: options.paper, pdf: Boolean(chromium) },
-    seeds: { claimSampler: 1 },
-    files: Object.fromEntries([...files].map(([name, content]) => [name, sha256(content)])),
-  };
-
+  const files = dossierFiles(specText, results, dossier);
+  const manifest = buildManifest(spec, results, files, options.paper, Boolean(chromium));
   const notes: string[] = [];
   if (chromium) {
     progress?.("dossier", 1, 2);
-    const printed = await renderPdf(dossier.html, { chromiumPath: chromium, paper: options.paper, headerLeft: spec.id, headerRight: `spec ${spec.sha256.slice(0, 16)}…` });
-    if (printed.blockedRequests.length) notes.push(`blocked ${printed.blockedRequests.length} network request(s) while printing: ${printed.blockedRequests.join(", ")}`);
-    // the PDF carries the spec, the results and the manifest (which cannot list the PDF's own hash)
-    const embedded = { "spec.json": specText, "results.json": files.get("results.json") as string, "manifest.json": manifestText(manifest) };
-    const pdf = await embedArchive(printed.pdf, embedded, epoch, `${spec.title} — stability dossier`);
-    files.set("dossier.pdf", pdf);
-    manifest.files["dossier.pdf"] = sha256(pdf);
+    await addPdf(chromium, spec, specText, files, manifest, { paper: options.paper, epoch, notes });
   } else if (options.pdf !== false) {
-    notes.push("no Chromium found, so no PDF was written; install it with `apt-get install chromium` (or set KEEL_CHROMIUM)");
+    notes.push(
+      "no Chromium found, so no PDF was written; install it with `apt-get install chromium` (or set KEEL_CHROMIUM)",
+    );
   }
   files.set("manifest.json", manifestText(manifest));
   progress?.("dossier", 2, 2);

@@ -19,7 +19,11 @@ export function runCheck(file: string): string {
     }),
     `parameters: ${spec.parameters.length ? spec.parameters.map((p) => `${p.name} = ${p.value}${p.unit ? " " + p.unit : ""}`).join(", ") : "none"}`,
     "Jacobian:",
-    ...model.jacobian.map((row, i) => `  d(d${spec.states[i].name}/dt): ` + row.map((e, j) => `∂/∂${spec.states[j].name} = ${e.text}`).join("; ")),
+    ...model.jacobian.map(
+      (row, i) =>
+        `  d(d${spec.states[i].name}/dt): ` +
+        row.map((e, j) => `∂/∂${spec.states[j].name} = ${e.text}`).join("; "),
+    ),
     `scenarios: ${spec.scenarios.map((s) => s.name).join(", ") || "none"}`,
     `assumptions: ${spec.assumptions.length} (${model.assumptionConditions.length} machine-checkable)`,
     "spec OK",
@@ -28,19 +32,28 @@ export function runCheck(file: string): string {
 }
 
 /** `keel check --claims SPEC`: run the analysis and print each claim's verdict; exit 3 when any is contradicted. */
-export async function runCheckClaims(file: string, options: { quiet: boolean; jobs?: number }): Promise<{ text: string; code: number }> {
+export async function runCheckClaims(
+  file: string,
+  options: { quiet: boolean; jobs?: number },
+): Promise<{ text: string; code: number }> {
   const text = readSpecFile(file);
   // refuse a spec without claims before the analysis runs, not after
   const prepared = prepareModel(text);
   if (!prepared.ok) throw inputError(prepared.issues, file);
-  if (prepared.value.spec.claims.length === 0) throw new CliExit(EXIT.input, `error: ${file} states no claims (add a "claims" list to the spec)`);
+  if (prepared.value.spec.claims.length === 0)
+    throw new CliExit(EXIT.input, `error: ${file} states no claims (add a "claims" list to the spec)`);
   const output = await runAnalysis(text, options.jobs, makeProgress(options.quiet));
   if (!output.ok) throw inputError(output.issues, file);
   const claims = output.value.results.claims;
   const states = output.value.results.model.states;
-  const lines = claims.map((c) => `${c.verdict.padEnd(12)} ${c.id}: ${claimEvidenceWords(c, states)} (see ${claimReferenceWords(c.where)})`);
+  const lines = claims.map(
+    (c) =>
+      `${c.verdict.padEnd(12)} ${c.id}: ${claimEvidenceWords(c, states)} (see ${claimReferenceWords(c.where)})`,
+  );
   const contradicted = claims.filter((c) => c.verdict === "contradicted").length;
   const undecided = claims.filter((c) => c.verdict === "undecided").length;
-  lines.push(`${claims.length - contradicted - undecided} supported, ${contradicted} contradicted, ${undecided} undecided`);
+  lines.push(
+    `${claims.length - contradicted - undecided} supported, ${contradicted} contradicted, ${undecided} undecided`,
+  );
   return { text: lines.join("\n"), code: contradicted > 0 ? EXIT.contradicted : EXIT.ok };
 }

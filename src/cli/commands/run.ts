@@ -5,10 +5,17 @@ import type { ProgressReporter } from "../../analysis/analyze.js";
 import { createBasinPool } from "../pool.js";
 
 /** Runs the pipeline, fanning the basin map out to `jobs` worker threads when jobs > 1. */
-export async function runAnalysis(specText: string, jobs: number | undefined, progress?: ProgressReporter): Promise<Parsed<PipelineOutput>> {
+export async function runAnalysis(
+  specText: string,
+  jobs: number | undefined,
+  progress?: ProgressReporter,
+): Promise<Parsed<PipelineOutput>> {
   const workers = jobs ?? availableParallelism();
   if (workers <= 1) return runPipeline(specText, undefined, progress);
-  const pool = createBasinPool(workers, progress ? (done, total) => progress("basin cells", done, total) : undefined);
+  const pool = createBasinPool(
+    workers,
+    progress ? (done, total) => progress("basin cells", done, total) : undefined,
+  );
   try {
     return await runPipelineAsync(specText, pool.evaluator, undefined, progress);
   } finally {

@@ -3,13 +3,18 @@ import type { BasinResult, Results } from "../../analysis/types.js";
 import type { NormalizedSpec } from "../../spec/types.js";
 import { formatPercent } from "../format.js";
 import { attractorIdWords } from "../words/index.js";
-import { textWidthPx } from "../render/textWidth.js";
-import { markerBox, placeLabels, portraitFrame } from "./geometry.js";
+import { markerBox, portraitFrame } from "./geometry.js";
 import { buildKey, type KeyEntry } from "./key.js";
-import { labelLayers, lineLayer, pathRows, positionEncoding, stateAxisTitle, symbolLayer, symbolRow, type VegaLiteSpec } from "./layers.js";
+import { keyedFigure, labelLayers, pathLayer, symbolLayer, type VegaLiteSpec } from "./layers.js";
 import {
-  classifyForDrawing, EQUILIBRIUM_CLASSES, EQUILIBRIUM_MARKERS, figureConfig, FONT_SIZE, LINE_STYLES, REGION_FILLS, SPECIAL_REGION_FILLS,
-} from "./palette.js";
+  cycleLayers,
+  equilibriaInWindow,
+  equilibriumKey,
+  equilibriumRows,
+  placeEquilibriumLabels,
+  stateWindowEncoding,
+} from "./marks.js";
+import { LINE_STYLES, REGION_FILLS, SPECIAL_REGION_FILLS } from "./palette.js";
 import { cellLayer, regionCellRows, swatch } from "./cells.js";
 
 /**
@@ -36,14 +41,16 @@ export function downsampleBasinGrid(grid: BasinResult["grid"], maxSide = BASIN_D
   const full = decodeRuns(grid.runs, grid.nx * grid.ny);
   const factor = Math.max(1, Math.ceil(Math.max(grid.nx, grid.ny) / maxSide));
   if (factor === 1) return { nx: grid.nx, ny: grid.ny, factor, cells: full };
-  const nx = Math.ceil(grid.nx / factor), ny = Math.ceil(grid.ny / factor);
+  const nx = Math.ceil(grid.nx / factor),
+    ny = Math.ceil(grid.ny / factor);
   const cells = new Int32Array(nx * ny);
   const counts = new Int32Array(grid.legend.length);
   for (let J = 0; J < ny; J++) {
     for (let I = 0; I < nx; I++) {
       counts.fill(0);
       for (let j = J * factor; j < Math.min(grid.ny, (J + 1) * factor); j++) {
-        for (let i = I * factor; i < Math.min(grid.nx, (I + 1) * factor); i++) counts[full[j * grid.nx + i]]++;
+        for (let i = I * factor; i < Math.min(grid.nx, (I + 1) * factor); i++)
+          counts[full[j * grid.nx + i]]++;
       }
       let best = 0;
       for (let k = 1; k < counts.length; k++) if (counts[k] > counts[best]) best = k;
@@ -56,57 +63,70 @@ export function downsampleBasinGrid(grid: BasinResult["grid"], maxSide = BASIN_D
 /** Fill of each legend entry: attractors in order from REGION_FILLS, the other outcomes in their greys. */
 export function basinFills(basins: BasinResult): string[] {
   return basins.grid.legend.map((name, k) =>
-    k < basins.attractors.length ? REGION_FILLS[k % REGION_FILLS.length] : SPECIAL_REGION_FILLS[name] ?? SPECIAL_REGION_FILLS.undecided);
+    k < basins.attractors.length
+      ? REGION_FILLS[k % REGION_FILLS.length]
+      : (SPECIAL_REGION_FILLS[name] ?? SPECIAL_REGION_FILLS.undecided),
+  );
 }
 
-const SPECIAL_WORDS: Record<string, string> = { "left-window": "leaves the window", "blow-up": "grows without bound", undecided: "undecided" };
-
+const SPECIAL_WORDS: Record<string, string> = {
+  "left-window": "leaves the window",
+  "blow-up": "grows without bound",
+  undecided: "undecided",
+};
 
 export function buildBasinFigure(results: Results, spec: NormalizedSpec): VegaLiteSpec {
   const basins = results.basins;
   const frame = portraitFrame(results);
-  const [sa, sb] = results.model.states.map((n) => spec.states.find((s) => s.name === n)!);
-  const enc = {
-    x: positionEncoding("x", [frame.lo[0], frame.hi[0]], stateAxisTitle(sa), { tickCount: 4 }),
-    y: positionEncoding("y", [frame.lo[1], frame.hi[1]], stateAxisTitle(sb), { tickCount: 6 }),
-  };
+  const states = results.model.states.map((n) => spec.states.find((s) => s.name === n)!);
+  const enc = stateWindowEncoding(frame, states);
   const fills = basinFills(basins);
   const drawn = downsampleBasinGrid(basins.grid);
-  const layers: Record<string, unknown>[] = [cellLayer("cells", regionCellRows(frame, drawn, basins.grid.legend, fills), enc)];
+  const layers: Record<string, unknown>[] = [
+    cellLayer("cells", regionCellRows(frame, drawn, basins.grid.legend, fills), enc),
+  ];
   const key: KeyEntry[] = basins.grid.legend
     .map((name, k) => ({ name, k, fraction: basins.fractions[name] ?? 0 }))
     .filter(({ k, fraction }) => k < basins.attractors.length || fraction > 0)
     .map(({ name, k, fraction }): KeyEntry => {
-      const what = k < basins.attractors.length ? attractorIdWords(results, name, "cycle") : SPECIAL_WORDS[name] ?? name;
+      const what =
+        k < basins.attractors.length
+          ? attractorIdWords(results, name, "cycle")
+          : (SPECIAL_WORDS[name] ?? name);
       return { kind: "symbol", marker: swatch(fills[k], `${what}: ${formatPercent(fraction)}`) };
     });
 
-  const stable = pathRows(frame, results.separatrices.filter((s) => s.manifold === "stable").map((s) => ({ key: `${s.saddle}${s.side}`, line: s.path })));
-  if (stable.length) {
-    layers.push(lineLayer("stable_manifolds", stable, LINE_STYLES.stableManifold, enc, "catmull-rom"));
+  const stable = pathLayer(
+    "stable_manifolds",
+    frame,
+    results.separatrices
+      .filter((s) => s.manifold === "stable")
+      .map((s) => ({ key: `${s.saddle}${s.side}`, line: s.path })),
+    LINE_STYLES.stableManifold,
+    enc,
+    "catmull-rom",
+  );
+  if (stable) {
+    layers.push(stable);
     key.push({ kind: "line", style: LINE_STYLES.stableManifold });
   }
-  for (const attracting of [true, false]) {
-    const style = attracting ? LINE_STYLES.cycleStable : LINE_STYLES.cycleOther;
-    const rows = pathRows(frame, results.cycles.filter((c) => (c.stability === "stable") === attracting).map((c) => ({ key: c.id, line: c.orbit })));
-    if (rows.length) { layers.push(lineLayer(attracting ? "cycles_attracting" : "cycles_other", rows, style, enc)); key.push({ kind: "line", style }); }
-  }
+  const cycles = cycleLayers(frame, results.cycles, enc);
+  layers.push(...cycles.layers);
+  key.push(...cycles.key);
 
-  const inside = results.equilibria.filter((e) => {
-    const x = e.point[sa.name], y = e.point[sb.name];
-    return x >= frame.lo[0] && x <= frame.hi[0] && y >= frame.lo[1] && y <= frame.hi[1];
-  });
-  const eqRows = inside.map((e) => symbolRow(e.point[sa.name], e.point[sb.name], EQUILIBRIUM_MARKERS[classifyForDrawing(e)], e.id));
+  const inside = equilibriaInWindow(frame, results.equilibria, results.model.states);
+  const eqRows = equilibriumRows(inside, results.model.states);
   if (eqRows.length) layers.push(symbolLayer("equilibria", eqRows, enc));
   const occupied = eqRows.map((r) => markerBox(frame, r.x, r.y));
-  const labels = placeLabels(frame, eqRows.map((r) => ({ x: r.x, y: r.y, text: r.what })), (t) => textWidthPx(t, FONT_SIZE.annotation, true), occupied);
+  const labels = placeEquilibriumLabels(
+    frame,
+    eqRows.map((r) => ({ x: r.x, y: r.y, text: r.what })),
+    occupied,
+  );
   layers.push(...labelLayers("equilibrium_labels", labels, enc, { fontWeight: "bold" }));
-  const classes = new Set(inside.map(classifyForDrawing));
-  for (const c of EQUILIBRIUM_CLASSES) if (classes.has(c)) key.push({ kind: "symbol", marker: EQUILIBRIUM_MARKERS[c] });
-
-  return {
-    config: figureConfig(),
-    padding: 6,
-    hconcat: [{ width: frame.width, height: frame.height, layer: layers }, buildKey(key, frame.height)],
-  };
+  key.push(...equilibriumKey(inside));
+  return keyedFigure(
+    { width: frame.width, height: frame.height, layer: layers },
+    buildKey(key, frame.height),
+  );
 }

@@ -49,19 +49,31 @@ export function headingOf(frame: PlotFrame, dx: number, dy: number): number {
   const du = (dx / (frame.hi[0] - frame.lo[0])) * frame.width;
   const dv = (dy / (frame.hi[1] - frame.lo[1])) * frame.height;
   const deg = (Math.atan2(du, dv) * 180) / Math.PI;
-  return Math.round(((deg % 360) + 360) % 360 * 10) / 10;
+  return Math.round((((deg % 360) + 360) % 360) * 10) / 10;
 }
 
 /** Liang–Barsky: the part of segment p→q inside the window, as parameters [t0, t1], or null. */
 function clipSegment(frame: PlotFrame, p: [number, number], q: [number, number]): [number, number] | null {
-  let t0 = 0, t1 = 1;
+  let t0 = 0,
+    t1 = 1;
   const d = [q[0] - p[0], q[1] - p[1]];
   for (let k = 0; k < 2; k++) {
-    for (const [num, den] of [[p[k] - frame.lo[k], -d[k]], [frame.hi[k] - p[k], d[k]]]) {
-      if (den === 0) { if (num < 0) return null; continue; }
+    for (const [num, den] of [
+      [p[k] - frame.lo[k], -d[k]],
+      [frame.hi[k] - p[k], d[k]],
+    ]) {
+      if (den === 0) {
+        if (num < 0) return null;
+        continue;
+      }
       const t = num / den;
-      if (den < 0) { if (t > t1) return null; if (t > t0) t0 = t; }
-      else { if (t < t0) return null; if (t < t1) t1 = t; }
+      if (den < 0) {
+        if (t > t1) return null;
+        if (t > t0) t0 = t;
+      } else {
+        if (t < t0) return null;
+        if (t < t1) t1 = t;
+      }
     }
   }
   return [t0, t1];
@@ -71,18 +83,28 @@ function clipSegment(frame: PlotFrame, p: [number, number], q: [number, number])
 export function clipPolyline(frame: PlotFrame, line: Polyline): Polyline[] {
   const out: Polyline[] = [];
   let run: Polyline = { x: [], y: [] };
-  const flush = () => { if (run.x.length >= 2) out.push(run); run = { x: [], y: [] }; };
+  const flush = () => {
+    if (run.x.length >= 2) out.push(run);
+    run = { x: [], y: [] };
+  };
   const push = (x: number, y: number) => {
     const n = run.x.length;
     if (n && run.x[n - 1] === x && run.y[n - 1] === y) return;
-    run.x.push(x); run.y.push(y);
+    run.x.push(x);
+    run.y.push(y);
   };
   for (let k = 0; k + 1 < line.x.length; k++) {
     const p: [number, number] = [line.x[k], line.y[k]];
     const q: [number, number] = [line.x[k + 1], line.y[k + 1]];
-    if (![...p, ...q].every(Number.isFinite)) { flush(); continue; }
+    if (![...p, ...q].every(Number.isFinite)) {
+      flush();
+      continue;
+    }
     const t = clipSegment(frame, p, q);
-    if (!t) { flush(); continue; }
+    if (!t) {
+      flush();
+      continue;
+    }
     const a: [number, number] = [p[0] + t[0] * (q[0] - p[0]), p[1] + t[0] * (q[1] - p[1])];
     const b: [number, number] = [p[0] + t[1] * (q[0] - p[0]), p[1] + t[1] * (q[1] - p[1])];
     if (t[0] > 0) flush();
@@ -102,7 +124,8 @@ export function thinPolyline(frame: PlotFrame, line: Polyline): Polyline {
   for (let k = 0; k < n; k++) {
     const u = toPlot(frame, line.x[k], line.y[k]);
     if (last && k < n - 1 && Math.hypot(u[0] - last[0], u[1] - last[1]) < THIN_PX) continue;
-    out.x.push(line.x[k]); out.y.push(line.y[k]);
+    out.x.push(line.x[k]);
+    out.y.push(line.y[k]);
     last = u;
   }
   return out;
@@ -110,7 +133,9 @@ export function thinPolyline(frame: PlotFrame, line: Polyline): Polyline {
 
 /** Clipped, then thinned: what a figure draws of a path. */
 export function drawablePieces(frame: PlotFrame, line: Polyline): Polyline[] {
-  return clipPolyline(frame, line).map((p) => thinPolyline(frame, p)).filter((p) => p.x.length >= 2);
+  return clipPolyline(frame, line)
+    .map((p) => thinPolyline(frame, p))
+    .filter((p) => p.x.length >= 2);
 }
 
 /** Screen length of a polyline in px. */
@@ -125,7 +150,11 @@ export function plotLength(frame: PlotFrame, line: Polyline): number {
 }
 
 /** The point a fraction of the way along a polyline (by screen length), with the heading there. */
-export function pointAlong(frame: PlotFrame, line: Polyline, fraction: number): { x: number; y: number; angle: number } | null {
+export function pointAlong(
+  frame: PlotFrame,
+  line: Polyline,
+  fraction: number,
+): { x: number; y: number; angle: number } | null {
   const total = plotLength(frame, line);
   if (!(total > 0)) return null;
   let target = fraction * total;
@@ -147,9 +176,19 @@ export function pointAlong(frame: PlotFrame, line: Polyline, fraction: number): 
 }
 
 /** A screen rectangle in px, y downward from the top of the plot. */
-export interface ScreenBox { left: number; right: number; top: number; bottom: number }
+export interface ScreenBox {
+  left: number;
+  right: number;
+  top: number;
+  bottom: number;
+}
 
-export interface PlacedLabel { x: number; y: number; text: string; align: "left" | "right" }
+export interface PlacedLabel {
+  x: number;
+  y: number;
+  text: string;
+  align: "left" | "right";
+}
 
 /** Label offsets tried in turn (px, screen y downward): above right, below right, above left, below left. */
 const LABEL_CANDIDATES = [
@@ -163,7 +202,8 @@ const LABEL_HALF_HEIGHT = 6.5;
 /** Half the side of the box a marker keeps clear (px). */
 const MARKER_HALF = 6;
 
-const overlaps = (a: ScreenBox, b: ScreenBox) => a.left < b.right && b.left < a.right && a.top < b.bottom && b.top < a.bottom;
+const overlaps = (a: ScreenBox, b: ScreenBox) =>
+  a.left < b.right && b.left < a.right && a.top < b.bottom && b.top < a.bottom;
 
 export function toScreen(frame: PlotFrame, x: number, y: number): [number, number] {
   const [u, v] = toPlot(frame, x, y);
@@ -182,16 +222,29 @@ export function markerBox(frame: PlotFrame, x: number, y: number): ScreenBox {
  * the plot. Placed labels join `occupied`, so later calls avoid them.
  */
 export function placeLabels(
-  frame: PlotFrame, items: { x: number; y: number; text: string }[], width: (text: string) => number, occupied: ScreenBox[],
+  frame: PlotFrame,
+  items: { x: number; y: number; text: string }[],
+  width: (text: string) => number,
+  occupied: ScreenBox[],
 ): PlacedLabel[] {
   return items.map((it) => {
     const [u, v] = toScreen(frame, it.x, it.y);
     const w = width(it.text);
     const boxes = LABEL_CANDIDATES.map((c) => {
       const left = c.align === "left" ? u + c.dx : u + c.dx - w;
-      return { c, box: { left, right: left + w, top: v + c.dy - LABEL_HALF_HEIGHT, bottom: v + c.dy + LABEL_HALF_HEIGHT } };
+      return {
+        c,
+        box: {
+          left,
+          right: left + w,
+          top: v + c.dy - LABEL_HALF_HEIGHT,
+          bottom: v + c.dy + LABEL_HALF_HEIGHT,
+        },
+      };
     });
-    const inside = boxes.filter(({ box }) => box.left >= 0 && box.right <= frame.width && box.top >= 0 && box.bottom <= frame.height);
+    const inside = boxes.filter(
+      ({ box }) => box.left >= 0 && box.right <= frame.width && box.top >= 0 && box.bottom <= frame.height,
+    );
     const pick = inside.find(({ box }) => !occupied.some((o) => overlaps(o, box))) ?? inside[0] ?? boxes[0];
     occupied.push(pick.box);
     const [x, y] = fromPlot(frame, u + pick.c.dx, frame.height - (v + pick.c.dy));
@@ -202,6 +255,7 @@ export function placeLabels(
 /** The state window on the portrait's plot area; the basin map shares it. */
 export function portraitFrame(results: Results): PlotFrame {
   const [a, b] = results.model.states;
-  const wa = results.model.window[a], wb = results.model.window[b];
+  const wa = results.model.window[a],
+    wb = results.model.window[b];
   return { lo: [wa[0], wb[0]], hi: [wa[1], wb[1]], width: PORTRAIT_PLOT.width, height: PORTRAIT_PLOT.height };
 }

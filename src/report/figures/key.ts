@@ -1,5 +1,15 @@
-import { lineLayer, positionEncoding, symbolLayer, symbolRow, type SymbolRow } from "./layers.js";
-import { ARROWHEAD_PATH, ARROWHEAD_SIZE, FIELD_ARROW_PATH, FIELD_ARROW_SIZE, FIELD_STYLE, FONT_SIZE, INK, KEY_WIDTH, START_MARKER, type LineStyle, type MarkerStyle } from "./palette.js";
+import { lineLayer, positionEncoding, symbolLayer, symbolRow, textLayer, type SymbolRow } from "./layers.js";
+import {
+  arrowheadMarker,
+  fieldArrowMarker,
+  FIELD_STYLE,
+  FONT_SIZE,
+  INK,
+  KEY_WIDTH,
+  startMarker,
+  type LineStyle,
+  type MarkerStyle,
+} from "./palette.js";
 
 /**
  * A figure's key, drawn as its own small view from the palette entries the marks use: one row
@@ -29,52 +39,94 @@ export function wrapLabel(text: string, width = LINE_CHARS): string[] {
   const lines: string[] = [];
   let line = "";
   for (const word of text.split(/\s+/).filter(Boolean)) {
-    if (line && line.length + 1 + word.length > width) { lines.push(line); line = word; }
-    else line = line ? `${line} ${word}` : word;
+    if (line && line.length + 1 + word.length > width) {
+      lines.push(line);
+      line = word;
+    } else line = line ? `${line} ${word}` : word;
   }
   if (line) lines.push(line);
   return lines.length ? lines : [""];
 }
 
+/** One row of the key: its entry, the y of its sample (key coordinates, upward) and its wrapped label. */
+interface KeyRow {
+  entry: KeyEntry;
+  y: number;
+  lines: string[];
+}
+
+const entryLabel = (entry: KeyEntry): string =>
+  entry.kind === "line"
+    ? entry.style.label
+    : entry.kind === "symbol"
+      ? entry.marker.label
+      : FIELD_STYLE.label;
+
+/** Rows from the top down; a row sits lower by the extra lines of the label above it. */
+function layoutKeyRows(entries: KeyEntry[], height: number): KeyRow[] {
+  let y = height - TOP + ROW;
+  let lines = 1;
+  return entries.map((entry) => {
+    y -= ROW + (lines - 1) * LINE_HEIGHT;
+    const wrapped = wrapLabel(entryLabel(entry));
+    lines = wrapped.length;
+    return { entry, y, lines: wrapped };
+  });
+}
+
+const SAMPLE_MID = (SAMPLE[0] + SAMPLE[1]) / 2;
+
+/** The symbols of a row's sample: a line's start marker and arrowhead, a marker, a field arrow. */
+function sampleSymbols({ entry, y }: KeyRow): SymbolRow[] {
+  if (entry.kind === "symbol") return [symbolRow(SAMPLE_MID, y, entry.marker, entry.marker.label)];
+  if (entry.kind === "field") return [symbolRow(SAMPLE_MID, y, fieldArrowMarker(90), "field")];
+  const color = entry.style.color;
+  return [
+    ...(entry.start ? [symbolRow(SAMPLE[0], y, startMarker(color), "start")] : []),
+    ...(entry.head ? [symbolRow(SAMPLE_MID + 2, y, arrowheadMarker(color, 90), "direction")] : []),
+  ];
+}
+
+function sampleLines(rows: KeyRow[], enc: Record<string, unknown>) {
+  return rows.flatMap(({ entry, y }, k) =>
+    entry.kind === "line"
+      ? [
+          lineLayer(
+            `key_line_${k}`,
+            SAMPLE.map((x, i) => ({ x, y, k: `key${k}`, i })),
+            entry.style,
+            enc,
+          ),
+        ]
+      : [],
+  );
+}
+
+function labelTextLayer(rows: KeyRow[], enc: Record<string, unknown>) {
+  // top of the first line half a font size above the sample's centre line
+  const texts = rows.map(({ y, lines }) => ({ x: TEXT_X, y: y + FONT_SIZE.legend / 2 + 1, text: lines }));
+  const mark = {
+    align: "left",
+    baseline: "top",
+    fontSize: FONT_SIZE.legend,
+    lineHeight: LINE_HEIGHT,
+    color: INK,
+  };
+  return textLayer("key_text", texts, mark, enc);
+}
+
+/** The key as a view of `height` px: line samples, then every symbol, then the labels. */
 export function buildKey(entries: KeyEntry[], height: number) {
   const enc = {
     x: positionEncoding("x", [0, KEY_WIDTH], null, null),
     y: positionEncoding("y", [0, height], null, null),
   };
-  const layers: Record<string, unknown>[] = [];
-  const symbols: SymbolRow[] = [];
-  const texts: { x: number; y: number; text: string[] }[] = [];
-  const mid = (SAMPLE[0] + SAMPLE[1]) / 2;
-  let y = height - TOP + ROW;
-  let lines = 1;
-  const label = (text: string) => {
-    const wrapped = wrapLabel(text);
-    // top of the first line half a font size above the sample's centre line
-    texts.push({ x: TEXT_X, y: y + FONT_SIZE.legend / 2 + 1, text: wrapped });
-    lines = wrapped.length;
-  };
-  entries.forEach((entry, k) => {
-    y -= ROW + (lines - 1) * LINE_HEIGHT;
-    if (entry.kind === "line") {
-      const rows = SAMPLE.map((x, i) => ({ x, y, k: `key${k}`, i }));
-      layers.push(lineLayer(`key_line_${k}`, rows, entry.style, enc));
-      if (entry.start) symbols.push(symbolRow(SAMPLE[0], y, { ...START_MARKER, angle: 0, fill: entry.style.color, stroke: entry.style.color, strokeWidth: 0 }, "start"));
-      if (entry.head) symbols.push(symbolRow(mid + 2, y, { shape: ARROWHEAD_PATH, angle: 90, fill: entry.style.color, stroke: entry.style.color, strokeWidth: 0, size: ARROWHEAD_SIZE }, "direction"));
-      label(entry.style.label);
-    } else if (entry.kind === "symbol") {
-      symbols.push(symbolRow(mid, y, entry.marker, entry.marker.label));
-      label(entry.marker.label);
-    } else {
-      symbols.push(symbolRow(mid, y, { shape: FIELD_ARROW_PATH, angle: 90, fill: "transparent", stroke: FIELD_STYLE.color, strokeWidth: FIELD_STYLE.strokeWidth, size: FIELD_ARROW_SIZE }, "field"));
-      label(FIELD_STYLE.label);
-    }
-  });
-  if (symbols.length) layers.push(symbolLayer("key_symbols", symbols, enc));
-  layers.push({
-    name: "key_text",
-    data: { values: texts },
-    mark: { type: "text", align: "left", baseline: "top", fontSize: FONT_SIZE.legend, lineHeight: LINE_HEIGHT, color: INK },
-    encoding: { ...enc, text: { field: "text", type: "nominal" } },
-  });
+  const rows = layoutKeyRows(entries, height);
+  const symbols = rows.flatMap(sampleSymbols);
+  const layers = [
+    ...sampleLines(rows, enc),
+    ...(symbols.length ? [symbolLayer("key_symbols", symbols, enc)] : []),
+    labelTextLayer(rows, enc),
+  ];
   return { width: KEY_WIDTH, height, view: { stroke: null }, layer: layers };
 }

@@ -1,7 +1,7 @@
 import { formatUnit } from "../format.js";
 import type { NormalizedParameter, NormalizedState } from "../../spec/types.js";
 import { drawablePieces, roundData, type PlacedLabel, type PlotFrame, type Polyline } from "./geometry.js";
-import { FONT_SIZE, INK, PAPER, type LineStyle, type MarkerStyle } from "./palette.js";
+import { figureConfig, FONT_SIZE, INK, PAPER, type LineStyle, type MarkerStyle } from "./palette.js";
 
 /**
  * Small constructors for vega-lite layers. Every layer carries its own inline data and constant
@@ -12,14 +12,29 @@ import { FONT_SIZE, INK, PAPER, type LineStyle, type MarkerStyle } from "./palet
 /** A vega-lite spec as plain JSON: inline data only, no URLs. */
 export type VegaLiteSpec = Record<string, unknown>;
 
-export interface LineRow { x: number; y: number; k: string; i: number }
+export interface LineRow {
+  x: number;
+  y: number;
+  k: string;
+  i: number;
+}
 export interface SymbolRow {
-  x: number; y: number;
-  shape: string; angle: number; fill: string; stroke: string; strokeWidth: number; size: number;
+  x: number;
+  y: number;
+  shape: string;
+  angle: number;
+  fill: string;
+  stroke: string;
+  strokeWidth: number;
+  size: number;
   /** What the mark is (an equilibrium id, a scenario name), for tests and users reading the spec. */
   what: string;
 }
-export interface TextRow { x: number; y: number; text: string }
+export interface TextRow {
+  x: number;
+  y: number;
+  text: string;
+}
 
 /** Axis title for a state: its label and name, then its unit. */
 export function stateAxisTitle(state: NormalizedState): string {
@@ -32,7 +47,12 @@ export function parameterAxisTitle(p: Pick<NormalizedParameter, "name" | "label"
   return p.unit ? `${head} (${formatUnit(p.unit)})` : head;
 }
 
-export function positionEncoding(field: "x" | "y", domain: [number, number], title: string | null, axis: Record<string, unknown> | null = {}) {
+export function positionEncoding(
+  field: "x" | "y",
+  domain: [number, number],
+  title: string | null,
+  axis: Record<string, unknown> | null = {},
+) {
   return {
     field,
     type: "quantitative",
@@ -47,10 +67,18 @@ export function lineRows(key: string, line: Polyline): LineRow[] {
 
 /** Rows for every drawable (clipped, thinned) piece of each keyed path. */
 export function pathRows(frame: PlotFrame, paths: { key: string; line: Polyline }[]): LineRow[] {
-  return paths.flatMap(({ key, line }) => drawablePieces(frame, line).flatMap((piece, p) => lineRows(`${key}#${p}`, piece)));
+  return paths.flatMap(({ key, line }) =>
+    drawablePieces(frame, line).flatMap((piece, p) => lineRows(`${key}#${p}`, piece)),
+  );
 }
 
-export function lineLayer(name: string, rows: LineRow[], style: Omit<LineStyle, "label">, encoding: Record<string, unknown>, interpolate = "linear") {
+export function lineLayer(
+  name: string,
+  rows: LineRow[],
+  style: Omit<LineStyle, "label">,
+  encoding: Record<string, unknown>,
+  interpolate = "linear",
+) {
   return {
     name,
     data: { values: rows },
@@ -63,8 +91,58 @@ export function lineLayer(name: string, rows: LineRow[], style: Omit<LineStyle, 
       strokeJoin: "round",
       interpolate,
     },
-    encoding: { ...encoding, detail: { field: "k", type: "nominal" }, order: { field: "i", type: "quantitative" } },
+    encoding: {
+      ...encoding,
+      detail: { field: "k", type: "nominal" },
+      order: { field: "i", type: "quantitative" },
+    },
   };
+}
+
+/** The line layer of the drawable pieces of keyed paths, or null when none is left to draw. */
+export function pathLayer(
+  name: string,
+  frame: PlotFrame,
+  paths: { key: string; line: Polyline }[],
+  style: Omit<LineStyle, "label">,
+  encoding: Record<string, unknown>,
+  interpolate = "linear",
+): Record<string, unknown> | null {
+  const rows = pathRows(frame, paths);
+  return rows.length ? lineLayer(name, rows, style, encoding, interpolate) : null;
+}
+
+/** A text layer: each row's `text` drawn at (x, y) with one constant mark style. */
+export function textLayer(
+  name: string,
+  rows: { x: number; y: number; text: string | string[] }[],
+  mark: Record<string, unknown>,
+  encoding: Record<string, unknown>,
+) {
+  return {
+    name,
+    data: { values: rows },
+    mark: { type: "text", ...mark },
+    encoding: { ...encoding, text: { field: "text", type: "nominal" } },
+  };
+}
+
+/** A stacked panel's title, at its top left: it names the state and its unit. */
+export function panelTitle(text: string) {
+  return {
+    text,
+    anchor: "start",
+    frame: "group",
+    fontSize: FONT_SIZE.axisTitle,
+    fontWeight: "normal",
+    color: INK,
+    offset: 4,
+  };
+}
+
+/** The whole figure: the plot (or stacked panels) with its key to the right. */
+export function keyedFigure(plot: VegaLiteSpec, key: VegaLiteSpec): VegaLiteSpec {
+  return { config: figureConfig(), padding: 6, hconcat: [plot, key] };
 }
 
 export function symbolRow(x: number, y: number, marker: Omit<MarkerStyle, "label">, what: string): SymbolRow {
@@ -95,15 +173,35 @@ export function symbolLayer(name: string, rows: SymbolRow[], encoding: Record<st
 const HALO_WIDTH = 3;
 
 /** Placed labels as text layers, one per alignment (vega-lite has no align channel), each over a paper-coloured halo. */
-export function labelLayers(name: string, placed: PlacedLabel[], encoding: Record<string, unknown>, mark: Record<string, unknown> = {}) {
+export function labelLayers(
+  name: string,
+  placed: PlacedLabel[],
+  encoding: Record<string, unknown>,
+  mark: Record<string, unknown> = {},
+) {
   return (["left", "right"] as const)
-    .map((side) => ({ side, rows: placed.filter((p) => p.align === side).map(({ x, y, text }): TextRow => ({ x, y, text })) }))
+    .map((side) => ({
+      side,
+      rows: placed.filter((p) => p.align === side).map(({ x, y, text }): TextRow => ({ x, y, text })),
+    }))
     .filter(({ rows }) => rows.length > 0)
     .flatMap(({ side, rows }) => {
-      const text = { type: "text", align: side, baseline: "middle", fontSize: FONT_SIZE.annotation, color: INK, ...mark };
+      const text = {
+        type: "text",
+        align: side,
+        baseline: "middle",
+        fontSize: FONT_SIZE.annotation,
+        color: INK,
+        ...mark,
+      };
       const enc = { ...encoding, text: { field: "text", type: "nominal" } };
       return [
-        { name: `${name}_${side}_halo`, data: { values: rows }, mark: { ...text, color: PAPER, stroke: PAPER, strokeWidth: HALO_WIDTH, strokeJoin: "round" }, encoding: enc },
+        {
+          name: `${name}_${side}_halo`,
+          data: { values: rows },
+          mark: { ...text, color: PAPER, stroke: PAPER, strokeWidth: HALO_WIDTH, strokeJoin: "round" },
+          encoding: enc,
+        },
         { name: `${name}_${side}`, data: { values: rows }, mark: text, encoding: enc },
       ];
     });

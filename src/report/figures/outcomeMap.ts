@@ -3,9 +3,28 @@ import type { NormalizedSpec } from "../../spec/types.js";
 import { textWidthPx } from "../render/textWidth.js";
 import { markerBox, placeLabels, roundData, toPlot, type PlotFrame, type ScreenBox } from "./geometry.js";
 import { buildKey, type KeyEntry } from "./key.js";
-import { labelLayers, lineLayer, parameterAxisTitle, pathRows, positionEncoding, symbolLayer, symbolRow, type VegaLiteSpec } from "./layers.js";
+import {
+  keyedFigure,
+  labelLayers,
+  lineLayer,
+  parameterAxisTitle,
+  pathRows,
+  positionEncoding,
+  symbolLayer,
+  symbolRow,
+  type VegaLiteSpec,
+} from "./layers.js";
 import { cellLayer, regionCellRows, swatch } from "./cells.js";
-import { figureConfig, FONT_SIZE, INK, NOMINAL_COLOR, NOMINAL_MARKER, OUTCOME_MAP_PLOT, PAPER, REGION_FILLS, THRESHOLD_CURVE_STYLES } from "./palette.js";
+import {
+  FONT_SIZE,
+  INK,
+  NOMINAL_COLOR,
+  NOMINAL_MARKER,
+  OUTCOME_MAP_PLOT,
+  PAPER,
+  REGION_FILLS,
+  THRESHOLD_CURVE_STYLES,
+} from "./palette.js";
 
 /**
  * Two-parameter outcome map: each grid cell filled by the outcome at its centre (outcomes named
@@ -21,21 +40,31 @@ const LETTER_SIZE = 12;
 
 /** "A", "B", … "Z", then "AA", "AB", …: the names of the outcomes, in legend order. */
 export function outcomeLetter(index: number): string {
-  return index < 26 ? String.fromCharCode(65 + index) : outcomeLetter(Math.floor(index / 26) - 1) + String.fromCharCode(65 + (index % 26));
+  return index < 26
+    ? String.fromCharCode(65 + index)
+    : outcomeLetter(Math.floor(index / 26) - 1) + String.fromCharCode(65 + (index % 26));
 }
 
 export function outcomeMapFrame(map: OutcomeMapResult): PlotFrame {
-  return { lo: [map.ranges[0][0], map.ranges[1][0]], hi: [map.ranges[0][1], map.ranges[1][1]], ...OUTCOME_MAP_PLOT };
+  return {
+    lo: [map.ranges[0][0], map.ranges[1][0]],
+    hi: [map.ranges[0][1], map.ranges[1][1]],
+    ...OUTCOME_MAP_PLOT,
+  };
 }
 
 /** Fills by legend index; more outcomes than fills reuse them in turn (the letters still tell them apart). */
-export const outcomeFills = (map: OutcomeMapResult) => map.legend.map((_, k) => REGION_FILLS[k % REGION_FILLS.length]);
+export const outcomeFills = (map: OutcomeMapResult) =>
+  map.legend.map((_, k) => REGION_FILLS[k % REGION_FILLS.length]);
 
 /**
  * Where each outcome's letter goes: the centre of its cell farthest (on screen) from any cell of
  * another outcome, from the plot's edge and from the star; first in row order on ties.
  */
-export function letterPositions(frame: PlotFrame, map: OutcomeMapResult): { index: number; x: number; y: number }[] {
+export function letterPositions(
+  frame: PlotFrame,
+  map: OutcomeMapResult,
+): { index: number; x: number; y: number }[] {
   const cx = (a: number) => frame.lo[0] + ((a + 0.5) / map.nx) * (frame.hi[0] - frame.lo[0]);
   const cy = (b: number) => frame.lo[1] + ((b + 0.5) / map.ny) * (frame.hi[1] - frame.lo[1]);
   const screen = map.cells.map((_, c) => toPlot(frame, cx(c % map.nx), cy(Math.floor(c / map.nx))));
@@ -50,7 +79,13 @@ export function letterPositions(frame: PlotFrame, map: OutcomeMapResult): { inde
     const held = best.get(label);
     if (!held || d > held.d) best.set(label, { c, d });
   });
-  return [...best.entries()].sort(([a], [b]) => a - b).map(([index, { c }]) => ({ index, x: roundData(cx(c % map.nx)), y: roundData(cy(Math.floor(c / map.nx))) }));
+  return [...best.entries()]
+    .sort(([a], [b]) => a - b)
+    .map(([index, { c }]) => ({
+      index,
+      x: roundData(cx(c % map.nx)),
+      y: roundData(cy(Math.floor(c / map.nx))),
+    }));
 }
 
 export function buildOutcomeMapFigure(spec: NormalizedSpec, map: OutcomeMapResult): VegaLiteSpec {
@@ -62,14 +97,27 @@ export function buildOutcomeMapFigure(spec: NormalizedSpec, map: OutcomeMapResul
   };
   const fills = outcomeFills(map);
   const names = map.legend.map((_, k) => `outcome ${outcomeLetter(k)}`);
-  const layers: Record<string, unknown>[] = [cellLayer("cells", regionCellRows(frame, map, names, fills, false), enc)];
-  const key: KeyEntry[] = map.legend.map((_, k): KeyEntry => ({ kind: "symbol", marker: swatch(fills[k], names[k]) }));
+  const layers: Record<string, unknown>[] = [
+    cellLayer("cells", regionCellRows(frame, map, names, fills, false), enc),
+  ];
+  const key: KeyEntry[] = map.legend.map((_, k): KeyEntry => ({
+    kind: "symbol",
+    marker: swatch(fills[k], names[k]),
+  }));
 
-  const kinds = [...CURVE_KINDS, ...new Set(map.curves.map((c) => c.kind).filter((k) => !CURVE_KINDS.includes(k)))];
+  const kinds = [
+    ...CURVE_KINDS,
+    ...new Set(map.curves.map((c) => c.kind).filter((k) => !CURVE_KINDS.includes(k))),
+  ];
   for (const kind of kinds) {
     const style = THRESHOLD_CURVE_STYLES[kind] ?? THRESHOLD_CURVE_STYLES["boundary-crossing"];
-    const paths = map.curves.map((c, k) => ({ c, k })).filter(({ c }) => c.kind === kind)
-      .map(({ c, k }) => ({ key: `curve${k}`, line: { x: c.points.map((p) => p[0]), y: c.points.map((p) => p[1]) } }));
+    const paths = map.curves
+      .map((c, k) => ({ c, k }))
+      .filter(({ c }) => c.kind === kind)
+      .map(({ c, k }) => ({
+        key: `curve${k}`,
+        line: { x: c.points.map((p) => p[0]), y: c.points.map((p) => p[1]) },
+      }));
     const rows = pathRows(frame, paths);
     if (!rows.length) continue;
     layers.push(lineLayer(`curves_${kind}`, rows, style, enc));
@@ -78,9 +126,21 @@ export function buildOutcomeMapFigure(spec: NormalizedSpec, map: OutcomeMapResul
 
   const letters = letterPositions(frame, map);
   const letterRows = letters.map((l) => ({ x: l.x, y: l.y, text: outcomeLetter(l.index) }));
-  const letterMark = { type: "text", align: "center", baseline: "middle", fontSize: LETTER_SIZE, fontWeight: "bold", color: INK };
+  const letterMark = {
+    type: "text",
+    align: "center",
+    baseline: "middle",
+    fontSize: LETTER_SIZE,
+    fontWeight: "bold",
+    color: INK,
+  };
   const letterEnc = { ...enc, text: { field: "text", type: "nominal" } };
-  layers.push({ name: "letters_halo", data: { values: letterRows }, mark: { ...letterMark, color: PAPER, stroke: PAPER, strokeWidth: LETTER_HALO, strokeJoin: "round" }, encoding: letterEnc });
+  layers.push({
+    name: "letters_halo",
+    data: { values: letterRows },
+    mark: { ...letterMark, color: PAPER, stroke: PAPER, strokeWidth: LETTER_HALO, strokeJoin: "round" },
+    encoding: letterEnc,
+  });
   layers.push({ name: "letters", data: { values: letterRows }, mark: letterMark, encoding: letterEnc });
 
   const [n1, n2] = map.nominal;
@@ -88,14 +148,21 @@ export function buildOutcomeMapFigure(spec: NormalizedSpec, map: OutcomeMapResul
   if (inside) {
     const star = symbolRow(n1, n2, NOMINAL_MARKER, "now");
     layers.push(symbolLayer("now", [star], enc));
-    const occupied: ScreenBox[] = [markerBox(frame, star.x, star.y), ...letterRows.map((l) => markerBox(frame, l.x, l.y))];
-    const label = placeLabels(frame, [{ x: star.x, y: star.y, text: "now" }], (t) => textWidthPx(t, FONT_SIZE.annotation), occupied);
+    const occupied: ScreenBox[] = [
+      markerBox(frame, star.x, star.y),
+      ...letterRows.map((l) => markerBox(frame, l.x, l.y)),
+    ];
+    const label = placeLabels(
+      frame,
+      [{ x: star.x, y: star.y, text: "now" }],
+      (t) => textWidthPx(t, FONT_SIZE.annotation),
+      occupied,
+    );
     layers.push(...labelLayers("now_label", label, enc, { color: NOMINAL_COLOR, fontStyle: "italic" }));
     key.push({ kind: "symbol", marker: NOMINAL_MARKER });
   }
-  return {
-    config: figureConfig(),
-    padding: 6,
-    hconcat: [{ width: frame.width, height: frame.height, layer: layers }, buildKey(key, frame.height)],
-  };
+  return keyedFigure(
+    { width: frame.width, height: frame.height, layer: layers },
+    buildKey(key, frame.height),
+  );
 }

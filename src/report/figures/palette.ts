@@ -38,13 +38,28 @@ export const LINE_STYLES = {
   /** Portrait trajectories: context only, light grey and thin (L* 81). */
   portrait: { color: "#c6c9d0", strokeWidth: 1, strokeDash: [], label: "other trajectories" },
   /** The saddles' stable manifolds: the separatrices between basins, solid (L* 36). */
-  stableManifold: { color: "#9c2759", strokeWidth: 2.2, strokeDash: [], label: "stable manifold (separatrix)" },
+  stableManifold: {
+    color: "#9c2759",
+    strokeWidth: 2.2,
+    strokeDash: [],
+    label: "stable manifold (separatrix)",
+  },
   /** The saddles' unstable manifolds: lighter and dash-dotted (L* 56). */
-  unstableManifold: { color: "#d4607f", strokeWidth: 1.6, strokeDash: [6, 2, 2, 2], label: "unstable manifold" },
+  unstableManifold: {
+    color: "#d4607f",
+    strokeWidth: 1.6,
+    strokeDash: [6, 2, 2, 2],
+    label: "unstable manifold",
+  },
   /** An attracting periodic orbit: solid teal (L* 48). */
   cycleStable: { color: "#15806c", strokeWidth: 2.6, strokeDash: [], label: "periodic orbit, attracting" },
   /** A periodic orbit that does not attract (unstable, semi-stable, or one of a family): dashed teal. */
-  cycleOther: { color: "#15806c", strokeWidth: 2.2, strokeDash: [5, 3], label: "periodic orbit, not attracting" },
+  cycleOther: {
+    color: "#15806c",
+    strokeWidth: 2.2,
+    strokeDash: [5, 3],
+    label: "periodic orbit, not attracting",
+  },
   /** The trace–determinant parabola τ² = 4Δ. */
   parabola: { color: "#2663b0", strokeWidth: 1.6, strokeDash: [], label: "τ² = 4Δ" },
   /** Reference lines τ = 0, Δ = 0 and equilibrium levels in time series. */
@@ -67,6 +82,39 @@ export const ARROWHEAD_SIZE = 110;
 /** Scenario start: a filled diamond in the scenario colour (no equilibrium uses a diamond). */
 export const START_MARKER = { shape: "diamond", size: 80 } as const;
 
+/** The start marker of a path drawn in `color`. */
+export const startMarker = (color: string): Omit<MarkerStyle, "label"> => ({
+  ...START_MARKER,
+  angle: 0,
+  fill: color,
+  stroke: color,
+  strokeWidth: 0,
+});
+
+/** A filled arrowhead in `color`, pointing `angle` degrees clockwise from up. */
+export const arrowheadMarker = (
+  color: string,
+  angle: number,
+  size = ARROWHEAD_SIZE,
+): Omit<MarkerStyle, "label"> => ({
+  shape: ARROWHEAD_PATH,
+  angle,
+  fill: color,
+  stroke: color,
+  strokeWidth: 0,
+  size,
+});
+
+/** A direction-field arrow pointing `angle` degrees clockwise from up. */
+export const fieldArrowMarker = (angle: number): Omit<MarkerStyle, "label"> => ({
+  shape: FIELD_ARROW_PATH,
+  angle,
+  fill: "transparent",
+  stroke: FIELD_STYLE.color,
+  strokeWidth: FIELD_STYLE.strokeWidth,
+  size: FIELD_ARROW_SIZE,
+});
+
 /** How an equilibrium is drawn: four classes, each its own shape and fill, so no colour is needed. */
 export type EquilibriumClass = "stable" | "unstable" | "saddle" | "non-hyperbolic";
 
@@ -85,19 +133,58 @@ export interface MarkerStyle {
 
 export const EQUILIBRIUM_MARKERS: Record<EquilibriumClass, MarkerStyle> = {
   // filled disc: the trajectories around end here
-  stable: { shape: "circle", angle: 0, fill: INK, stroke: INK, strokeWidth: 1.2, size: 110, label: "stable equilibrium" },
+  stable: {
+    shape: "circle",
+    angle: 0,
+    fill: INK,
+    stroke: INK,
+    strokeWidth: 1.2,
+    size: 110,
+    label: "stable equilibrium",
+  },
   // open square: a source
-  unstable: { shape: "square", angle: 0, fill: PAPER, stroke: INK, strokeWidth: 1.8, size: 100, label: "unstable equilibrium" },
+  unstable: {
+    shape: "square",
+    angle: 0,
+    fill: PAPER,
+    stroke: INK,
+    strokeWidth: 1.8,
+    size: 100,
+    label: "unstable equilibrium",
+  },
   // an X: two manifolds cross here
-  saddle: { shape: "cross", angle: 45, fill: INK, stroke: PAPER, strokeWidth: 0.8, size: 190, label: "saddle" },
+  saddle: {
+    shape: "cross",
+    angle: 45,
+    fill: INK,
+    stroke: PAPER,
+    strokeWidth: 0.8,
+    size: 190,
+    label: "saddle",
+  },
   // open triangle: the linearisation does not decide (zero eigenvalue, or a centre)
-  "non-hyperbolic": { shape: "triangle-up", angle: 0, fill: PAPER, stroke: INK, strokeWidth: 1.8, size: 120, label: "non-hyperbolic (undecided)" },
+  "non-hyperbolic": {
+    shape: "triangle-up",
+    angle: 0,
+    fill: PAPER,
+    stroke: INK,
+    strokeWidth: 1.8,
+    size: 120,
+    label: "non-hyperbolic (undecided)",
+  },
 };
 
-export const EQUILIBRIUM_CLASSES: readonly EquilibriumClass[] = ["stable", "unstable", "saddle", "non-hyperbolic"];
+export const EQUILIBRIUM_CLASSES: readonly EquilibriumClass[] = [
+  "stable",
+  "unstable",
+  "saddle",
+  "non-hyperbolic",
+];
 
 /** Saddles first (they are hyperbolic by definition), then anything the linearisation does not decide. */
-export function classifyForDrawing(e: Pick<EquilibriumResult, "type" | "hyperbolic" | "stable">): EquilibriumClass {
+export function classifyForDrawing(
+  e: Pick<EquilibriumResult, "type" | "hyperbolic" | "stable">,
+): EquilibriumClass {
   if (e.type === "saddle") return "saddle";
   if (!e.hyperbolic || e.stable === null) return "non-hyperbolic";
   return e.stable ? "stable" : "unstable";
@@ -173,28 +260,76 @@ export const SWATCH_SIZE = 190;
 /** Branches of equilibria in a bifurcation diagram: stability told by dash and width as well as lightness. */
 export const BRANCH_STYLES = {
   stable: { color: "#23395b", strokeWidth: 2.4, strokeDash: [], label: "stable equilibria" }, // L* 24
-  unstable: { color: "#5b7fb8", strokeWidth: 1.7, strokeDash: [7, 4], label: "unstable equilibria (saddle or source)" }, // L* 53
-  undecided: { color: FRAME, strokeWidth: 1.7, strokeDash: [1, 3.5], label: "stability not decided by the linearisation" },
+  unstable: {
+    color: "#5b7fb8",
+    strokeWidth: 1.7,
+    strokeDash: [7, 4],
+    label: "unstable equilibria (saddle or source)",
+  }, // L* 53
+  undecided: {
+    color: FRAME,
+    strokeWidth: 1.7,
+    strokeDash: [1, 3.5],
+    label: "stability not decided by the linearisation",
+  },
 } as const satisfies Record<string, LineStyle>;
 
 /** The current parameter values: a burnt-orange rule ("now") and, in two-parameter maps, a star (L* 47). */
 export const NOMINAL_COLOR = "#b5541c";
-export const NOMINAL_STYLE = { color: NOMINAL_COLOR, strokeWidth: 1.4, strokeDash: [], label: "current value (now)" } as const satisfies LineStyle;
+export const NOMINAL_STYLE = {
+  color: NOMINAL_COLOR,
+  strokeWidth: 1.4,
+  strokeDash: [],
+  label: "current value (now)",
+} as const satisfies LineStyle;
 export const NOMINAL_MARKER: MarkerStyle = {
-  shape: "M0,-1L0.225,-0.31L0.951,-0.309L0.363,0.118L0.588,0.809L0,0.382L-0.588,0.809L-0.363,0.118L-0.951,-0.309L-0.225,-0.31Z",
-  angle: 0, fill: NOMINAL_COLOR, stroke: INK, strokeWidth: 0.8, size: 230, label: "current values (now)",
+  shape:
+    "M0,-1L0.225,-0.31L0.951,-0.309L0.363,0.118L0.588,0.809L0,0.382L-0.588,0.809L-0.363,0.118L-0.951,-0.309L-0.225,-0.31Z",
+  angle: 0,
+  fill: NOMINAL_COLOR,
+  stroke: INK,
+  strokeWidth: 0.8,
+  size: 230,
+  label: "current values (now)",
 };
 
 /** Located special points on branches: four shapes that need no colour, none of them an equilibrium marker's. */
-export const SPECIAL_POINT_MARKERS: Record<"saddle-node" | "transcritical" | "hopf" | "boundary-crossing", MarkerStyle> = {
+export const SPECIAL_POINT_MARKERS: Record<
+  "saddle-node" | "transcritical" | "hopf" | "boundary-crossing",
+  MarkerStyle
+> = {
   // open diamond: two branches meet and end
-  "saddle-node": { shape: "diamond", angle: 0, fill: PAPER, stroke: INK, strokeWidth: 1.6, size: 120, label: "fold (saddle-node)" },
+  "saddle-node": {
+    shape: "diamond",
+    angle: 0,
+    fill: PAPER,
+    stroke: INK,
+    strokeWidth: 1.6,
+    size: 120,
+    label: "fold (saddle-node)",
+  },
   // bow tie: two branches cross and exchange stability
-  transcritical: { shape: "M-1,-0.8L1,0.8L1,-0.8L-1,0.8Z", angle: 0, fill: INK, stroke: INK, strokeWidth: 0.6, size: 120, label: "transcritical" },
+  transcritical: {
+    shape: "M-1,-0.8L1,0.8L1,-0.8L-1,0.8Z",
+    angle: 0,
+    fill: INK,
+    stroke: INK,
+    strokeWidth: 0.6,
+    size: 120,
+    label: "transcritical",
+  },
   // ring: a periodic orbit is born
   hopf: { shape: "circle", angle: 0, fill: PAPER, stroke: INK, strokeWidth: 2.2, size: 100, label: "Hopf" },
   // filled down-triangle: the branch passes a bound of the feasible region
-  "boundary-crossing": { shape: "triangle-down", angle: 0, fill: INK, stroke: INK, strokeWidth: 0.6, size: 100, label: "boundary crossing" },
+  "boundary-crossing": {
+    shape: "triangle-down",
+    angle: 0,
+    fill: INK,
+    stroke: INK,
+    strokeWidth: 0.6,
+    size: 100,
+    label: "boundary crossing",
+  },
 };
 
 /** Threshold curves in outcome maps: one ink colour, told apart by dash pattern alone. */

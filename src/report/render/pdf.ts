@@ -93,10 +93,16 @@ async function launchChromium(chromiumPath: string, profile: string): Promise<Br
   }
 }
 
-async function printPage(browser: Browser, html: string, options: PdfRenderOptions): Promise<PdfRenderResult> {
+async function printPage(
+  browser: Browser,
+  html: string,
+  options: PdfRenderOptions,
+): Promise<PdfRenderResult> {
   const page = await browser.newPage();
   // a dialog (alert, confirm) would stall printing until a protocol timeout
-  page.on("dialog", (dialog) => { void dialog.dismiss(); });
+  page.on("dialog", (dialog) => {
+    void dialog.dismiss();
+  });
   const blocked = new Set<string>();
   await refuseNetwork(page, blocked);
   await page.setContent(html, { waitUntil: "load", timeout: PRINT_TIMEOUT_MS });
@@ -170,7 +176,13 @@ function band(edge: "top" | "bottom", content: string): string {
   );
 }
 
-const HTML_ESCAPES: Record<string, string> = { "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" };
+const HTML_ESCAPES: Record<string, string> = {
+  "&": "&amp;",
+  "<": "&lt;",
+  ">": "&gt;",
+  '"': "&quot;",
+  "'": "&#39;",
+};
 
 export function escapeHtml(text: string): string {
   return text.replace(/[&<>"']/g, (c) => HTML_ESCAPES[c]);

@@ -20,9 +20,33 @@ export const SVG_DECIMALS = 3;
 
 /** Attributes whose values are numbers (or lists, paths, transforms of numbers). */
 const NUMERIC_ATTRIBUTES = new Set([
-  "d", "transform", "x", "y", "x1", "x2", "y1", "y2", "cx", "cy", "r", "rx", "ry", "dx", "dy",
-  "width", "height", "viewBox", "stroke-width", "stroke-dasharray", "stroke-dashoffset", "stroke-miterlimit",
-  "font-size", "opacity", "fill-opacity", "stroke-opacity", "points",
+  "d",
+  "transform",
+  "x",
+  "y",
+  "x1",
+  "x2",
+  "y1",
+  "y2",
+  "cx",
+  "cy",
+  "r",
+  "rx",
+  "ry",
+  "dx",
+  "dy",
+  "width",
+  "height",
+  "viewBox",
+  "stroke-width",
+  "stroke-dasharray",
+  "stroke-dashoffset",
+  "stroke-miterlimit",
+  "font-size",
+  "opacity",
+  "fill-opacity",
+  "stroke-opacity",
+  "points",
 ]);
 
 /** Markup that would make the page reach out, or run code. */
@@ -41,10 +65,20 @@ function collectingLogger(sink: string[], source: string, errors: string[] = sin
       level = l;
       return logger;
     },
-    error(...args: readonly unknown[]) { errors.push(`${source} error: ${args.map(String).join(" ")}`); return logger; },
-    warn(...args: readonly unknown[]) { sink.push(`${source}: ${args.map(String).join(" ")}`); return logger; },
-    info() { return logger; },
-    debug() { return logger; },
+    error(...args: readonly unknown[]) {
+      errors.push(`${source} error: ${args.map(String).join(" ")}`);
+      return logger;
+    },
+    warn(...args: readonly unknown[]) {
+      sink.push(`${source}: ${args.map(String).join(" ")}`);
+      return logger;
+    },
+    info() {
+      return logger;
+    },
+    debug() {
+      return logger;
+    },
   } as LoggerInterface;
   return logger;
 }
@@ -56,7 +90,10 @@ function collectingLogger(sink: string[], source: string, errors: string[] = sin
  * handle a rejection; links are refused before rendering, in renderSvg.
  */
 function refusingLoader(requests: string[]) {
-  const refuse = (uri: string) => { requests.push(String(uri)); return Promise.reject(new Error(`figure tried to load ${uri}`)); };
+  const refuse = (uri: string) => {
+    requests.push(String(uri));
+    return Promise.reject(new Error(`figure tried to load ${uri}`));
+  };
   return { load: refuse, http: refuse, file: refuse, sanitize: () => Promise.resolve({ href: null }) };
 }
 
@@ -101,9 +138,13 @@ function useOwnTextMetrics(): void {
 }
 
 /** vega-lite spec → SVG markup for inlining (no namespace, no URL, no script, fixed precision). */
-export async function renderSvg(spec: Record<string, unknown>, diagnostics: RenderDiagnostics = { warnings: [] }): Promise<string> {
+export async function renderSvg(
+  spec: Record<string, unknown>,
+  diagnostics: RenderDiagnostics = { warnings: [] },
+): Promise<string> {
   const vegaSpec = compileFigure(spec, diagnostics.warnings);
-  if (/"href"/.test(JSON.stringify(vegaSpec))) throw new Error("figure spec asks for a link (href): figures must hold no URL");
+  if (/"href"/.test(JSON.stringify(vegaSpec)))
+    throw new Error("figure spec asks for a link (href): figures must hold no URL");
   useOwnTextMetrics();
   const errors: string[] = [];
   const requests: string[] = [];

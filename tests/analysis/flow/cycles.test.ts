@@ -18,7 +18,6 @@ const PERIOD_REL_TOL = 1e-6;
  */
 const MULTIPLIER_REL_TOL = 1e-5;
 
-
 function cycleOf(results: Results, scenario: number): CycleResult {
   const fate = results.scenarios[scenario].fate;
   expect(fate.kind).toBe("cycle");
@@ -40,7 +39,12 @@ const TRACE_STEPS = 20_000;
  * formula; Perko, Differential Equations and Dynamical Systems, 3rd ed., section 3.4, from
  * memory): the reference RK4 carries the orbit and composite Simpson's rule the integral.
  */
-function traceMultiplier(f: Field, divergence: (x: number, y: number) => number, start: Point, period: number): number {
+function traceMultiplier(
+  f: Field,
+  divergence: (x: number, y: number) => number,
+  start: Point,
+  period: number,
+): number {
   const h = period / TRACE_STEPS;
   let p = start;
   let sum = divergence(p[0], p[1]);
@@ -64,7 +68,14 @@ describe("solvePeriodicOrbit on the Lotka–Volterra predator–prey model", () 
     window: { x: [0, 10], y: [0, 8] },
   };
   const offsets = [1.5, 0.1, 0.05];
-  const results = analyzeFixture(lotkaVolterra, offsets.map((dx, k) => ({ name: `orbit ${k + 1}`, initial: { x: centre.x + dx, y: centre.y }, horizon: 100 })));
+  const results = analyzeFixture(
+    lotkaVolterra,
+    offsets.map((dx, k) => ({
+      name: `orbit ${k + 1}`,
+      initial: { x: centre.x + dx, y: centre.y },
+      horizon: 100,
+    })),
+  );
 
   it("integrateScenarios(Lotka–Volterra) conserves the first integral H along each path to 1e-7 relative", () => {
     results.scenarios.forEach((sc) => {
@@ -113,7 +124,10 @@ describe("solvePeriodicOrbit on the van der Pol oscillator (mu = 1)", () => {
   const window = { x: [-3, 3], y: [-4, 4] } as Record<string, [number, number]>;
   const forward = analyzeFixture(
     { equations: { x: "y", y: "mu*(1 - x^2)*y - x" }, parameters: { mu: 1 }, window },
-    [{ name: "inside", initial: { x: 0.5, y: 0 }, horizon: 200 }, { name: "outside", initial: { x: 2.5, y: 2 }, horizon: 200 }],
+    [
+      { name: "inside", initial: { x: 0.5, y: 0 }, horizon: 200 },
+      { name: "outside", initial: { x: 2.5, y: 2 }, horizon: 200 },
+    ],
   );
   // the same orbit with time reversed repels; keel finds it by integrating backward from around the stable
   // focus
@@ -151,9 +165,16 @@ describe("solvePeriodicOrbit on the van der Pol oscillator (mu = 1)", () => {
     expect(cycle.stability).toBe("unstable");
     expect(relativeGap(cycle.period, PERIOD)).toBeLessThanOrEqual(PERIOD_REL_TOL);
     // reversing time inverts the multiplier (Liouville: the trace changes sign)
-    expect(relativeGap(cycle.floquetMultiplier, 1 / forward.cycles[0].floquetMultiplier)).toBeLessThanOrEqual(MULTIPLIER_REL_TOL);
-    expect(relativeGap(cycle.returnMapSlope, cycle.floquetMultiplier)).toBeLessThanOrEqual(MULTIPLIER_REL_TOL);
+    expect(relativeGap(cycle.floquetMultiplier, 1 / forward.cycles[0].floquetMultiplier)).toBeLessThanOrEqual(
+      MULTIPLIER_REL_TOL,
+    );
+    expect(relativeGap(cycle.returnMapSlope, cycle.floquetMultiplier)).toBeLessThanOrEqual(
+      MULTIPLIER_REL_TOL,
+    );
     // inside the unstable cycle, the scenario goes to the stable focus
-    expect(reversed.scenarios[0].fate).toMatchObject({ kind: "equilibrium", target: reversed.equilibria[0].id });
+    expect(reversed.scenarios[0].fate).toMatchObject({
+      kind: "equilibrium",
+      target: reversed.equilibria[0].id,
+    });
   });
 });

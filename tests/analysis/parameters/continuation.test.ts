@@ -1,5 +1,9 @@
 import { describe, expect, it } from "vitest";
-import { continueEquilibria, type ContinuationResult, type SpecialPointResult } from "../../../src/analysis/parameters/continuation/index.js";
+import {
+  continueEquilibria,
+  type ContinuationResult,
+  type SpecialPointResult,
+} from "../../../src/analysis/parameters/continuation/index.js";
 import { findEquilibria } from "../../../src/analysis/phase/equilibria.js";
 import { ROOT_RESIDUAL_TOL } from "../../../src/analysis/constants.js";
 import { compileHigherDerivatives, compileParameterDerivative } from "../../../src/model/higher.js";
@@ -28,7 +32,10 @@ function relative(value: number, reference: number): number {
 
 function only(result: ContinuationResult, kind: SpecialPointResult["kind"]): SpecialPointResult {
   const found = result.points.filter((p) => p.kind === kind);
-  expect(found, `${kind} points: ${JSON.stringify(result.points.map((p) => [p.kind, p.value]))}`).toHaveLength(1);
+  expect(
+    found,
+    `${kind} points: ${JSON.stringify(result.points.map((p) => [p.kind, p.value]))}`,
+  ).toHaveLength(1);
   return found[0];
 }
 
@@ -46,7 +53,10 @@ function expectOnCurve(model: Model, result: ContinuationResult) {
       const x = model.stateNames.map((n) => pt.point[n]);
       model.rhsParametric(x, withValue(model, result.parameter, pt.value), f);
       const scale = Math.max(1, ...x.map(Math.abs));
-      expect(Math.max(Math.abs(f[0]), Math.abs(f[1])) / scale, `branch ${branch.index} at ${pt.value}`).toBeLessThan(1e-9);
+      expect(
+        Math.max(Math.abs(f[0]), Math.abs(f[1])) / scale,
+        `branch ${branch.index} at ${pt.value}`,
+      ).toBeLessThan(1e-9);
     }
   }
 }
@@ -127,36 +137,53 @@ function planarLyapunov(field: JetField, at: [number, number]): number {
   const qRe = [J[0][1], -J[0][0]];
   const qIm = [0, omega];
   const norm = Math.hypot(...qRe, ...qIm);
-  const P = [[qRe[0], -qIm[0]], [qRe[1], -qIm[1]]].map((row) => row.map((x) => (Math.SQRT2 * x) / norm));
+  const P = [
+    [qRe[0], -qIm[0]],
+    [qRe[1], -qIm[1]],
+  ].map((row) => row.map((x) => (Math.SQRT2 * x) / norm));
   const detP = P[0][0] * P[1][1] - P[0][1] * P[1][0];
-  const Pinv = [[P[1][1] / detP, -P[0][1] / detP], [-P[1][0] / detP, P[0][0] / detP]];
+  const Pinv = [
+    [P[1][1] / detP, -P[0][1] / detP],
+    [-P[1][0] / detP, P[0][0] / detP],
+  ];
   // F(ξ) = P⁻¹ f(x* + P ξ), as jets in ξ
   const moved = field(jet.variable(at[0], P[0][0], P[0][1]), jet.variable(at[1], P[1][0], P[1][1]));
   const [F, G] = Pinv.map((row) => jet.add(jet.scale(moved[0], row[0]), jet.scale(moved[1], row[1])));
   expect(jet.partial(F, 1, 0)).toBeCloseTo(0, 10);
   expect(jet.partial(F, 0, 1)).toBeCloseTo(-omega, 10);
   const d = jet.partial;
-  const sixteenA = d(F, 3, 0) + d(F, 1, 2) + d(G, 2, 1) + d(G, 0, 3)
-    + (d(F, 1, 1) * (d(F, 2, 0) + d(F, 0, 2)) - d(G, 1, 1) * (d(G, 2, 0) + d(G, 0, 2))
-      - d(F, 2, 0) * d(G, 2, 0) + d(F, 0, 2) * d(G, 0, 2)) / omega;
+  const sixteenA =
+    d(F, 3, 0) +
+    d(F, 1, 2) +
+    d(G, 2, 1) +
+    d(G, 0, 3) +
+    (d(F, 1, 1) * (d(F, 2, 0) + d(F, 0, 2)) -
+      d(G, 1, 1) * (d(G, 2, 0) + d(G, 0, 2)) -
+      d(F, 2, 0) * d(G, 2, 0) +
+      d(F, 0, 2) * d(G, 0, 2)) /
+      omega;
   return (2 * sixteenA) / 16 / omega;
 }
 
 /** The Brusselator typed out in jet operations: x' = a − (b + 1) x + x² y, y' = b x − x² y. */
-const brusselatorJets = (a: number, b: number): JetField => (x, y) => {
-  const x2y = jet.mul(x, x, y);
-  return [jet.add(jet.constant(a), jet.scale(x, -(b + 1)), x2y), jet.sub(jet.scale(x, b), x2y)];
-};
+const brusselatorJets =
+  (a: number, b: number): JetField =>
+  (x, y) => {
+    const x2y = jet.mul(x, x, y);
+    return [jet.add(jet.constant(a), jet.scale(x, -(b + 1)), x2y), jet.sub(jet.scale(x, b), x2y)];
+  };
 
 /**
  * Rosenzweig's model in jet operations: x' = r x (1 − x/K) − a x y/(1 + a h x), y' = c a x y/(1 + a h x) − m
  * y.
  */
-const rosenzweigJets = (p: Record<string, number>): JetField => (x, y) => {
-  const intake = jet.div(jet.scale(jet.mul(x, y), p.a), jet.add(jet.constant(1), jet.scale(x, p.a * p.h)));
-  const growth = jet.scale(jet.mul(x, jet.sub(jet.constant(1), jet.scale(x, 1 / p.K))), p.r);
-  return [jet.sub(growth, intake), jet.sub(jet.scale(intake, p.c), jet.scale(y, p.m))];
-};
+const rosenzweigJets =
+  (p: Record<string, number>): JetField =>
+  (x, y) => {
+    const intake = jet.div(jet.scale(jet.mul(x, y), p.a), jet.add(jet.constant(1), jet.scale(x, p.a * p.h)));
+    const growth = jet.scale(jet.mul(x, jet.sub(jet.constant(1), jet.scale(x, 1 / p.K))), p.r);
+    return [jet.sub(growth, intake), jet.sub(jet.scale(intake, p.c), jet.scale(y, p.m))];
+  };
 
 describe("higher derivatives and parameter views", () => {
   // Brusselator derivatives by hand (common practice): f1 = a − (b+1)x + x²y, f2 = bx − x²y.
@@ -171,14 +198,21 @@ describe("higher derivatives and parameter views", () => {
     // order (i, j, k): f1xx f1xy f1yx f1yy f2xx f2xy f2yx f2yy
     expect(Array.from(d2)).toEqual([2 * y, 2 * x, 2 * x, 0, -2 * y, -2 * x, -2 * x, 0]);
     const want3 = new Array(16).fill(0);
-    for (const idx of [1, 2, 4]) { want3[idx] = 2; want3[8 + idx] = -2; } // xxy, xyx, yxx
+    for (const idx of [1, 2, 4]) {
+      want3[idx] = 2;
+      want3[8 + idx] = -2;
+    } // xxy, xyx, yxx
     expect(Array.from(d3)).toEqual(want3);
   });
 
   it("compileParameterDerivative(brusselator, b) gives (−x, x)", () => {
     const model = buildModel(brusselator(1));
     const out = new Float64Array(2);
-    compileParameterDerivative(model, model.parameterNames.indexOf("b")).evaluate([1.3, 0.7], model.parameterValues, out);
+    compileParameterDerivative(model, model.parameterNames.indexOf("b")).evaluate(
+      [1.3, 0.7],
+      model.parameterValues,
+      out,
+    );
     expect(Array.from(out)).toEqual([-1.3, 1.3]);
   });
 
@@ -186,8 +220,14 @@ describe("higher derivatives and parameter views", () => {
     // x± = (K/2)(1 ± √(1 − 4h/(rK))) = 1 ± 0.5 for r = 0.8, K = 2, h = 0.3
     const model = buildModel(harvesting);
     const view = withParameters(model, withValue(model, "h", 0.3));
-    expect(findEquilibria(view).map((e) => e.point.x)).toEqual([expect.closeTo(0.5, 12), expect.closeTo(1.5, 12)]);
-    expect(findEquilibria(model).map((e) => e.point.x)).toEqual([expect.closeTo(1 - Math.SQRT1_2, 12), expect.closeTo(1 + Math.SQRT1_2, 12)]);
+    expect(findEquilibria(view).map((e) => e.point.x)).toEqual([
+      expect.closeTo(0.5, 12),
+      expect.closeTo(1.5, 12),
+    ]);
+    expect(findEquilibria(model).map((e) => e.point.x)).toEqual([
+      expect.closeTo(1 - Math.SQRT1_2, 12),
+      expect.closeTo(1 + Math.SQRT1_2, 12),
+    ]);
     expect(model.parameterValues[2]).toBe(0.2);
     expect(view.source.rhs).toContain("0.3");
   });
@@ -206,9 +246,13 @@ describe("continueEquilibria on textbook thresholds", () => {
     expect(fold.residual).toBeLessThanOrEqual(ROOT_RESIDUAL_TOL);
     // both equilibria lie on one branch, traced through the fold: the saddle x− and the stable node x+
     expect(result.branches).toHaveLength(1);
-    expect([fold.stabilityChange.before, fold.stabilityChange.after].sort()).toEqual(["saddle", "stable-node"]);
+    expect([fold.stabilityChange.before, fold.stabilityChange.after].sort()).toEqual([
+      "saddle",
+      "stable-node",
+    ]);
     for (const pt of result.branches[0].points) {
-      if (Math.abs(pt.point.x - K / 2) > 1e-6) expect(pt.type).toBe(pt.point.x > K / 2 ? "stable-node" : "saddle");
+      if (Math.abs(pt.point.x - K / 2) > 1e-6)
+        expect(pt.type).toBe(pt.point.x > K / 2 ? "stable-node" : "saddle");
     }
     expectOnCurve(model, result);
   });
@@ -302,7 +346,11 @@ describe("continueEquilibria on textbook thresholds", () => {
     expect(result.points.filter((p) => p.kind === "boundary-crossing")).toEqual([]);
   });
 
-  for (const [s, w] of [[-1, 1], [1, 1], [1, 2]] as const) {
+  for (const [s, w] of [
+    [-1, 1],
+    [1, 1],
+    [1, 2],
+  ] as const) {
     it(`continueEquilibria(normal form s = ${s}, w = ${w}, mu) finds a ${s < 0 ? "super" : "sub"}critical Hopf point with l1 = 2s/w`, () => {
       const diagnostics: Diagnostic[] = [];
       const result = continueEquilibria(buildModel(normalForm(s, w)), "mu", [-0.5, 0.5], {}, diagnostics);
@@ -310,7 +358,9 @@ describe("continueEquilibria on textbook thresholds", () => {
       const hopf = only(result, "hopf");
       expect(Math.abs(hopf.value)).toBeLessThanOrEqual(THRESHOLD_ABS_TOL);
       expect(hopf.criticality).toBe(s < 0 ? "supercritical" : "subcritical");
-      expect(relative(hopf.firstLyapunovCoefficient!, (2 * s) / w)).toBeLessThanOrEqual(LYAPUNOV_AGREEMENT_TOL);
+      expect(relative(hopf.firstLyapunovCoefficient!, (2 * s) / w)).toBeLessThanOrEqual(
+        LYAPUNOV_AGREEMENT_TOL,
+      );
     });
   }
 });
@@ -344,7 +394,11 @@ describe("continueEquilibria: branches, switching, determinism", () => {
     const model = buildModel(crossing);
     const result = continueEquilibria(model, "p", [0, 1]);
     expect(result.branches).toHaveLength(2);
-    expect(result.points.map((p) => p.kind)).toEqual(["boundary-crossing", "transcritical", "boundary-crossing"]);
+    expect(result.points.map((p) => p.kind)).toEqual([
+      "boundary-crossing",
+      "transcritical",
+      "boundary-crossing",
+    ]);
     const [low, t, high] = result.points;
     expect(relative(t.value, 0.5)).toBeLessThanOrEqual(THRESHOLD_REL_TOL);
     expect(t.bound).toBeNull(); // a crossing of two branches, not an axis
@@ -356,12 +410,17 @@ describe("continueEquilibria: branches, switching, determinism", () => {
   it("continueEquilibria(competition, a12) finds the threshold once when a seed value falls on it", () => {
     // the middle of five seed values is K1/K2 itself, where (0, K2) and the coexistence point coincide
     const threshold = 130 / 90;
-    const result = continueEquilibria(buildModel(competition(1, 0.4)), "a12", [threshold - 0.5, threshold + 0.5]);
+    const result = continueEquilibria(buildModel(competition(1, 0.4)), "a12", [
+      threshold - 0.5,
+      threshold + 0.5,
+    ]);
     const t = only(result, "transcritical");
     expect(relative(t.value, threshold)).toBeLessThanOrEqual(THRESHOLD_REL_TOL);
     expect(result.branches).toHaveLength(4);
     for (const b of result.branches) {
-      b.points.slice(1).forEach((pt, k) => expect(pt, `branch ${b.index} point ${k + 1} repeats`).not.toEqual(b.points[k]));
+      b.points
+        .slice(1)
+        .forEach((pt, k) => expect(pt, `branch ${b.index} point ${k + 1} repeats`).not.toEqual(b.points[k]));
     }
   });
 
@@ -380,7 +439,7 @@ describe("continueEquilibria: branches, switching, determinism", () => {
     for (const b of result.branches) for (const end of b.ends) expect(["range", "window"]).toContain(end);
     for (const b of result.branches) {
       for (const pt of b.points) {
-        expect(pt.stable === null || pt.stable === (pt.type.startsWith("stable"))).toBe(true);
+        expect(pt.stable === null || pt.stable === pt.type.startsWith("stable")).toBe(true);
         expect(pt.value).toBeGreaterThanOrEqual(0.5);
         expect(pt.value).toBeLessThanOrEqual(2.2);
       }

@@ -1,6 +1,9 @@
 import { evaluate } from "mathjs";
 import { describe, expect, it } from "vitest";
-import { findInvasionConditions, type InvasionConditionResult } from "../../../src/analysis/parameters/invasion.js";
+import {
+  findInvasionConditions,
+  type InvasionConditionResult,
+} from "../../../src/analysis/parameters/invasion.js";
 import { findEquilibria, type EquilibriumResult } from "../../../src/analysis/phase/equilibria.js";
 import type { Model } from "../../../src/model/types.js";
 import { prepareModel, runPipeline } from "../../../src/pipeline.js";
@@ -22,14 +25,26 @@ type Values = Record<string, number>;
 // Values are invented for the tests.
 const COMPETITION_VALUES: Values = { r1: 1.1, r2: 0.7, K1: 100, K2: 80, a12: 0.6, a21: 0.5 };
 
-function competitionSpec(values: Values, more: Record<string, unknown> = {}, ranges: Record<string, [number, number]> = {}, size = 120): string {
+function competitionSpec(
+  values: Values,
+  more: Record<string, unknown> = {},
+  ranges: Record<string, [number, number]> = {},
+  size = 120,
+): string {
   return JSON.stringify({
     keel: 1,
     id: "competition-conditions",
     title: "Lotka–Volterra competition (invented values)",
     time: { unit: "year" },
-    states: [{ name: "N", min: 0, max: size }, { name: "S", min: 0, max: size }],
-    parameters: Object.entries(values).map(([name, value]) => ({ name, value, ...(ranges[name] ? { range: ranges[name] } : {}) })),
+    states: [
+      { name: "N", min: 0, max: size },
+      { name: "S", min: 0, max: size },
+    ],
+    parameters: Object.entries(values).map(([name, value]) => ({
+      name,
+      value,
+      ...(ranges[name] ? { range: ranges[name] } : {}),
+    })),
     equations: { N: "r1*N*(1 - (N + a12*S)/K1)", S: "r2*S*(1 - (S + a21*N)/K2)" },
     window: { N: [0, size], S: [0, size] },
     ...more,
@@ -52,13 +67,23 @@ function pipeline(specText: string) {
  * The one invasion condition of `absent` at the boundary equilibrium where the other state is
  * `residentValue`.
  */
-function invasionOf(conditions: InvasionConditionResult[], equilibria: EquilibriumResult[], absent: string, residentValue: number): InvasionConditionResult {
+function invasionOf(
+  conditions: InvasionConditionResult[],
+  equilibria: EquilibriumResult[],
+  absent: string,
+  residentValue: number,
+): InvasionConditionResult {
   const found = conditions.filter((c) => {
     const e = equilibria.find((q) => q.id === c.equilibrium)!;
     const resident = Object.keys(e.point).find((n) => n !== absent)!;
-    return c.absent === absent && Math.abs(e.point[resident] - residentValue) <= 1e-9 * Math.max(1, residentValue);
+    return (
+      c.absent === absent && Math.abs(e.point[resident] - residentValue) <= 1e-9 * Math.max(1, residentValue)
+    );
   });
-  expect(found, `invasion of ${absent} at resident ${residentValue}: ${JSON.stringify(conditions.map((c) => [c.equilibrium, c.absent]))}`).toHaveLength(1);
+  expect(
+    found,
+    `invasion of ${absent} at resident ${residentValue}: ${JSON.stringify(conditions.map((c) => [c.equilibrium, c.absent]))}`,
+  ).toHaveLength(1);
   return found[0];
 }
 
@@ -66,7 +91,12 @@ describe("findInvasionConditions(competition)", () => {
   const draws = seededUniform(20240611);
   const between = (lo: number, hi: number) => lo + (hi - lo) * draws();
   const sets: Values[] = Array.from({ length: 4 }, () => ({
-    r1: between(0.2, 2), r2: between(0.2, 2), K1: between(40, 110), K2: between(40, 110), a12: between(0.2, 1.8), a21: between(0.2, 1.8),
+    r1: between(0.2, 2),
+    r2: between(0.2, 2),
+    K1: between(40, 110),
+    K2: between(40, 110),
+    a12: between(0.2, 1.8),
+    a21: between(0.2, 1.8),
   }));
 
   sets.forEach((v, k) => {
@@ -86,13 +116,20 @@ describe("findInvasionConditions(competition)", () => {
       expect(Math.abs(e.jacobian[0][0] - closedForm)).toBeLessThanOrEqual(tol);
       // the printed expression is the closed form at other values too
       const elsewhere: Values = { ...v, a12: v.a12 * 1.3, K1: v.K1 * 0.7 };
-      expect(Math.abs(evaluate(c.rate.text, elsewhere) - elsewhere.r1 * (1 - (elsewhere.a12 * elsewhere.K2) / elsewhere.K1))).toBeLessThanOrEqual(tol);
+      expect(
+        Math.abs(
+          evaluate(c.rate.text, elsewhere) -
+            elsewhere.r1 * (1 - (elsewhere.a12 * elsewhere.K2) / elsewhere.K1),
+        ),
+      ).toBeLessThanOrEqual(tol);
       expect(c.invades).toBe(closedForm > 0);
 
       const threshold = (name: string) => c.thresholds.find((t) => t.parameter === name);
       expect(relative(threshold("a12")!.value, v.K1 / v.K2)).toBeLessThanOrEqual(SYMBOLIC_REL_TOL);
       expect(threshold("a12")!.invadesWhen).toBe("<");
-      expect(relative(evaluate(threshold("a12")!.text, v), v.K1 / v.K2)).toBeLessThanOrEqual(SYMBOLIC_REL_TOL);
+      expect(relative(evaluate(threshold("a12")!.text, v), v.K1 / v.K2)).toBeLessThanOrEqual(
+        SYMBOLIC_REL_TOL,
+      );
       expect(relative(threshold("K2")!.value, v.K1 / v.a12)).toBeLessThanOrEqual(SYMBOLIC_REL_TOL);
       expect(threshold("K2")!.invadesWhen).toBe("<");
       // K1 enters as 1/K1: N invades when K1 > a12 K2
@@ -109,8 +146,12 @@ describe("findInvasionConditions(competition)", () => {
     const closedForm = v.r2 * (1 - (v.a21 * v.K1) / v.K2);
     expect(relative(c.value, closedForm)).toBeLessThanOrEqual(SYMBOLIC_REL_TOL);
     expect(relative(c.numericEigenvalue, closedForm)).toBeLessThanOrEqual(SYMBOLIC_REL_TOL);
-    expect(relative(c.thresholds.find((t) => t.parameter === "a21")!.value, v.K2 / v.K1)).toBeLessThanOrEqual(SYMBOLIC_REL_TOL);
-    expect(relative(c.thresholds.find((t) => t.parameter === "K1")!.value, v.K2 / v.a21)).toBeLessThanOrEqual(SYMBOLIC_REL_TOL);
+    expect(relative(c.thresholds.find((t) => t.parameter === "a21")!.value, v.K2 / v.K1)).toBeLessThanOrEqual(
+      SYMBOLIC_REL_TOL,
+    );
+    expect(relative(c.thresholds.find((t) => t.parameter === "K1")!.value, v.K2 / v.a21)).toBeLessThanOrEqual(
+      SYMBOLIC_REL_TOL,
+    );
     expect(c.thresholds.find((t) => t.parameter === "K1")!.invadesWhen).toBe("<");
   });
 });
@@ -127,7 +168,10 @@ function alleeSpec(values: Values): string {
     id: "allee-predator",
     title: "A predator on a prey with an Allee effect (invented values)",
     time: { unit: "year" },
-    states: [{ name: "N", min: 0, max: 100 }, { name: "S", min: 0, max: 120 }],
+    states: [
+      { name: "N", min: 0, max: 100 },
+      { name: "S", min: 0, max: 120 },
+    ],
     parameters: Object.entries(values).map(([name, value]) => ({ name, value })),
     equations: { N: "N*(b*S - m)", S: "r*S*(S/A - 1)*(1 - S/K) - c*N*S" },
     window: { N: [0, 100], S: [0, 120] },
@@ -166,14 +210,21 @@ describe("assumptions against the located thresholds", () => {
   // relative difference to the threshold, measured from the flip, is (1 − 0.9)/0.9 = 1/9.
   // The range [0.5, 2] puts a flip sample (every 1.5/400) exactly on K1/K2 = 1.25, where the
   // condition's two sides are equal: the flip must still be found.
-  const results = () => pipeline(competitionSpec(COMPETITION_VALUES, {
-    assumptions: [
-      { text: "N can invade the resident S.", condition: "a12 < K1/K2" },
-      { text: "A wrongly stated threshold.", condition: "a12 < 0.9*K1/K2" },
-      { text: "The stocks are well mixed." },
-    ],
-    analysis: { basins: { resolution: 64, coarse: 16 }, parameters: ["a12"] },
-  }, { a12: [0.5, 2] }));
+  const results = () =>
+    pipeline(
+      competitionSpec(
+        COMPETITION_VALUES,
+        {
+          assumptions: [
+            { text: "N can invade the resident S.", condition: "a12 < K1/K2" },
+            { text: "A wrongly stated threshold.", condition: "a12 < 0.9*K1/K2" },
+            { text: "The stocks are well mixed." },
+          ],
+          analysis: { basins: { resolution: 64, coarse: 16 }, parameters: ["a12"] },
+        },
+        { a12: [0.5, 2] },
+      ),
+    );
   const v = COMPETITION_VALUES;
 
   it("evaluateAssumptions and findAssumptionFlips(competition, a12 < K1/K2) hold at the nominal values and flip on the transcritical", () => {
@@ -185,7 +236,11 @@ describe("assumptions against the located thresholds", () => {
     expect(right).toMatchObject({ holds: true, lhs: v.a12, rhs: v.K1 / v.K2 });
     expect(right.flips).toHaveLength(1);
     expect(relative(right.flips[0].value, v.K1 / v.K2)).toBeLessThanOrEqual(FLIP_REL_TOL);
-    expect(right.flips[0]).toMatchObject({ parameter: "a12", coincides: true, nearestThreshold: { kind: "transcritical", decisive: true } });
+    expect(right.flips[0]).toMatchObject({
+      parameter: "a12",
+      coincides: true,
+      nearestThreshold: { kind: "transcritical", decisive: true },
+    });
     expect(right.flips[0].relativeDifference!).toBeLessThanOrEqual(FLIP_REL_TOL);
 
     expect(wrong.holds).toBe(true);
@@ -202,9 +257,17 @@ describe("assumptions against the located thresholds", () => {
 describe("determinism", () => {
   // Seeded and sorted passes only (common practice): the same spec, the same block.
   it("analyze(competition with a study pair) gives a deep-equal conditions block on two runs", () => {
-    const text = competitionSpec(COMPETITION_VALUES, {
-      analysis: { basins: { resolution: 64, coarse: 16 }, parameters: ["a12", "a21"], parameterPairs: [["a12", "a21"]] },
-    }, { a12: [0.5, 2], a21: [0.4, 1.3] });
+    const text = competitionSpec(
+      COMPETITION_VALUES,
+      {
+        analysis: {
+          basins: { resolution: 64, coarse: 16 },
+          parameters: ["a12", "a21"],
+          parameterPairs: [["a12", "a21"]],
+        },
+      },
+      { a12: [0.5, 2], a21: [0.4, 1.3] },
+    );
     const first = pipeline(text).conditions;
     const second = pipeline(text).conditions;
     expect(first.studies).toHaveLength(2);

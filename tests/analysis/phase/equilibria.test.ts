@@ -56,30 +56,85 @@ describe("findEquilibria on textbook models", () => {
   //   (1,1): J = [[−1, −2], [−1, −1]], τ = −2, Δ = −1, λ = −1 ± √2, saddle.
   //   (3,0): J = [[−3, −6], [0, −1]], stable node.
   // Eigenvectors worked by hand from (J − λI)v = 0, scaled to unit length, largest component positive.
-  const competition = { equations: { x: "x*(3 - x - 2*y)", y: "y*(2 - x - y)" }, window: { x: [0, 4], y: [0, 4] } as Record<string, [number, number]> };
+  const competition = {
+    equations: { x: "x*(3 - x - 2*y)", y: "y*(2 - x - y)" },
+    window: { x: [0, 4], y: [0, 4] } as Record<string, [number, number]>,
+  };
   const r2 = Math.SQRT2;
   const r3 = Math.sqrt(3);
 
   it("findEquilibria(competition) finds four equilibria, sorted by x then y", () => {
     const found = findEquilibria(buildModel(competition));
     expectEquilibria(found, [
-      { point: { x: 0, y: 0 }, type: "unstable-node", eigenvalues: real(2, 3), boundaryStates: ["x", "y"], eigenvectors: [[0, 1], [1, 0]] },
-      { point: { x: 0, y: 2 }, type: "stable-node", eigenvalues: real(-2, -1), boundaryStates: ["x"],
-        eigenvectors: [[0, 1], [-1 / Math.sqrt(5), 2 / Math.sqrt(5)]] },
-      { point: { x: 1, y: 1 }, type: "saddle", eigenvalues: real(-1 - r2, -1 + r2), boundaryStates: [],
-        eigenvectors: [[r2 / r3, 1 / r3], [r2 / r3, -1 / r3]] },
-      { point: { x: 3, y: 0 }, type: "stable-node", eigenvalues: real(-3, -1), boundaryStates: ["y"],
-        eigenvectors: [[1, 0], [3 / Math.sqrt(10), -1 / Math.sqrt(10)]] },
+      {
+        point: { x: 0, y: 0 },
+        type: "unstable-node",
+        eigenvalues: real(2, 3),
+        boundaryStates: ["x", "y"],
+        eigenvectors: [
+          [0, 1],
+          [1, 0],
+        ],
+      },
+      {
+        point: { x: 0, y: 2 },
+        type: "stable-node",
+        eigenvalues: real(-2, -1),
+        boundaryStates: ["x"],
+        eigenvectors: [
+          [0, 1],
+          [-1 / Math.sqrt(5), 2 / Math.sqrt(5)],
+        ],
+      },
+      {
+        point: { x: 1, y: 1 },
+        type: "saddle",
+        eigenvalues: real(-1 - r2, -1 + r2),
+        boundaryStates: [],
+        eigenvectors: [
+          [r2 / r3, 1 / r3],
+          [r2 / r3, -1 / r3],
+        ],
+      },
+      {
+        point: { x: 3, y: 0 },
+        type: "stable-node",
+        eigenvalues: real(-3, -1),
+        boundaryStates: ["y"],
+        eigenvectors: [
+          [1, 0],
+          [3 / Math.sqrt(10), -1 / Math.sqrt(10)],
+        ],
+      },
     ]);
   });
 
   it("findEquilibria(competition) reports the hand-derived Jacobians, traces and determinants", () => {
     const found = findEquilibria(buildModel(competition));
-    const jacobians = [[[3, 0], [0, 2]], [[-1, 0], [-2, -2]], [[-1, -2], [-1, -1]], [[-3, -6], [0, -1]]];
+    const jacobians = [
+      [
+        [3, 0],
+        [0, 2],
+      ],
+      [
+        [-1, 0],
+        [-2, -2],
+      ],
+      [
+        [-1, -2],
+        [-1, -1],
+      ],
+      [
+        [-3, -6],
+        [0, -1],
+      ],
+    ];
     const traces = [5, -3, -2, -4];
     const determinants = [6, 2, -1, 3];
     found.forEach((e, k) => {
-      e.jacobian.flat().forEach((v, j) => expect(Math.abs(v - jacobians[k].flat()[j])).toBeLessThanOrEqual(POINT_TOL));
+      e.jacobian
+        .flat()
+        .forEach((v, j) => expect(Math.abs(v - jacobians[k].flat()[j])).toBeLessThanOrEqual(POINT_TOL));
       expect(Math.abs(e.trace - traces[k])).toBeLessThanOrEqual(POINT_TOL);
       expect(Math.abs(e.determinant - determinants[k])).toBeLessThanOrEqual(POINT_TOL);
       expect(e.hyperbolic).toBe(true);
@@ -96,18 +151,52 @@ describe("findEquilibria on textbook models", () => {
   // Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., section 6.3 (example 6.3.1):
   // J = [[−1 + 3x², 0], [0, −2]]; (0,0) stable node (λ = −2, −1); (±1,0) saddles (λ = −2, 2).
   it("findEquilibria(x' = -x + x^3, y' = -2y) finds a stable node between two saddles", () => {
-    const found = findEquilibria(buildModel({ equations: { x: "-x + x^3", y: "-2*y" }, window: { x: [-2, 2], y: [-2, 2] } }));
+    const found = findEquilibria(
+      buildModel({ equations: { x: "-x + x^3", y: "-2*y" }, window: { x: [-2, 2], y: [-2, 2] } }),
+    );
     expectEquilibria(found, [
-      { point: { x: -1, y: 0 }, type: "saddle", eigenvalues: real(-2, 2), boundaryStates: [], eigenvectors: [[0, 1], [1, 0]] },
-      { point: { x: 0, y: 0 }, type: "stable-node", eigenvalues: real(-2, -1), boundaryStates: [], eigenvectors: [[0, 1], [1, 0]] },
-      { point: { x: 1, y: 0 }, type: "saddle", eigenvalues: real(-2, 2), boundaryStates: [], eigenvectors: [[0, 1], [1, 0]] },
+      {
+        point: { x: -1, y: 0 },
+        type: "saddle",
+        eigenvalues: real(-2, 2),
+        boundaryStates: [],
+        eigenvectors: [
+          [0, 1],
+          [1, 0],
+        ],
+      },
+      {
+        point: { x: 0, y: 0 },
+        type: "stable-node",
+        eigenvalues: real(-2, -1),
+        boundaryStates: [],
+        eigenvectors: [
+          [0, 1],
+          [1, 0],
+        ],
+      },
+      {
+        point: { x: 1, y: 0 },
+        type: "saddle",
+        eigenvalues: real(-2, 2),
+        boundaryStates: [],
+        eigenvectors: [
+          [0, 1],
+          [1, 0],
+        ],
+      },
     ]);
   });
 
   it("findEquilibria finds only the equilibria inside the window", () => {
     // the same model on [0, 2] × [-2, 2] keeps (0,0) and (1,0) and drops (−1,0); (0,0) is now on x's bound
-    const found = findEquilibria(buildModel({ equations: { x: "-x + x^3", y: "-2*y" }, window: { x: [0, 2], y: [-2, 2] } }));
-    expect(found.map((e) => e.point)).toEqual([{ x: 0, y: 0 }, { x: 1, y: 0 }]);
+    const found = findEquilibria(
+      buildModel({ equations: { x: "-x + x^3", y: "-2*y" }, window: { x: [0, 2], y: [-2, 2] } }),
+    );
+    expect(found.map((e) => e.point)).toEqual([
+      { x: 0, y: 0 },
+      { x: 1, y: 0 },
+    ]);
     expect(found.map((e) => e.boundaryStates)).toEqual([["x"], []]);
   });
 });
@@ -140,9 +229,18 @@ describe("findEquilibria when the states differ by five orders of magnitude", ()
   it("findEquilibria(scaled predator-prey) classifies as with O(1) units", () => {
     expect(found.map((e) => e.type)).toEqual(["saddle", "stable-focus", "saddle"]);
     const closedForm: number[][][] = [
-      [[p.r, 0], [0, -p.m]],
-      [[(-p.r * xs) / p.K, -p.a * xs], [p.b * ys, 0]],
-      [[-p.r, -p.a * p.K], [0, p.b * p.K - p.m]],
+      [
+        [p.r, 0],
+        [0, -p.m],
+      ],
+      [
+        [(-p.r * xs) / p.K, -p.a * xs],
+        [p.b * ys, 0],
+      ],
+      [
+        [-p.r, -p.a * p.K],
+        [0, p.b * p.K - p.m],
+      ],
     ];
     found.forEach((e, k) => {
       const theirs = mathjsEigenvalues(closedForm[k]);
@@ -156,7 +254,9 @@ describe("findEquilibria when the states differ by five orders of magnitude", ()
 function realRoots(coefficients: number[]): number[] {
   const n = coefficients.length - 1;
   const lead = coefficients[n];
-  const companion = Array.from({ length: n }, (_, i) => Array.from({ length: n }, (_, j): number => (i === j + 1 ? 1 : 0)));
+  const companion = Array.from({ length: n }, (_, i) =>
+    Array.from({ length: n }, (_, j): number => (i === j + 1 ? 1 : 0)),
+  );
   for (let i = 0; i < n; i++) companion[i][n - 1] = -coefficients[i] / lead;
   const value = (v: number) => coefficients.reduceRight((acc, c) => acc * v + c, 0);
   const slope = (v: number) => coefficients.slice(1).reduceRight((acc, c, k) => acc * v + (k + 1) * c, 0);
@@ -227,13 +327,22 @@ describe("example specs run end to end", () => {
     expect(Math.abs(e.point.N - Ns) / Ns).toBeLessThanOrEqual(CLOSED_FORM_REL_TOL);
     expect(Math.abs(e.point.S - Ss) / Ss).toBeLessThanOrEqual(CLOSED_FORM_REL_TOL);
     // Jacobian at the coexistence state, by hand: [[−r1 N*/K1, −r1 a12 N*/K1], [−r2 a21 S*/K2, −r2 S*/K2]]
-    const J = [[(-q.r1 * Ns) / q.K1, (-q.r1 * q.a12 * Ns) / q.K1], [(-q.r2 * q.a21 * Ss) / q.K2, (-q.r2 * Ss) / q.K2]];
+    const J = [
+      [(-q.r1 * Ns) / q.K1, (-q.r1 * q.a12 * Ns) / q.K1],
+      [(-q.r2 * q.a21 * Ss) / q.K2, (-q.r2 * Ss) / q.K2],
+    ];
     const theirs = mathjsEigenvalues(J);
     const size = Math.max(...theirs.map((l) => Math.hypot(l.re, l.im)));
     expect(pairDistance(e.eigenvalues, theirs)).toBeLessThanOrEqual(EIGEN_REL_TOL * size);
     // the boundary equilibria
     const rest = equilibria.filter((x) => x !== e).map((x) => x.point);
-    expect(rest).toEqual(expect.arrayContaining([{ N: 0, S: 0 }, { N: q.K1, S: 0 }, { N: 0, S: q.K2 }]));
+    expect(rest).toEqual(
+      expect.arrayContaining([
+        { N: 0, S: 0 },
+        { N: q.K1, S: 0 },
+        { N: 0, S: q.K2 },
+      ]),
+    );
     expect(equilibria).toHaveLength(4);
   });
 
@@ -243,13 +352,16 @@ describe("example specs run end to end", () => {
     //   q r (1 − V/K)(h² + V²)² − c V ((c y − m) V² − m h²) = 0,
     // a quintic whose real roots with G > 0 in the window are the interior equilibria.
     const text = readFileSync(join(dir, "grazer-forage.json"), "utf8");
-    const raw = JSON.parse(text) as { parameters: { name: string; value: number }[]; window: Record<string, [number, number]> };
+    const raw = JSON.parse(text) as {
+      parameters: { name: string; value: number }[];
+      window: Record<string, [number, number]>;
+    };
     const q = Object.fromEntries(raw.parameters.map((p) => [p.name, p.value]));
     const A = q.h * q.h;
     const left = polyMultiply([q.q * q.r, (-q.q * q.r) / q.K], [A * A, 0, 2 * A, 0, 1]);
     const right = [0, -q.c * q.m * A, 0, q.c * (q.c * q.y - q.m)];
     const quintic = left.map((c, k) => c - (right[k] ?? 0));
-    const grazersAt = (V: number) => (q.y * q.c * V * V / (A + V * V) - q.m) / q.q;
+    const grazersAt = (V: number) => ((q.y * q.c * V * V) / (A + V * V) - q.m) / q.q;
     const [vlo, vhi] = raw.window.V;
     const [glo, ghi] = raw.window.G;
     const interior = realRoots(quintic)
@@ -267,7 +379,10 @@ describe("example specs run end to end", () => {
       expect(Math.abs(e.point.G - interior[k].G) / interior[k].G).toBeLessThanOrEqual(CLOSED_FORM_REL_TOL);
     });
     // V = 0 is invariant and G' = −G(m + qG) there, so (0,0) is the only equilibrium on it; G = 0 adds (K,0)
-    expect(equilibria.filter((e) => e.onBoundary).map((e) => e.point)).toEqual([{ V: 0, G: 0 }, { V: q.K, G: 0 }]);
+    expect(equilibria.filter((e) => e.onBoundary).map((e) => e.point)).toEqual([
+      { V: 0, G: 0 },
+      { V: q.K, G: 0 },
+    ]);
     expect(equilibria.filter((e) => e.stable === true)).toHaveLength(2);
   });
 });

@@ -3,7 +3,11 @@ import { modelOf } from "../../fixtures/models.js";
 import type { Model } from "../../../src/model/types.js";
 import type { Diagnostic } from "../../../src/diagnostics/issue.js";
 import { findEquilibria } from "../../../src/analysis/phase/equilibria.js";
-import { findNullclines, type NullclineResult, type NullclinePiece } from "../../../src/analysis/phase/nullclines.js";
+import {
+  findNullclines,
+  type NullclineResult,
+  type NullclinePiece,
+} from "../../../src/analysis/phase/nullclines.js";
 import { DEFAULT_NULLCLINE_OPTIONS, NULLCLINE_RESIDUAL_TOL } from "../../../src/analysis/constants.js";
 
 type Rhs = (x: number, y: number) => [number, number];
@@ -11,7 +15,10 @@ type Rhs = (x: number, y: number) => [number, number];
 // Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., section 6.4 (rabbits versus sheep):
 // x' = x(3 - x - 2y), y' = y(2 - x - y); nullclines x = 0, x + 2y = 3 and y = 0, x + y = 2;
 // fixed points (0,0), (0,2), (3,0), (1,1).
-const competition = { equations: { x: "x*(3 - x - 2*y)", y: "y*(2 - x - y)" }, window: { x: [0, 4], y: [0, 4] } as Record<string, [number, number]> };
+const competition = {
+  equations: { x: "x*(3 - x - 2*y)", y: "y*(2 - x - y)" },
+  window: { x: [0, 4], y: [0, 4] } as Record<string, [number, number]>,
+};
 const competitionRhs: Rhs = (x, y) => [x * (3 - x - 2 * y), y * (2 - x - y)];
 
 // Logistic prey with a saturating (Holling type II) response, r = 1, K = 4, a = 1, h = 1, b = 2, m = 1.
@@ -25,7 +32,10 @@ const predatorPreyRhs: Rhs = (x, y) => [x * (1 - x / 4) - (x * y) / (1 + x), y *
 const preyNullcline = (x: number) => (1 - x / 4) * (1 + x);
 
 // The unit circle as a nullcline, cut by the line y = x at (±1/√2, ±1/√2) (common practice).
-const circle = { equations: { x: "x^2 + y^2 - 1", y: "x - y" }, window: { x: [-2, 2], y: [-2, 2] } as Record<string, [number, number]> };
+const circle = {
+  equations: { x: "x^2 + y^2 - 1", y: "x - y" },
+  window: { x: [-2, 2], y: [-2, 2] } as Record<string, [number, number]>,
+};
 const circleRhs: Rhs = (x, y) => [x * x + y * y - 1, x - y];
 
 const cases = [
@@ -50,23 +60,29 @@ function gridScale(rhs: Rhs, window: Record<string, [number, number]>, i: number
   const [[x0, x1], [y0, y1]] = Object.values(window);
   const { nx, ny } = DEFAULT_NULLCLINE_OPTIONS;
   let s = 0;
-  for (let a = 0; a < nx; a++) for (let b = 0; b < ny; b++) {
-    s = Math.max(s, Math.abs(rhs(x0 + ((x1 - x0) * a) / (nx - 1), y0 + ((y1 - y0) * b) / (ny - 1))[i]));
-  }
+  for (let a = 0; a < nx; a++)
+    for (let b = 0; b < ny; b++) {
+      s = Math.max(s, Math.abs(rhs(x0 + ((x1 - x0) * a) / (nx - 1), y0 + ((y1 - y0) * b) / (ny - 1))[i]));
+    }
   return s;
 }
 
-const vertices = (n: NullclineResult, filter: (p: NullclinePiece) => boolean = () => true) => n.pieces.filter(filter).flatMap((p) => p.points);
+const vertices = (n: NullclineResult, filter: (p: NullclinePiece) => boolean = () => true) =>
+  n.pieces.filter(filter).flatMap((p) => p.points);
 
 describe("findNullclines", () => {
-  it.each(cases)("findNullclines($name) puts every vertex on its curve within NULLCLINE_RESIDUAL_TOL", (c) => {
-    const { nullclines } = run(c);
-    for (const i of [0, 1]) {
-      const scale = gridScale(c.rhs, c.window, i);
-      expect(nullclines[i].pieces.length).toBeGreaterThan(0);
-      for (const [x, y] of vertices(nullclines[i])) expect(Math.abs(c.rhs(x, y)[i])).toBeLessThanOrEqual(NULLCLINE_RESIDUAL_TOL * scale);
-    }
-  });
+  it.each(cases)(
+    "findNullclines($name) puts every vertex on its curve within NULLCLINE_RESIDUAL_TOL",
+    (c) => {
+      const { nullclines } = run(c);
+      for (const i of [0, 1]) {
+        const scale = gridScale(c.rhs, c.window, i);
+        expect(nullclines[i].pieces.length).toBeGreaterThan(0);
+        for (const [x, y] of vertices(nullclines[i]))
+          expect(Math.abs(c.rhs(x, y)[i])).toBeLessThanOrEqual(NULLCLINE_RESIDUAL_TOL * scale);
+      }
+    },
+  );
 
   it("findNullclines(competition) lies exactly on x = 0, x + 2y = 3, y = 0 and x + y = 2", () => {
     const [nx, ny] = run(competition).nullclines;
@@ -117,63 +133,91 @@ describe("findNullclines", () => {
     for (const [x, y] of vertices(nullclines[0])) expect(Math.abs(Math.hypot(x, y) - 1)).toBeLessThan(1e-12);
     for (const p of pieces) expect(p.ends.map((e) => e.kind)).toEqual(["equilibrium", "equilibrium"]);
     // together the two pieces go once round the circle
-    const turn = pieces.reduce((sum, p) => sum + p.points.slice(1).reduce((s, q, k) => {
-      const [a, b] = [p.points[k], q];
-      return s + Math.atan2(a[0] * b[1] - a[1] * b[0], a[0] * b[0] + a[1] * b[1]);
-    }, 0), 0);
+    const turn = pieces.reduce(
+      (sum, p) =>
+        sum +
+        p.points.slice(1).reduce((s, q, k) => {
+          const [a, b] = [p.points[k], q];
+          return s + Math.atan2(a[0] * b[1] - a[1] * b[0], a[0] * b[0] + a[1] * b[1]);
+        }, 0),
+      0,
+    );
     expect(Math.abs(turn)).toBeCloseTo(2 * Math.PI, 9);
   });
 
-  it.each(cases)("findNullclines($name) makes every equilibrium an end point of pieces of both nullclines, never an inner vertex", (c) => {
-    const { nullclines, equilibria } = run(c);
-    const box = Object.values(c.window);
-    for (const n of nullclines) {
-      for (const e of equilibria) {
-        const p: [number, number] = [e.point.x, e.point.y];
-        const ends = n.pieces.flatMap((piece) => [
-          { end: piece.ends[0], at: piece.points[0] },
-          { end: piece.ends[1], at: piece.points[piece.points.length - 1] },
-        ]).filter(({ end }) => end.kind === "equilibrium" && end.id === e.id);
-        // one piece on each side, unless the equilibrium sits where its curve leaves the window
-        expect(ends.length).toBeGreaterThanOrEqual(1);
-        for (const { at } of ends) expect(at).toEqual(p);
-        for (const piece of n.pieces) for (const q of piece.points.slice(1, -1)) {
-          const d = Math.hypot((q[0] - p[0]) / (box[0][1] - box[0][0]), (q[1] - p[1]) / (box[1][1] - box[1][0]));
-          expect(d).toBeGreaterThan(1e-9);
+  it.each(cases)(
+    "findNullclines($name) makes every equilibrium an end point of pieces of both nullclines, never an inner vertex",
+    (c) => {
+      const { nullclines, equilibria } = run(c);
+      const box = Object.values(c.window);
+      for (const n of nullclines) {
+        for (const e of equilibria) {
+          const p: [number, number] = [e.point.x, e.point.y];
+          const ends = n.pieces
+            .flatMap((piece) => [
+              { end: piece.ends[0], at: piece.points[0] },
+              { end: piece.ends[1], at: piece.points[piece.points.length - 1] },
+            ])
+            .filter(({ end }) => end.kind === "equilibrium" && end.id === e.id);
+          // one piece on each side, unless the equilibrium sits where its curve leaves the window
+          expect(ends.length).toBeGreaterThanOrEqual(1);
+          for (const { at } of ends) expect(at).toEqual(p);
+          for (const piece of n.pieces)
+            for (const q of piece.points.slice(1, -1)) {
+              const d = Math.hypot(
+                (q[0] - p[0]) / (box[0][1] - box[0][0]),
+                (q[1] - p[1]) / (box[1][1] - box[1][0]),
+              );
+              expect(d).toBeGreaterThan(1e-9);
+            }
         }
       }
-    }
-  });
+    },
+  );
 
-  it.each(cases)("findNullclines($name) labels each piece with the sign of the other component at its vertices", (c) => {
-    const { nullclines } = run(c);
-    for (const i of [0, 1]) {
-      const j = 1 - i;
-      const scale = gridScale(c.rhs, c.window, j);
-      for (const piece of nullclines[i].pieces) {
-        expect(piece.otherState).toBe(j === 0 ? "x" : "y");
-        const expected = piece.otherDirection === "increasing" ? 1 : piece.otherDirection === "decreasing" ? -1 : 0;
-        const inner = piece.points.filter((_, k) => (k > 0 || piece.ends[0].kind !== "equilibrium") && (k < piece.points.length - 1 || piece.ends[1].kind !== "equilibrium"));
-        for (const [x, y] of inner) {
-          const v = c.rhs(x, y)[j];
-          if (Math.abs(v) > 1e-12 * scale) expect(Math.sign(v)).toBe(expected);
+  it.each(cases)(
+    "findNullclines($name) labels each piece with the sign of the other component at its vertices",
+    (c) => {
+      const { nullclines } = run(c);
+      for (const i of [0, 1]) {
+        const j = 1 - i;
+        const scale = gridScale(c.rhs, c.window, j);
+        for (const piece of nullclines[i].pieces) {
+          expect(piece.otherState).toBe(j === 0 ? "x" : "y");
+          const expected =
+            piece.otherDirection === "increasing" ? 1 : piece.otherDirection === "decreasing" ? -1 : 0;
+          const inner = piece.points.filter(
+            (_, k) =>
+              (k > 0 || piece.ends[0].kind !== "equilibrium") &&
+              (k < piece.points.length - 1 || piece.ends[1].kind !== "equilibrium"),
+          );
+          for (const [x, y] of inner) {
+            const v = c.rhs(x, y)[j];
+            if (Math.abs(v) > 1e-12 * scale) expect(Math.sign(v)).toBe(expected);
+          }
         }
       }
-    }
-  });
+    },
+  );
 
   it("findNullclines(competition) labels the pieces as worked out by hand", () => {
     // on x = 0, y' = y(2 - y): up below (0, 2), down above; on y = 0, x' = x(3 - x): right below (3, 0)
     const [nx, ny] = run(competition).nullclines;
-    const summary = (n: NullclineResult) => n.pieces.map((p) => [p.points[0], p.points[p.points.length - 1], p.otherDirection]);
-    const near = (v: unknown) => JSON.parse(JSON.stringify(v, (_, x) => (typeof x === "number" ? Math.round(x * 1e9) / 1e9 : x)));
+    const summary = (n: NullclineResult) =>
+      n.pieces.map((p) => [p.points[0], p.points[p.points.length - 1], p.otherDirection]);
+    const near = (v: unknown) =>
+      JSON.parse(JSON.stringify(v, (_, x) => (typeof x === "number" ? Math.round(x * 1e9) / 1e9 : x)));
     expect(near(summary(nx))).toEqual([
-      [[0, 0], [0, 2], "increasing"], [[0, 2], [0, 4], "decreasing"],
-      [[0, 1.5], [1, 1], "increasing"], [[1, 1], [3, 0], "decreasing"],
+      [[0, 0], [0, 2], "increasing"],
+      [[0, 2], [0, 4], "decreasing"],
+      [[0, 1.5], [1, 1], "increasing"],
+      [[1, 1], [3, 0], "decreasing"],
     ]);
     expect(near(summary(ny))).toEqual([
-      [[0, 0], [3, 0], "increasing"], [[3, 0], [4, 0], "decreasing"],
-      [[0, 2], [1, 1], "decreasing"], [[1, 1], [2, 0], "increasing"],
+      [[0, 0], [3, 0], "increasing"],
+      [[3, 0], [4, 0], "decreasing"],
+      [[0, 2], [1, 1], "decreasing"],
+      [[1, 1], [2, 0], "increasing"],
     ]);
   });
 
@@ -182,8 +226,13 @@ describe("findNullclines", () => {
     const diagnostics: Diagnostic[] = [];
     const [nx] = findNullclines(model, [], DEFAULT_NULLCLINE_OPTIONS, diagnostics);
     expect(nx.pieces).toHaveLength(4);
-    const cuts = nx.pieces.flatMap((p) => [p.ends[0].kind === "interior" ? p.points[0] : null]).filter((p) => p !== null);
-    expect(cuts.map(([x, y]) => [Math.round(x * 1e6) / 1e6, Math.round(y * 1e6) / 1e6])).toEqual([[0, 2], [1, 1]]);
+    const cuts = nx.pieces
+      .flatMap((p) => [p.ends[0].kind === "interior" ? p.points[0] : null])
+      .filter((p) => p !== null);
+    expect(cuts.map(([x, y]) => [Math.round(x * 1e6) / 1e6, Math.round(y * 1e6) / 1e6])).toEqual([
+      [0, 2],
+      [1, 1],
+    ]);
     expect(diagnostics.filter((d) => d.severity === "warning" && d.stage === "nullclines")).toHaveLength(4);
   });
 
@@ -221,10 +270,13 @@ describe("findNullclines", () => {
     const model = modelOf({ x: "x*(1 - x^2 - y^2)", y: "y - x/2" }, { x: [-2, 2], y: [-2, 2] });
     const [nx] = findNullclines(model, findEquilibria(model));
     const axis = nx.pieces.filter((p) => p.onAxis);
-    expect(axis.every((p) => p.axis?.state === "x" && p.axis.value === 0 && p.points.every(([x]) => x === 0))).toBe(true);
+    expect(
+      axis.every((p) => p.axis?.state === "x" && p.axis.value === 0 && p.points.every(([x]) => x === 0)),
+    ).toBe(true);
     const ys = axis.flatMap((p) => p.points.map(([, y]) => y));
     expect([Math.min(...ys), Math.max(...ys)]).toEqual([-2, 2]);
-    for (const [x, y] of vertices(nx, (p) => !p.onAxis)) expect(Math.abs(x * x + y * y - 1)).toBeLessThan(1e-12);
+    for (const [x, y] of vertices(nx, (p) => !p.onAxis))
+      expect(Math.abs(x * x + y * y - 1)).toBeLessThan(1e-12);
   });
 
   it("findNullclines(thin window) does not cut a curve at an equilibrium it only passes near", () => {
@@ -252,7 +304,9 @@ describe("findNullclines", () => {
     const diagnostics: Diagnostic[] = [];
     const [nx, ny] = findNullclines(model, [], DEFAULT_NULLCLINE_OPTIONS, diagnostics);
     expect(nx.pieces).toEqual([]);
-    expect(diagnostics.filter((d) => d.severity === "warning" && /zero or undefined/.test(d.message))).toHaveLength(1);
+    expect(
+      diagnostics.filter((d) => d.severity === "warning" && /zero or undefined/.test(d.message)),
+    ).toHaveLength(1);
     // y' = x - y still has its nullcline, the diagonal from corner to corner
     for (const [x, y] of vertices(ny)) expect(x).toBe(y);
   });

@@ -10,7 +10,12 @@ import { EXAMPLE_IDS, exampleField, exampleSpecText } from "../../fixtures/examp
 import { modelOf } from "../../fixtures/models.js";
 
 function regionsOf(model: Model, diagnostics: Diagnostic[] = []): RegionResult[] {
-  return findRegions(model, findNullclines(model, findEquilibria(model)), DEFAULT_REGION_OPTIONS, diagnostics);
+  return findRegions(
+    model,
+    findNullclines(model, findEquilibria(model)),
+    DEFAULT_REGION_OPTIONS,
+    diagnostics,
+  );
 }
 
 const sign = (v: number) => (v > 0 ? "+" : "-");
@@ -43,21 +48,32 @@ describe("findRegions", () => {
   it("findRegions(competition) puts each sample point inside its region by the closed-form lines", () => {
     for (const r of regions) {
       const { x, y } = r.point;
-      const belowFirst = x + 2 * y < 3, belowSecond = x + y < 2;
+      const belowFirst = x + 2 * y < 3,
+        belowSecond = x + y < 2;
       expect(r.signs.x).toBe(belowFirst ? "+" : "-");
       expect(r.signs.y).toBe(belowSecond ? "+" : "-");
       const [f0, f1] = competitionRhs(x, y);
       expect([sign(f0), sign(f1)]).toEqual([r.signs.x, r.signs.y]);
       // far from the nullclines: at least two cells (window-scaled) from every line, axes included
       const cell = 1 / DEFAULT_REGION_OPTIONS.nx;
-      const distances = [x / 4, y / 4, Math.abs(x + 2 * y - 3) / Math.hypot(1, 2) / 4, Math.abs(x + y - 2) / Math.SQRT2 / 4];
+      const distances = [
+        x / 4,
+        y / 4,
+        Math.abs(x + 2 * y - 3) / Math.hypot(1, 2) / 4,
+        Math.abs(x + y - 2) / Math.SQRT2 / 4,
+      ];
       expect(Math.min(...distances)).toBeGreaterThan(2 * cell);
       expect(r.clearance).toBeGreaterThan(2 * cell);
     }
   });
 
   it("findRegions(competition) has both states growing near the origin and both declining near (4, 4)", () => {
-    const nearest = (px: number, py: number) => regions.reduce((best, r) => (Math.hypot(r.point.x - px, r.point.y - py) < Math.hypot(best.point.x - px, best.point.y - py) ? r : best));
+    const nearest = (px: number, py: number) =>
+      regions.reduce((best, r) =>
+        Math.hypot(r.point.x - px, r.point.y - py) < Math.hypot(best.point.x - px, best.point.y - py)
+          ? r
+          : best,
+      );
     expect(nearest(0, 0).signs).toEqual({ x: "+", y: "+" });
     expect(nearest(4, 4).signs).toEqual({ x: "-", y: "-" });
   });
@@ -79,20 +95,23 @@ describe("findRegions", () => {
     expect(JSON.parse(JSON.stringify(regions))).toEqual(regions);
   });
 
-  it.each(EXAMPLE_IDS)("findRegions(%s) gives sample points whose signs match the hand-written field there", (id) => {
-    const prepared = prepareModel(exampleSpecText(id));
-    if (!prepared.ok) throw new Error("example spec does not load");
-    const model = prepared.value.model;
-    const found = regionsOf(model);
-    expect(found.length).toBeGreaterThanOrEqual(4);
-    const field = exampleField(id);
-    for (const r of found) {
-      const [a, b] = model.stateNames;
-      const f = field(r.point[a], r.point[b]);
-      expect(model.stateNames.map((n, i) => [n, sign(f[i])])).toEqual(Object.entries(r.signs));
-      expect(r.clearance).toBeGreaterThan(0);
-    }
-  });
+  it.each(EXAMPLE_IDS)(
+    "findRegions(%s) gives sample points whose signs match the hand-written field there",
+    (id) => {
+      const prepared = prepareModel(exampleSpecText(id));
+      if (!prepared.ok) throw new Error("example spec does not load");
+      const model = prepared.value.model;
+      const found = regionsOf(model);
+      expect(found.length).toBeGreaterThanOrEqual(4);
+      const field = exampleField(id);
+      for (const r of found) {
+        const [a, b] = model.stateNames;
+        const f = field(r.point[a], r.point[b]);
+        expect(model.stateNames.map((n, i) => [n, sign(f[i])])).toEqual(Object.entries(r.signs));
+        expect(r.clearance).toBeGreaterThan(0);
+      }
+    },
+  );
 
   it("findRegions(hole) leaves out the part of the window where the model is undefined", () => {
     // sqrt(x) is NaN for x < 0, half of the window

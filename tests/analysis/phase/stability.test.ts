@@ -1,6 +1,10 @@
 import fc from "fast-check";
 import { describe, expect, it } from "vitest";
-import { classifyEquilibrium, type Complex, type EquilibriumType } from "../../../src/analysis/phase/stability.js";
+import {
+  classifyEquilibrium,
+  type Complex,
+  type EquilibriumType,
+} from "../../../src/analysis/phase/stability.js";
 import { findEquilibria } from "../../../src/analysis/phase/equilibria.js";
 import { mathjsEigenvalues, pairDistance } from "../../fixtures/eigen.js";
 import { buildModel } from "../../fixtures/models.js";
@@ -47,7 +51,10 @@ function expectEigenvectors(actual: number[][], expected: number[][]) {
 }
 
 const real = (...values: number[]): Complex[] => values.map((re) => ({ re, im: 0 }));
-const pair = (re: number, im: number): Complex[] => [{ re, im: -im }, { re, im }];
+const pair = (re: number, im: number): Complex[] => [
+  { re, im: -im },
+  { re, im },
+];
 
 /**
  * One linear system of each type in the trace–determinant classification (Hirsch, Smale and
@@ -70,44 +77,205 @@ const s5 = Math.sqrt(5);
 const s10 = Math.sqrt(10);
 const LINEAR_CASES: LinearCase[] = [
   // λ² − λ − 6 = (λ − 3)(λ + 2); (J + 2I)v = 0 gives v ∝ (−1, 2), (J − 3I)v = 0 gives v ∝ (1, 3)
-  { name: "saddle", J: [[0, 1], [6, 1]], type: "saddle", hyperbolic: true, stable: false,
-    eigenvalues: real(-2, 3), eigenvectors: [[-1 / s5, 2 / s5], [1 / s10, 3 / s10]] },
+  {
+    name: "saddle",
+    J: [
+      [0, 1],
+      [6, 1],
+    ],
+    type: "saddle",
+    hyperbolic: true,
+    stable: false,
+    eigenvalues: real(-2, 3),
+    eigenvectors: [
+      [-1 / s5, 2 / s5],
+      [1 / s10, 3 / s10],
+    ],
+  },
   // triangular: λ = −3, −1; (J + I)v = 0 gives v ∝ (1, 2)
-  { name: "stable node", J: [[-3, 1], [0, -1]], type: "stable-node", hyperbolic: true, stable: true,
-    eigenvalues: real(-3, -1), eigenvectors: [[1, 0], [1 / s5, 2 / s5]] },
+  {
+    name: "stable node",
+    J: [
+      [-3, 1],
+      [0, -1],
+    ],
+    type: "stable-node",
+    hyperbolic: true,
+    stable: true,
+    eigenvalues: real(-3, -1),
+    eigenvectors: [
+      [1, 0],
+      [1 / s5, 2 / s5],
+    ],
+  },
   // triangular: λ = 1, 3; (J − 3I)v = 0 gives v ∝ (1, 2)
-  { name: "unstable node", J: [[1, 1], [0, 3]], type: "unstable-node", hyperbolic: true, stable: false,
-    eigenvalues: real(1, 3), eigenvectors: [[1, 0], [1 / s5, 2 / s5]] },
+  {
+    name: "unstable node",
+    J: [
+      [1, 1],
+      [0, 3],
+    ],
+    type: "unstable-node",
+    hyperbolic: true,
+    stable: false,
+    eigenvalues: real(1, 3),
+    eigenvectors: [
+      [1, 0],
+      [1 / s5, 2 / s5],
+    ],
+  },
   // the canonical form [[α, β], [−β, α]] has eigenvalues α ± iβ (HSD 3rd ed., section 3.2)
-  { name: "stable focus", J: [[-1, 2], [-2, -1]], type: "stable-focus", hyperbolic: true, stable: true,
-    eigenvalues: pair(-1, 2), eigenvectors: [] },
-  { name: "unstable focus", J: [[1, 2], [-2, 1]], type: "unstable-focus", hyperbolic: true, stable: false,
-    eigenvalues: pair(1, 2), eigenvectors: [] },
+  {
+    name: "stable focus",
+    J: [
+      [-1, 2],
+      [-2, -1],
+    ],
+    type: "stable-focus",
+    hyperbolic: true,
+    stable: true,
+    eigenvalues: pair(-1, 2),
+    eigenvectors: [],
+  },
+  {
+    name: "unstable focus",
+    J: [
+      [1, 2],
+      [-2, 1],
+    ],
+    type: "unstable-focus",
+    hyperbolic: true,
+    stable: false,
+    eigenvalues: pair(1, 2),
+    eigenvectors: [],
+  },
   // not in canonical form: λ² + 2λ + 5 = 0, λ = −1 ± 2i
-  { name: "stable focus (companion form)", J: [[0, 1], [-5, -2]], type: "stable-focus", hyperbolic: true, stable: true,
-    eigenvalues: pair(-1, 2), eigenvectors: [] },
+  {
+    name: "stable focus (companion form)",
+    J: [
+      [0, 1],
+      [-5, -2],
+    ],
+    type: "stable-focus",
+    hyperbolic: true,
+    stable: true,
+    eigenvalues: pair(-1, 2),
+    eigenvectors: [],
+  },
   // τ = 0, Δ = 4: λ = ±2i; the linearisation alone does not decide (HSD 3rd ed., section 3.2)
-  { name: "center", J: [[0, 1], [-4, 0]], type: "center", hyperbolic: false, stable: null,
-    eigenvalues: pair(0, 2), eigenvectors: [] },
+  {
+    name: "center",
+    J: [
+      [0, 1],
+      [-4, 0],
+    ],
+    type: "center",
+    hyperbolic: false,
+    stable: null,
+    eigenvalues: pair(0, 2),
+    eigenvectors: [],
+  },
   // J = kI: every direction is an eigenvector (HSD 3rd ed., section 3.3)
-  { name: "stable star", J: [[-2, 0], [0, -2]], type: "stable-star", hyperbolic: true, stable: true,
-    eigenvalues: real(-2, -2), eigenvectors: null },
-  { name: "unstable star", J: [[3, 0], [0, 3]], type: "unstable-star", hyperbolic: true, stable: false,
-    eigenvalues: real(3, 3), eigenvectors: null },
+  {
+    name: "stable star",
+    J: [
+      [-2, 0],
+      [0, -2],
+    ],
+    type: "stable-star",
+    hyperbolic: true,
+    stable: true,
+    eigenvalues: real(-2, -2),
+    eigenvectors: null,
+  },
+  {
+    name: "unstable star",
+    J: [
+      [3, 0],
+      [0, 3],
+    ],
+    type: "unstable-star",
+    hyperbolic: true,
+    stable: false,
+    eigenvalues: real(3, 3),
+    eigenvectors: null,
+  },
   // a Jordan block: one eigenvector direction only (HSD 3rd ed., section 3.3)
-  { name: "stable degenerate node", J: [[-1, 1], [0, -1]], type: "stable-degenerate-node", hyperbolic: true, stable: true,
-    eigenvalues: real(-1, -1), eigenvectors: [[1, 0], [1, 0]] },
-  { name: "unstable degenerate node", J: [[2, 0], [1, 2]], type: "unstable-degenerate-node", hyperbolic: true, stable: false,
-    eigenvalues: real(2, 2), eigenvectors: [[0, 1], [0, 1]] },
+  {
+    name: "stable degenerate node",
+    J: [
+      [-1, 1],
+      [0, -1],
+    ],
+    type: "stable-degenerate-node",
+    hyperbolic: true,
+    stable: true,
+    eigenvalues: real(-1, -1),
+    eigenvectors: [
+      [1, 0],
+      [1, 0],
+    ],
+  },
+  {
+    name: "unstable degenerate node",
+    J: [
+      [2, 0],
+      [1, 2],
+    ],
+    type: "unstable-degenerate-node",
+    hyperbolic: true,
+    stable: false,
+    eigenvalues: real(2, 2),
+    eigenvectors: [
+      [0, 1],
+      [0, 1],
+    ],
+  },
   // a zero eigenvalue: x' = −x, y' = y² linearised at the origin
-  { name: "zero eigenvalue", J: [[-1, 0], [0, 0]], type: "non-hyperbolic", hyperbolic: false, stable: null,
-    eigenvalues: real(-1, 0), eigenvectors: [[1, 0], [0, 1]] },
+  {
+    name: "zero eigenvalue",
+    J: [
+      [-1, 0],
+      [0, 0],
+    ],
+    type: "non-hyperbolic",
+    hyperbolic: false,
+    stable: null,
+    eigenvalues: real(-1, 0),
+    eigenvectors: [
+      [1, 0],
+      [0, 1],
+    ],
+  },
   // singular but not diagonal: λ = 0, 5; (J − 5I)v = 0 gives v ∝ (1, 2), Jv = 0 gives v ∝ (2, −1)
-  { name: "zero eigenvalue (rank one)", J: [[1, 2], [2, 4]], type: "non-hyperbolic", hyperbolic: false, stable: null,
-    eigenvalues: real(0, 5), eigenvectors: [[2 / s5, -1 / s5], [1 / s5, 2 / s5]] },
+  {
+    name: "zero eigenvalue (rank one)",
+    J: [
+      [1, 2],
+      [2, 4],
+    ],
+    type: "non-hyperbolic",
+    hyperbolic: false,
+    stable: null,
+    eigenvalues: real(0, 5),
+    eigenvectors: [
+      [2 / s5, -1 / s5],
+      [1 / s5, 2 / s5],
+    ],
+  },
   // nilpotent: both eigenvalues zero
-  { name: "nilpotent", J: [[0, 1], [0, 0]], type: "non-hyperbolic", hyperbolic: false, stable: null,
-    eigenvalues: real(0, 0), eigenvectors: null },
+  {
+    name: "nilpotent",
+    J: [
+      [0, 1],
+      [0, 0],
+    ],
+    type: "non-hyperbolic",
+    hyperbolic: false,
+    stable: null,
+    eigenvalues: real(0, 0),
+    eigenvectors: null,
+  },
 ];
 
 describe("classifyEquilibrium on matrices of every type", () => {
@@ -135,17 +303,26 @@ describe("classifyEquilibrium on matrices of every type", () => {
   }
 
   it("classifyEquilibrium(zero matrix) is non-hyperbolic", () => {
-    const r = classifyEquilibrium([[0, 0], [0, 0]]);
+    const r = classifyEquilibrium([
+      [0, 0],
+      [0, 0],
+    ]);
     expect(r.type).toBe("non-hyperbolic");
     expect(r.stable).toBeNull();
     expectEigenvalues(r.eigenvalues, real(0, 0));
   });
 
   it("classifyEquilibrium returns a copy of its input as jacobian, so editing the result leaves J alone", () => {
-    const J: Matrix2 = [[0, 1], [6, 1]];
+    const J: Matrix2 = [
+      [0, 1],
+      [6, 1],
+    ];
     const r = classifyEquilibrium(J);
     r.jacobian[0][0] = 99;
-    expect(J).toEqual([[0, 1], [6, 1]]);
+    expect(J).toEqual([
+      [0, 1],
+      [6, 1],
+    ]);
   });
 });
 
@@ -156,7 +333,13 @@ describe("findEquilibria classifies linear systems at the origin", () => {
     { name: "stable focus", x: "-x + 2*y", y: "-2*x - y", type: "stable-focus", eigenvalues: pair(-1, 2) },
     { name: "center", x: "y", y: "-4*x", type: "center", eigenvalues: pair(0, 2) },
     { name: "unstable star", x: "3*x", y: "3*y", type: "unstable-star", eigenvalues: real(3, 3) },
-    { name: "stable degenerate node", x: "-x + y", y: "-y", type: "stable-degenerate-node", eigenvalues: real(-1, -1) },
+    {
+      name: "stable degenerate node",
+      x: "-x + y",
+      y: "-y",
+      type: "stable-degenerate-node",
+      eigenvalues: real(-1, -1),
+    },
     // x' = −x, y' = y²: an isolated equilibrium with a zero eigenvalue (a saddle-node)
     { name: "non-hyperbolic", x: "-x", y: "y^2", type: "non-hyperbolic", eigenvalues: real(-1, 0) },
   ];
@@ -178,7 +361,10 @@ describe("findEquilibria classifies linear systems at the origin", () => {
  * products (b·c) underflow in any 2 × 2 formula and are no Jacobian a model produces.
  */
 const entry = fc.integer({ min: -1_000_000, max: 1_000_000 }).map((k) => k / 100_000);
-const matrix = fc.tuple(entry, entry, entry, entry).map(([a, b, c, d]): Matrix2 => [[a, b], [c, d]]);
+const matrix = fc.tuple(entry, entry, entry, entry).map(([a, b, c, d]): Matrix2 => [
+  [a, b],
+  [c, d],
+]);
 
 describe("classifyEquilibrium eigenvalues against an independent solver (seeded random matrices)", () => {
   it("classifyEquilibrium eigenvalues equal mathjs eigs to 1e-10 of ‖J‖", () => {
@@ -188,7 +374,8 @@ describe("classifyEquilibrium eigenvalues against an independent solver (seeded 
         const ours = classifyEquilibrium(J).eigenvalues;
         const theirs = mathjsEigenvalues(J);
         const separation = Math.hypot(ours[0].re - ours[1].re, ours[0].im - ours[1].im);
-        const tol = separation > NEAR_REPEATED_SEPARATION * norm ? CROSS_CHECK_REL_TOL : NEAR_REPEATED_REL_TOL;
+        const tol =
+          separation > NEAR_REPEATED_SEPARATION * norm ? CROSS_CHECK_REL_TOL : NEAR_REPEATED_REL_TOL;
         expect(pairDistance(ours, theirs)).toBeLessThanOrEqual(tol * norm);
       }),
       { seed: SEED, numRuns: RUNS },
@@ -220,7 +407,10 @@ describe("classifyEquilibrium eigenvalues against an independent solver (seeded 
         const r = classifyEquilibrium(J);
         for (const [k, v] of r.eigenvectors.entries()) {
           const lambda = r.eigenvalues[k].re;
-          const residual = Math.hypot(J[0][0] * v[0] + J[0][1] * v[1] - lambda * v[0], J[1][0] * v[0] + J[1][1] * v[1] - lambda * v[1]);
+          const residual = Math.hypot(
+            J[0][0] * v[0] + J[0][1] * v[1] - lambda * v[0],
+            J[1][0] * v[0] + J[1][1] * v[1] - lambda * v[1],
+          );
           expect(residual).toBeLessThanOrEqual(INVARIANT_REL_TOL * Math.max(norm, Number.MIN_VALUE));
           if (norm > 0) expect(Math.abs(Math.hypot(v[0], v[1]) - 1)).toBeLessThanOrEqual(INVARIANT_REL_TOL);
         }
@@ -237,7 +427,10 @@ describe("classifyEquilibrium eigenvalues against an independent solver (seeded 
         const norm = frobenius(J);
         const theirs = mathjsEigenvalues(J);
         const maxRe = Math.max(theirs[0].re, theirs[1].re);
-        const minAbs = Math.min(Math.hypot(theirs[0].re, theirs[0].im), Math.hypot(theirs[1].re, theirs[1].im));
+        const minAbs = Math.min(
+          Math.hypot(theirs[0].re, theirs[0].im),
+          Math.hypot(theirs[1].re, theirs[1].im),
+        );
         // away from the borderline, where the type is decided with margin
         fc.pre(Math.abs(maxRe) > 1e-6 * norm && minAbs > 1e-6 * norm);
         const r = classifyEquilibrium(J);
@@ -259,7 +452,10 @@ describe("classifyEquilibrium is invariant under a change of units", () => {
         const r = classifyEquilibrium(J);
         fc.pre(Math.abs(r.discriminant) > 1e-6 * norm * norm);
         const s = 10 ** k;
-        const scaled: Matrix2 = [[J[0][0], J[0][1] / s], [J[1][0] * s, J[1][1]]];
+        const scaled: Matrix2 = [
+          [J[0][0], J[0][1] / s],
+          [J[1][0] * s, J[1][1]],
+        ];
         expect(classifyEquilibrium(scaled).type).toBe(r.type);
       }),
       { seed: SEED + 4, numRuns: RUNS },
@@ -268,7 +464,10 @@ describe("classifyEquilibrium is invariant under a change of units", () => {
 
   it("classifyEquilibrium keeps a stable focus when one state is in 1e5 units", () => {
     // the canonical focus [[−1, 2], [−2, −1]] with its second state rescaled by 1e-5
-    const r = classifyEquilibrium([[-1, 2e5], [-2e-5, -1]]);
+    const r = classifyEquilibrium([
+      [-1, 2e5],
+      [-2e-5, -1],
+    ]);
     expect(r.type).toBe("stable-focus");
     expectEigenvalues(r.eigenvalues, pair(-1, 2));
   });

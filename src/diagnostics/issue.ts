@@ -9,12 +9,45 @@ export interface SpecIssue {
   source?: { text: string; column: number; length?: number };
 }
 
-/** A numerical condition met during analysis (no convergence, escape, ...). Reported, not thrown. */
-export interface Diagnostic {
+/**
+ * A numerical condition met during analysis (no convergence, escape, ...). Reported, not thrown.
+ * Analysis records a code and the numbers and ids it concerns; report/words/diagnostics.ts words it.
+ */
+export type Diagnostic = {
   severity: "info" | "warning";
   stage: string;
-  message: string;
-}
+  /** Set when the condition was met while solving at one value of a continued parameter. */
+  at?: { parameter: string; value: number };
+} & DiagnosticDetail;
+
+export type DiagnosticDetail =
+  | { code: "undecided-trajectories"; data: { undecided: number; total: number; horizon: number } }
+  | {
+      code: "test-function-sign-change-not-located";
+      data: { event: string; branch: number; parameter: string; from: number; to: number };
+    }
+  | { code: "too-many-branches"; data: { parameter: string; maxBranches: number } }
+  | { code: "unclassified-branch-point"; data: { parameter: string; value: number } }
+  | {
+      code: "bound-crossing-is-transcritical";
+      data: { parameter: string; value: number; transcritical: number };
+    }
+  | {
+      code: "special-point-unverified";
+      data: { kind: string; parameter: string; value: number; residual: number; testResidual: number };
+    }
+  | { code: "no-capture-region"; data: { equilibrium: string } }
+  | { code: "small-regions-omitted"; data: { count: number; minFraction: number; fraction: number } }
+  | { code: "nullcline-absent"; data: { state: string } }
+  | { code: "nullcline-non-zeros-omitted"; data: { state: string; count: number } }
+  | {
+      code: "sign-change-off-equilibrium" | "sign-jump-on-nullcline";
+      data: { rate: string; nullcline: string; point: number[] };
+    }
+  | { code: "equilibrium-off-nullcline"; data: { equilibrium: string; nullcline: string } }
+  | { code: "too-many-equilibria"; data: { max: number } };
+
+export type DiagnosticCode = DiagnosticDetail["code"];
 
 /** Thrown only at stage boundaries to carry every collected spec issue to the CLI. */
 export class SpecError extends Error {

@@ -69,7 +69,8 @@ export function planBasins(
       diagnostics.push({
         severity: "warning",
         stage: "basins",
-        message: `no capture region could be verified for ${e.id}; its basin is reported as undecided`,
+        code: "no-capture-region",
+        data: { equilibrium: e.id },
       });
       continue;
     }

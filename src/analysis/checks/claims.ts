@@ -3,7 +3,7 @@ import type { ClaimSpec } from "../../spec/schema.js";
 import { withParameters } from "../../model/parameters.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
 import type { EquilibriumType } from "../phase/stability.js";
-import type { Fate } from "../flow/follow.js";
+import type { Fate, UndecidedReason } from "../flow/follow.js";
 import type { ScenarioResult } from "../flow/trajectories.js";
 import type { ParameterStudyResult } from "../parameters/study.js";
 import { classifyOutcome, type AttractorResult } from "../parameters/outcomes.js";
@@ -42,7 +42,7 @@ export type ClaimEvidence =
       trace: number;
       determinant: number;
     }
-  | { kind: "fate-undecided"; scenario: string; reason: string; t: number }
+  | { kind: "fate-undecided"; scenario: string; reason: UndecidedReason; t: number }
   | { kind: "fate-cycle"; scenario: string; cycle: string; t: number }
   /** The fate is of another kind than claimed ("expected"); target: its equilibrium or cycle, when it has one. */
   | {

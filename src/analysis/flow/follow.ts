@@ -40,7 +40,11 @@ export type Fate =
   | { kind: "cycle"; target: string; t: number }
   | { kind: "left-window"; t: number; point: Record<string, number>; edge: WindowEdge }
   | { kind: "blow-up"; t: number; point: Record<string, number> }
-  | { kind: "undecided"; t: number; reason: string };
+  | { kind: "undecided"; t: number; reason: UndecidedReason };
+
+/** Why a trajectory's fate stayed undecided; report/words/fates.ts words each code. */
+export type UndecidedReason =
+  "non-finite-rhs" | "step-limit" | "horizon" | "recurrent-candidate" | "no-periodic-orbit";
 
 export interface Recurrence {
   /** Equilibrium whose ray the trajectory keeps crossing. */
@@ -280,12 +284,12 @@ class TrajectoryFollower {
     if (exit) {
       this.fate = { kind: "left-window", t: exit.t, point: this.record(exit.point), edge: exit.edge };
     } else if (integration.status === "non-finite") {
-      this.fate = { kind: "undecided", t: integration.tEnd, reason: "the right-hand side became non-finite" };
+      this.fate = { kind: "undecided", t: integration.tEnd, reason: "non-finite-rhs" };
     } else if (integration.status === "step-limit") {
       this.fate = {
         kind: "undecided",
         t: integration.tEnd,
-        reason: "the integrator's step limit was reached",
+        reason: "step-limit",
       };
     } else {
       this.recurrence = findSlowRecurrence(this.rays);
@@ -293,7 +297,7 @@ class TrajectoryFollower {
         this.fate = {
           kind: "undecided",
           t: integration.tEnd,
-          reason: "no equilibrium or periodic orbit was reached by the horizon",
+          reason: "horizon",
         };
     }
   }
@@ -322,7 +326,7 @@ export function followTrajectory(
   const fate = follower.fate ?? {
     kind: "undecided",
     t: recurrence!.t,
-    reason: "recurrent: periodic-orbit candidate",
+    reason: "recurrent-candidate",
   };
   return { fate, recurrence, path: thinPath(follower.path, options.maxPathPoints), exit, steps, evaluations };
 }

@@ -8,6 +8,7 @@ import {
   type TrajectoryPath,
 } from "./follow.js";
 import { settleFate, type CycleRegistry } from "./trajectories.js";
+import type { UndecidedReason } from "./follow.js";
 import type { Box, WindowEdge } from "../numeric/window.js";
 import { MANIFOLD_MIN_STEPS, MANIFOLD_OFFSET } from "../constants.js";
 
@@ -17,7 +18,7 @@ export type SeparatrixFate =
   | { kind: "cycle"; target: string }
   | { kind: "left-window"; point: Record<string, number>; edge: WindowEdge }
   | { kind: "outside-window" }
-  | { kind: "undecided"; reason: string };
+  | { kind: "undecided"; reason: UndecidedReason | "blow-up" };
 
 export interface SeparatrixResult {
   saddle: string;

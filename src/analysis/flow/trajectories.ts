@@ -87,7 +87,7 @@ export function settleFate(ctx: FlowContext, follow: FollowResult, registry: Cyc
   return {
     kind: "undecided",
     t: follow.recurrence.t,
-    reason: "recurrent, but no periodic orbit could be solved for",
+    reason: "no-periodic-orbit",
   };
 }
 
@@ -289,7 +289,8 @@ export function integratePortrait(
     diagnostics.push({
       severity: "info",
       stage: "trajectories",
-      message: `${undecided} of ${out.length} portrait trajectories were undecided at the horizon (${horizon.toPrecision(3)})`,
+      code: "undecided-trajectories",
+      data: { undecided, total: out.length, horizon },
     });
   return out;
 }

@@ -281,7 +281,8 @@ export function findEquilibria(
     diagnostics.push({
       severity: "warning",
       stage: "equilibria",
-      message: `more than ${MAX_EQUILIBRIA} equilibria found: the model may have a curve of equilibria; only the first ${MAX_EQUILIBRIA} are listed`,
+      code: "too-many-equilibria",
+      data: { max: MAX_EQUILIBRIA },
     });
     found.length = MAX_EQUILIBRIA;
   }

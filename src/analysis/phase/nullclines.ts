@@ -151,7 +151,8 @@ function nullclineOf(s: Sampling, i: number, diagnostics: Diagnostic[]): Nullcli
     diagnostics.push({
       severity: "warning",
       stage: "nullclines",
-      message: `d${names[i]}/dt is zero or undefined at every grid point of the window: no ${names[i]}-nullcline is drawn`,
+      code: "nullcline-absent",
+      data: { state: names[i] },
     });
     return { state: names[i], scale, maxResidual: 0, lines: [], pieces: [] };
   }
@@ -167,7 +168,8 @@ function nullclineOf(s: Sampling, i: number, diagnostics: Diagnostic[]): Nullcli
     diagnostics.push({
       severity: "info",
       stage: "nullclines",
-      message: `${contoured.failed} grid-edge sign changes of d${names[i]}/dt are not zeros (a pole or a jump) and were left out of the ${names[i]}-nullcline`,
+      code: "nullcline-non-zeros-omitted",
+      data: { state: names[i], count: contoured.failed },
     });
   }
   const curves = [...lines.flatMap((l) => lineCurves(ev, i, l, axes, names)), ...contoured.curves]
@@ -211,18 +213,20 @@ function piecesOf(
       (p) => Math.abs(ev.f(p, i)) <= NULLCLINE_RESIDUAL_TOL * scale,
     );
   const onSignChange = (p: Point, kind: "zero" | "jump") => {
-    const at = `(${p.map((v) => +v.toPrecision(6)).join(", ")})`;
+    const data = { rate: names[j], nullcline: names[i], point: [...p] };
     diagnostics.push(
       kind === "zero"
         ? {
             severity: "warning",
             stage: "nullclines",
-            message: `d${names[j]}/dt changes sign on the ${names[i]}-nullcline near ${at}, where no equilibrium is listed`,
+            code: "sign-change-off-equilibrium",
+            data,
           }
         : {
             severity: "info",
             stage: "nullclines",
-            message: `d${names[j]}/dt jumps in sign (a pole or a gap in its domain) on the ${names[i]}-nullcline near ${at}`,
+            code: "sign-jump-on-nullcline",
+            data,
           },
     );
   };
@@ -255,7 +259,8 @@ function piecesOf(
       diagnostics.push({
         severity: "info",
         stage: "nullclines",
-        message: `equilibrium ${e.id} lies on no traced branch of the ${names[i]}-nullcline (an isolated zero or a tangency the grid cannot see)`,
+        code: "equilibrium-off-nullcline",
+        data: { equilibrium: e.id, nullcline: names[i] },
       });
     }
   return pieces;

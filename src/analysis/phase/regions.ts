@@ -228,7 +228,8 @@ export function findRegions(
     diagnostics.push({
       severity: "info",
       stage: "regions",
-      message: `${dropped} sign regions smaller than ${MIN_REGION_FRACTION} of the window (together ${+(droppedArea / total).toPrecision(3)} of it) are not listed`,
+      code: "small-regions-omitted",
+      data: { count: dropped, minFraction: MIN_REGION_FRACTION, fraction: droppedArea / total },
     });
   }
   regions.sort((p, q) => p.point[names[0]] - q.point[names[0]] || p.point[names[1]] - q.point[names[1]]);

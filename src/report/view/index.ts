@@ -1,7 +1,7 @@
 import type { NormalizedSpec } from "../../spec/types.js";
 import type { Results } from "../../analysis/types.js";
 import { formatDate, formatUnit } from "../format.js";
-import { STANDARD_CAUTIONS } from "../words/index.js";
+import { STANDARD_CAUTIONS, diagnosticWords } from "../words/index.js";
 import {
   numberFiguresInReadingOrder,
   type FigureView,
@@ -53,7 +53,7 @@ export function buildDossierView(
     basins: buildBasinsView(input),
     conditions: buildConditionsView(input),
     figures: { portrait, traceDeterminant },
-    diagnostics: results.diagnostics,
+    diagnostics: results.diagnostics.map((d) => ({ stage: d.stage, message: diagnosticWords(d) })),
     methods: buildMethodsView(input),
     cautions: [...STANDARD_CAUTIONS, ...spec.cautions],
     unitOf: Object.fromEntries(spec.states.map((s) => [s.name, formatUnit(s.unit)])),

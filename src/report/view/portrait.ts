@@ -1,7 +1,7 @@
 import type { Results } from "../../analysis/types.js";
 import { nameToTex } from "../../model/tex.js";
 import { formatNumber, formatNumberHtml } from "../format.js";
-import { edgeWords, pointWords } from "../words/index.js";
+import { edgeWords, pointWords, undecidedReasonWords } from "../words/index.js";
 import { m, snapToZero, type ViewInput } from "./common.js";
 
 type SeparatrixEnd = Results["separatrices"][number]["fate"];
@@ -16,7 +16,7 @@ function separatrixEndWords(input: ViewInput, end: SeparatrixEnd): string {
     case "outside-window":
       return "points out of the window (not drawn)";
     default:
-      return `undecided: ${end.reason}`;
+      return `undecided: ${undecidedReasonWords(end.reason)}`;
   }
 }
 

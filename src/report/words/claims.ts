@@ -1,5 +1,6 @@
 import type { ClaimEvidence, ClaimReference, ClaimResult } from "../../analysis/checks/claims.js";
 import { attractorListWords } from "./outcomes.js";
+import { undecidedReasonWords } from "./fates.js";
 
 /** Evidence numbers: six significant digits, plain ASCII, so a reader can paste them back into a spec. */
 const fmt = (v: number) => String(Number(v.toPrecision(6)));
@@ -41,7 +42,7 @@ function fateEvidence(
 ): string {
   switch (e.kind) {
     case "fate-undecided":
-      return `the trajectory of ${e.scenario} is undecided: ${e.reason}`;
+      return `the trajectory of ${e.scenario} is undecided: ${undecidedReasonWords(e.reason)}`;
     case "fate-cycle":
       return `${e.scenario} settles on the periodic orbit ${e.cycle}`;
     case "fate-other": {

@@ -1,5 +1,5 @@
 import type { EquilibriumType } from "../../analysis/phase/stability.js";
-import type { Fate } from "../../analysis/flow/follow.js";
+import type { Fate, UndecidedReason } from "../../analysis/flow/follow.js";
 import type { Results } from "../../analysis/types.js";
 import type { WindowEdge } from "../../analysis/numeric/window.js";
 import { formatNumber } from "../format.js";
@@ -69,8 +69,22 @@ export function fateWords(fate: Fate, results: Results, timeUnit: string): strin
     case "blow-up":
       return `grows without bound (blow-up) by ${t(fate.t)}`;
     case "undecided":
-      return `undecided at ${t(fate.t)}: ${fate.reason}`;
+      return `undecided at ${t(fate.t)}: ${undecidedReasonWords(fate.reason)}`;
   }
+}
+
+const UNDECIDED_REASON_WORDS: Record<UndecidedReason | "blow-up", string> = {
+  "non-finite-rhs": "the right-hand side became non-finite",
+  "step-limit": "the integrator's step limit was reached",
+  horizon: "no equilibrium or periodic orbit was reached by the horizon",
+  "recurrent-candidate": "recurrent: periodic-orbit candidate",
+  "no-periodic-orbit": "recurrent, but no periodic orbit could be solved for",
+  "blow-up": "blow-up",
+};
+
+/** Why a fate stayed undecided, in the dossier's words. */
+export function undecidedReasonWords(reason: UndecidedReason | "blow-up"): string {
+  return UNDECIDED_REASON_WORDS[reason];
 }
 
 /** Standard cautions, printed in every dossier before the spec's own. */

@@ -1,6 +1,7 @@
-/** All dossier wording, as functions: fates and types, outcomes, deciding conditions, claims, methods. */
+/** All dossier wording, as functions: fates and types, outcomes, deciding conditions, claims, methods, diagnostics. */
 export * from "./fates.js";
 export * from "./outcomes.js";
 export * from "./conditions.js";
 export * from "./claims.js";
 export * from "./methods.js";
+export * from "./diagnostics.js";

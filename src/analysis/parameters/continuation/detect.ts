@@ -164,7 +164,8 @@ export function locateEvents(
       diagnostics.push({
         severity: "warning",
         stage: "continuation",
-        message: `a sign change of the ${bracket.kind} test function on branch ${branchIndex} between ${name} = ${a.z[2]} and ${b.z[2]} could not be located`,
+        code: "test-function-sign-change-not-located",
+        data: { event: bracket.kind, branch: branchIndex, parameter: name, from: a.z[2], to: b.z[2] },
       });
       continue;
     }

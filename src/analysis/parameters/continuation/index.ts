@@ -104,11 +104,7 @@ function collectSeeds(
       seeds.push(Float64Array.from([e.point[model.stateNames[0]], e.point[model.stateNames[1]], v]));
     }
     for (const d of local)
-      diagnostics.push({
-        ...d,
-        stage: "continuation",
-        message: `at ${model.parameterNames[j]} = ${v}: ${d.message}`,
-      });
+      diagnostics.push({ ...d, stage: "continuation", at: { parameter: model.parameterNames[j], value: v } });
   }
   return seeds;
 }
@@ -176,7 +172,8 @@ export function continueEquilibria(
     diagnostics.push({
       severity: "warning",
       stage: "continuation",
-      message: `more than ${opts.maxBranches} branches of equilibria in ${parameter}: only the first ${opts.maxBranches} were traced`,
+      code: "too-many-branches",
+      data: { parameter, maxBranches: opts.maxBranches },
     });
   }
 

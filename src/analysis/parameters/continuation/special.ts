@@ -123,7 +123,8 @@ function classify(
       diagnostics.push({
         severity: "warning",
         stage: "continuation",
-        message: `a branch point at ${name} = ${event.z[2]} is neither on a bound of the feasible region nor a crossing of two branches (perhaps a pitchfork); it is not reported as a threshold`,
+        code: "unclassified-branch-point",
+        data: { parameter: name, value: event.z[2] },
       });
       return null;
     }
@@ -191,7 +192,8 @@ function dropTwinCrossings(
       diagnostics.push({
         severity: "info",
         stage: "continuation",
-        message: `the unverified bound crossing at ${parameter} = ${r.value} is the transcritical at ${twin.value}, seen from the crossing branch`,
+        code: "bound-crossing-is-transcritical",
+        data: { parameter, value: r.value, transcritical: twin.value },
       });
     return !twin;
   });
@@ -240,7 +242,14 @@ export function buildSpecialPoints(
       diagnostics.push({
         severity: "warning",
         stage: "continuation",
-        message: `the ${best.kind} at ${parameter} = ${event.z[2]} did not verify (residual ${event.residual}, test function ${event.testResidual})`,
+        code: "special-point-unverified",
+        data: {
+          kind: best.kind,
+          parameter,
+          value: event.z[2],
+          residual: event.residual,
+          testResidual: event.testResidual,
+        },
       });
     }
     const bound = best.bound;

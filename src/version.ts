@@ -6,4 +6,4 @@ export const KEEL_VERSION = "0.1.0";
  * renamed, moved or removed, or changes meaning, so a reader can tell which shape it holds.
  * schema/keel-results.schema.json (npm run schema:results) describes the current one.
  */
-export const RESULTS_FORMAT = 1;
+export const RESULTS_FORMAT = 2;

@@ -1,7 +1,8 @@
 import type { Model } from "../model/types.js";
 import type { Diagnostic } from "../diagnostics/issue.js";
 import { KEEL_VERSION, RESULTS_FORMAT } from "../version.js";
-import { findEquilibria, type EquilibriumOptions } from "./phase/equilibria.js";
+import { findEquilibriumCandidates, type EquilibriumOptions } from "./phase/equilibria.js";
+import { findSingularities } from "./phase/singularities.js";
 import { evaluateAssumptions } from "./checks/assumptions.js";
 import type { Results } from "./types.js";
 import { windowOf } from "./numeric/window.js";
@@ -41,6 +42,10 @@ import {
   DEFAULT_REGION_OPTIONS,
   DEFAULT_TRAJECTORY_OPTIONS,
   PORTRAIT_TIME_SCALES,
+  SINGULAR_GRID_INTERVALS,
+  SINGULAR_RAY_DIRECTIONS,
+  SINGULAR_RAY_RADII,
+  SINGULAR_ROOT_DISTANCE,
   TRAJECTORY_ABSOLUTE_TOL_OF_WIDTH,
   TRAJECTORY_RELATIVE_TOL,
 } from "./constants.js";
@@ -89,6 +94,12 @@ function modelSummary(model: Model): Results["model"] {
 function settingsOf(options: AnalysisOptions, portraitHorizon: number): Results["settings"] {
   return {
     equilibria: options.equilibria,
+    singularities: {
+      gridIntervals: SINGULAR_GRID_INTERVALS,
+      rayDirections: SINGULAR_RAY_DIRECTIONS,
+      rayRadii: [...SINGULAR_RAY_RADII],
+      rootDistance: SINGULAR_ROOT_DISTANCE,
+    },
     nullclines: options.nullclines,
     regions: options.regions,
     field: options.field,
@@ -130,6 +141,20 @@ function analyzeParameters(
   return { invasion, studies, maps };
 }
 
+/** Step 1: the equilibria, classified, and the singular points and lines, which the equilibrium search leaves out. */
+function analyzeEquilibria(
+  model: Model,
+  options: AnalysisOptions,
+  diagnostics: Diagnostic[],
+  progress?: ProgressReporter,
+): Pick<Results, "equilibria" | "singularities"> {
+  progress?.("equilibria", 0, 1);
+  const { equilibria, singular } = findEquilibriumCandidates(model, options.equilibria, diagnostics);
+  const singularities = findSingularities(model, singular);
+  progress?.("equilibria", 1, 1);
+  return { equilibria, singularities };
+}
+
 /** Steps 1–8 of the analysis: everything but the basin map, plus the basin map's plan. */
 function analyzeCore(
   model: Model,
@@ -137,21 +162,21 @@ function analyzeCore(
   progress?: ProgressReporter,
 ): { results: Omit<Results, "basins">; plan: BasinPlan } {
   const diagnostics: Diagnostic[] = [];
-  // 1. equilibria and their stability
-  progress?.("equilibria", 0, 1);
-  const equilibria = findEquilibria(model, options.equilibria, diagnostics);
-  progress?.("equilibria", 1, 1);
+  // 1. equilibria and their stability; singular points and lines (never classified)
+  const { equilibria, singularities } = analyzeEquilibria(model, options, diagnostics, progress);
 
   // 2. geometry of the portrait: nullclines, the regions they cut out, the direction field
   const nullclines = findNullclines(model, equilibria, options.nullclines, diagnostics);
   const regions = findRegions(model, nullclines, options.regions, diagnostics);
   const field = computeDirectionField(model, options.field);
 
-  // 3. scenario trajectories, 4. separatrices, 5. portrait trajectories (periodic orbits are solved as they are met)
+  // 3. scenario trajectories, 4. separatrices, 5. portrait trajectories (periodic orbits are found first by
+  // the section scan around each focus, and solved as trajectories meet others)
   const box = windowOf(model);
   const forward = buildFlowContext(model, equilibria, box, 1);
   const backward = buildFlowContext(model, equilibria, box, -1);
   const registry = new CycleRegistry(model, box);
+  registry.scanSections(equilibria);
   progress?.("trajectories", 0, 3);
   const scenarios = integrateScenarios(model, forward, registry, options.trajectories);
   progress?.("trajectories", 1, 3);
@@ -205,6 +230,7 @@ function analyzeCore(
     spec: { id: model.spec.id, sha256: model.spec.sha256 },
     model: modelSummary(model),
     equilibria,
+    singularities,
     nullclines,
     regions,
     field,

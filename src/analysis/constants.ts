@@ -3,7 +3,7 @@
  * their numbers from here; the dossier's methods section and `settings` in results.json restate
  * them from here. "Scaled" means window-scaled: each state divided by its window width.
  *
- * Sections: equilibria · classification · nullclines · regions and field · integration ·
+ * Sections: equilibria · singularities · classification · nullclines · regions and field · integration ·
  * flow and fates · capture regions · cycles · separatrices · basins · continuation ·
  * invasion · assumptions · parameters & checks (outcomes, studies, maps, claims).
  */
@@ -63,17 +63,74 @@ export const EDGE_BISECTION_MAX_ITERATIONS = 200;
 /** Intervals per side of the grid on which the component scales max |f_i| are sampled (25 × 25 nodes). */
 export const COMPONENT_SCALE_INTERVALS = 24;
 
+// ── singularities ───────────────────────────────────────────────────────────────────────────
+
+/**
+ * Intervals per side of the grid on which each singular factor (a denominator, a log/sqrt/power
+ * argument, a kink) is sampled for its zero set: 1/64 of the window per cell, finer than any
+ * feature a dossier figure resolves.
+ */
+export const SINGULAR_GRID_INTERVALS = 64;
+/** A factor counts as zero at a point when below this fraction of its largest value over the grid (rounding level of a grid node). */
+export const SINGULAR_ZERO_TOL = 1e-12;
+/**
+ * An equilibrium-search root within this scaled distance of a factor's zero (|g| / |∇g| in
+ * window units) is examined as a singular point. Roots are accepted at ROOT_RESIDUAL_TOL = 1e-9
+ * of the field's scale, so a search converging onto a singular point stops about that close to
+ * it; a hundred times that leaves margin, and a genuine equilibrium this close to a singular
+ * curve has no linearisation the grid or any figure could tell from the singular point's.
+ */
+export const SINGULAR_ROOT_DISTANCE = 1e-7;
+/** Directions of the rays from a singular point (every 22.5°, in window units); those leaving the window are dropped. */
+export const SINGULAR_RAY_DIRECTIONS = 16;
+/**
+ * The two scaled radii at which the field and the Jacobian are read along each ray. Their ratio,
+ * 1000, separates the cases cleanly: a 0/0 field of degree 1 shrinks by 1000, a pole grows by
+ * 1000 or more, a square-root Jacobian grows by √1000 ≈ 32, a smooth one changes by ~1e-3.
+ */
+export const SINGULAR_RAY_RADII = [1e-3, 1e-6] as const;
+/** Growth (or shrinking) by more than this factor between the two radii means unbounded (or tending to zero). */
+export const SINGULAR_GROWTH = 10;
+/**
+ * Jacobians read along different rays at the small radius agree when they differ by less than
+ * this fraction of their size (window-scaled): a smooth Jacobian varies by ~1e-6 over the radius.
+ */
+export const SINGULAR_JACOBIAN_SPREAD_TOL = 1e-3;
+/** Scaled offset to either side of a line, where kinks are confirmed by a jump of the Jacobian. */
+export const SINGULAR_SIDE_OFFSET = 1e-6;
+/** At most this many points are listed along a singular line (evenly thinned, in grid order). */
+export const SINGULAR_LINE_SAMPLES = 24;
+/** Bisection of a factor's sign change along a grid edge: adjacency of doubles stops it first. */
+export const SINGULAR_BISECTION_MAX_ITERATIONS = 200;
+
 // ── classification ──────────────────────────────────────────────────────────────────────────
 
 /**
- * Relative tolerance for calling trace, determinant or discriminant zero, against a scale for
+ * Relative tolerance for calling trace or determinant zero, against a scale for
  * each that a change of units (J → D J D⁻¹, D diagonal) leaves unchanged: the spectral radius ρ,
- * and the sizes of the terms that cancel (|a|, |d| for the trace; |ad|, |bc| for the determinant
- * and the discriminant). Entries are evaluated at a point polished to ~1e-13 relative, so
+ * and the sizes of the terms that cancel (|a|, |d| for the trace; |ad|, |bc| for the
+ * determinant). Entries are evaluated at a point polished to ~1e-13 relative, so
  * cancellation noise stays near 1e-12; 1e-8 leaves four digits of margin and sends a genuinely
  * borderline case to "non-hyperbolic" (or "center") rather than guessing a side.
  */
 export const CLASSIFY_REL_TOL = 1e-8;
+/**
+ * Node, focus, degenerate node and star are read in the states' scales (window widths, so that
+ * a change of units changes nothing): J̃ = S⁻¹ J S and its traceless part Ñ = J̃ − λI. J̃'s
+ * entries are good to ~1e-13 of ‖J̃‖ (a polished point), so the discriminant −4 det Ñ is good to
+ * 4‖Ñ‖·1e-13‖J̃‖ and ‖Ñ‖/|λ| to ~1e-13. Below this fraction (a hundred times that noise) the
+ * discriminant, against 4‖Ñ‖‖J̃‖, or ‖Ñ‖/|λ| is zero to the precision of J: the eigenvalue is
+ * repeated, or J − λI vanishes, and the boundary type (degenerate node, star) is reported.
+ */
+export const CLASSIFY_ROUNDING_TOL = 1e-11;
+/**
+ * A node/focus or degenerate-node/star call whose quantity lies within this of zero is reported
+ * as borderline, with its evidence. discriminant/trace² ≤ 1e-8 means the eigenvalues agree to
+ * 1e-4 of their size: a focus that turns once in 2π·10⁴ e-folds of decay, a node whose two rates
+ * no trajectory tells apart. ‖S⁻¹(J − λI)S‖/|λ| ≤ 1e-8: the Jordan coupling shears a trajectory
+ * by at most 1e-8 of the window per e-fold, far below anything drawn or compared.
+ */
+export const CLASSIFY_BORDERLINE_TOL = 1e-8;
 /** Eigenvector sign convention: a later component leads only when larger by more than rounding (relative to the norm). */
 export const EIGENVECTOR_LEAD_TOL = 1e-14;
 
@@ -153,10 +210,18 @@ export const MAX_STEP_OF_HORIZON = 1 / 64;
 export const TRAJECTORY_MAX_STEPS = 200_000;
 /** Halvings of a step to locate an event on the dense interpolant: 2^-60 of a step is below rounding. */
 export const EVENT_BISECTION_STEPS = 60;
+/**
+ * A step's dense output is sampled at this many even intervals to find an excursion past the
+ * feasible region's edge between two accepted steps (numeric/excursion.ts): a peak narrower than
+ * an eighth of a step, within one step, needs curvature the step control does not admit.
+ */
+export const EXCURSION_SAMPLES = 8;
+/** Golden-section reductions locating such a peak: 0.618^40 ≈ 4e-9 of two sample intervals. */
+export const EXCURSION_SEARCH_STEPS = 40;
 
 // ── flow and fates (rules in flow/rules.ts) ─────────────────────────────────────────────────
 
-/** Beyond this many window widths outside the window, growth is called a blow-up ... */
+/** Beyond this many window widths outside the feasible region, growth is called a blow-up ... */
 export const BLOWUP_WINDOWS = 1e6;
 /**
  * ... if it is also faster than exponential: the e-folding time |z|/|z'| (window-scaled) is below
@@ -165,7 +230,10 @@ export const BLOWUP_WINDOWS = 1e6;
  * finite-time blow-up, x ~ (t* − t)^−p, the e-folding time (t* − t)/p shrinks to nothing.
  */
 export const BLOWUP_EFOLDING_FRACTION = 1e-2;
-/** A state may overshoot the window by this fraction of its width before it has left. */
+/**
+ * A state may overshoot the feasible region (its min/max) by this fraction of the window's width
+ * before it has left: rounding, not a tolerance of the model.
+ */
 export const WINDOW_EXIT_SLACK = 1e-9;
 /** Saddle capture: within this scaled distance ... */
 export const SADDLE_NEAR = 1e-3;
@@ -222,19 +290,47 @@ export const SHOOT_RESIDUAL_TOL = 1e-11;
 export const SHOOT_MAX_ITERATIONS = 40;
 /** A solved orbit is accepted when its residual is within this factor of SHOOT_RESIDUAL_TOL (the secant may stop one step short). */
 export const SHOOT_ACCEPT_FACTOR = 1e3;
+/** ... that is, when |P(r) − r| is below this (scaled): the shooting converged. */
+export const SHOOT_ACCEPT_TOL = SHOOT_ACCEPT_FACTOR * SHOOT_RESIDUAL_TOL;
+/**
+ * A periodic orbit must be larger than an equilibrium's neighbourhood: its fixed point on the
+ * section farther from the equilibrium, and its extent wider (scaled, in some state), than this
+ * multiple of DEDUP_REL_TOL, the distance below which two equilibria are one. A spiral into a
+ * focus hands the shooting a return map whose only fixed point is the focus itself (r → 0).
+ */
+export const CYCLE_MIN_EXTENT_OF_DEDUP = 100;
+export const CYCLE_MIN_EXTENT = CYCLE_MIN_EXTENT_OF_DEDUP * DEDUP_REL_TOL;
+/**
+ * The Floquet multiplier (trace quadrature, ~1e-10) and the return map's slope (central
+ * differences at RETURN_SLOPE_OFFSET on returns good to ~1e-12: ~1e-6) must agree to this,
+ * relative to max(1, multiplier) in the direction integrated. At a false fixed point (a focus:
+ * the multiplier is the slope squared) they differ by the damping per turn.
+ */
+export const MULTIPLIER_AGREEMENT_TOL = 1e-4;
 /** Relative offset of the second secant start: far above rounding, far below the distance to another orbit. */
 export const SHOOT_SECANT_OFFSET = 1e-5;
 /** Each return is integrated for at most this many guessed periods ... */
 export const SHOOT_PERIODS = 3;
 /** ... in steps of at most this fraction of the guessed period, at most SHOOT_MAX_STEPS of them ... */
 export const SHOOT_MAX_STEP_OF_PERIOD = 1 / 16;
+/**
+ * ... or of this fraction, where a return only samples the return map (the section scan, capture
+ * probes): the error control sets the steps, and a quarter period still puts the crossings of
+ * the two senses in different steps on any orbit that crosses each sense once a period half a
+ * period apart; a missed crossing costs one more period, and P∘P − r has the sign of P − r.
+ */
+export const SHOOT_SAMPLE_MAX_STEP_OF_PERIOD = 1 / 4;
 export const SHOOT_MAX_STEPS = 100_000;
 /** ... and given up when the orbit strays more than this many window widths outside the window. */
 export const SHOOT_ESCAPE_WINDOWS = 1;
 /** Halvings locating the section crossing on the interpolant before the final secant step. */
 export const SECTION_BISECTION_STEPS = 80;
-/** |m − 1| below this: the multiplier alone cannot tell stable from unstable. */
-export const NEUTRAL_MULTIPLIER_TOL = 1e-6;
+/**
+ * |m − 1| below this: the multiplier alone cannot tell stable from unstable. The trace quadrature
+ * is integrated to SHOOT_RELATIVE_TOL (absolute), so m is good to ~1e-10; 1e-8 leaves two digits,
+ * and a cycle 1e-7 (relative) past a supercritical Hopf point (m ≈ 1 − 4πμ/ω) is still told stable.
+ */
+export const NEUTRAL_MULTIPLIER_TOL = 1e-8;
 /** Offset (scaled) of the central difference for the return map's slope: the cross-check of the multiplier. */
 export const RETURN_SLOPE_OFFSET = 1e-6;
 /** Return-map offsets (scaled) used to tell a family of closed orbits from a semi-stable orbit. */
@@ -243,6 +339,30 @@ export const FAMILY_PROBE = 1e-3;
 export const MIN_RETURN_FRACTION = 0.2;
 /** Points stored per orbit, evenly in time: enough to draw it smoothly. */
 export const ORBIT_SAMPLES = 240;
+/**
+ * A solved cycle's capture on its section is probed at offsets from its fixed point growing
+ * geometrically (doubling) from this fraction of its radius, until a probe fails: ten or so
+ * returns per side.
+ */
+export const CYCLE_CAPTURE_FIRST_OFFSET = 1 / 64;
+/** Halvings that place the edge of a family of closed orbits between its last passing and first failing probe: 2^-16 of the gap. */
+export const FAMILY_EDGE_BISECTIONS = 16;
+/**
+ * A trajectory still undecided at its horizon (or recurring without being a periodic orbit) is
+ * followed on, each stretch twice the last, this many times: to 2^4 = 16 horizons in all. A spiral
+ * into a weakly damped focus takes ln(r0 / r_capture) / |Re λ|, which a scenario's horizon often
+ * falls short of by a few times; a known cycle ends it as soon as it crosses the cycle's capture.
+ */
+export const FATE_HORIZON_DOUBLINGS = 4;
+/** ... within this many accepted steps over all the extensions together (one trajectory's worth). */
+export const FATE_EXTENSION_MAX_STEPS = TRAJECTORY_MAX_STEPS;
+/**
+ * The section scan samples each focus's return map at radii growing by this factor (from
+ * CYCLE_MIN_EXTENT to the window's edge, about 13 returns): two cycles nested closer than that
+ * share a bracket and are left to the trajectories. The scan runs at every outcome point of the
+ * parameter studies and maps, hundreds of times.
+ */
+export const CYCLE_SCAN_RATIO = 2;
 /** Two solved orbits are one when their periods agree to this, relatively ... */
 export const SAME_CYCLE_PERIOD_TOL = 1e-6;
 /** ... and their extents to this fraction of the window. */
@@ -271,10 +391,13 @@ export const DEFAULT_BASIN_OPTIONS: BasinOptions = {
  */
 export const BASIN_RELATIVE_TOL = 1e-7;
 export const BASIN_ABSOLUTE_TOL_OF_WIDTH = 1e-9;
-/** A crossing of a stable cycle's section this close (scaled) to its fixed point, twice and closing in, labels the cycle. */
+/**
+ * A stable cycle with no capture probed on its section (CycleResult.capture null) still labels a
+ * basin start whose crossing of its section lies this close (scaled) to its fixed point: the
+ * multiplier (< 1) makes the return map contract there, and 1e-3 is far inside the reach of its
+ * linear part for any cycle larger than CYCLE_MIN_EXTENT (never more than half the radius).
+ */
 export const CYCLE_CAPTURE_RADIUS = 1e-3;
-/** Crossings that close in on the cycle needed to label it. */
-export const CYCLE_CAPTURE_HITS = 2;
 /** The kernel's first step, as a fraction of the shorter of the horizon and the flow's time scale. */
 export const BASIN_INITIAL_STEP_OF_TIMESCALE = 1e-3;
 /** Accepted steps per basin trajectory (as TRAJECTORY_MAX_STEPS). */
@@ -328,6 +451,12 @@ export const SWITCH_OFFSET = 1e-2;
 export const CORRECTOR_STEP_TOL = 1e-11;
 /** A corrector step longer than this (scaled) has left the basin of the branch being followed. */
 export const CORRECTOR_MAX_JUMP = 0.5;
+/**
+ * Where the corrector's matrix is singular (at a branch point itself, hit exactly by an
+ * interpolated trial point on a straight branch), a point whose scaled residual is this small is
+ * an equilibrium to rounding: a few hundred ulps of the terms, far below ROOT_RESIDUAL_TOL.
+ */
+export const CORRECTOR_ROUNDING_RESIDUAL = 1e-13;
 /** Rows of [J | f_p] this close to parallel (|r0 × r1| / (|r0||r1|)) leave no unique tangent. */
 export const RANK_TOL = 1e-10;
 /** A unit tangent whose parameter component is below this is vertical in p: its orientation comes from its largest component. */
@@ -350,8 +479,27 @@ export const SIDE_OFFSET = 1e-5;
  * stays near 1e-12 of the terms; 1e-8 keeps four digits of margin (as CLASSIFY_REL_TOL).
  */
 export const LYAPUNOV_REL_TOL = 1e-8;
+/**
+ * The branch of cycles born at a Hopf point (parameters/cycle-branch.ts): its first orbit is
+ * sought this fraction of the range from the Hopf value (the amplitude grows as the square root of
+ * the distance, so the orbit is already well above an equilibrium's neighbourhood there), then
+ * one orbit every CYCLE_BRANCH_STEP of the range (40 across it: a smooth amplitude curve), at most
+ * CYCLE_BRANCH_MAX_POINTS of them.
+ */
+export const CYCLE_BRANCH_FIRST_OFFSET = 2e-3;
+export const CYCLE_BRANCH_STEP = 1 / 40;
+export const CYCLE_BRANCH_MAX_POINTS = 41;
+/** Scaled radii the first orbit's shooting starts from, smallest first (later orbits start from the previous one). */
+export const CYCLE_BRANCH_RADII = [0.02, 0.05, 0.1, 0.2];
 /** A point within this fraction of the window width of a state bound lies on it (covers location near a branch point, ~1e-8). */
 export const BOUND_CONTACT_TOL = 1e-7;
+/**
+ * A branch crosses a bound only transversally: the component of its unit (scaled) tangent across
+ * the bound must be at least this at the crossing. A branch lying on the bound (an invariant axis,
+ * with corrector noise of 1e-40 about it) has a component at rounding level; one that truly
+ * crosses has a component of the order of its slope, far above this.
+ */
+export const BOUND_TRANSVERSAL_TOL = 1e-6;
 /**
  * Two located points are one threshold when they agree to this (scaled) in every coordinate. On
  * a branch crossing another, the corrector stops converging near the crossing, so what that
@@ -394,32 +542,62 @@ export const FLIP_SAMPLES = 400;
 export const FLIP_BISECTION_MAX_ITERATIONS = 200;
 /** A condition's flip coincides with a located threshold when they agree to this, relatively. */
 export const ASSUMPTION_MATCH_TOL = 1e-6;
-/** Denominator floor of a relative difference: the smallest normal double's order, so a flip at 0 gives a finite number. */
-export const RELATIVE_DENOMINATOR_FLOOR = 1e-300;
 
 // ── parameters & checks (outcomes, studies, maps, claims) ───────────────────────────────────
 
-/** Outcome sampling searches equilibria on a coarser interior grid than the main search (8 × 8): outcomes are sampled hundreds of times. */
-export const OUTCOME_GRID_SIZE = 8;
-/** ... but the edges as finely as the main search, so boundary equilibria (one population absent) are not missed. */
-export const OUTCOME_EDGE_SAMPLES = EQUILIBRIUM_EDGE_SAMPLES;
-/** Path points a scenario keeps while its outcome is decided: only the end and a late point are read. */
+// An outcome away from the nominal values is decided exactly as the nominal one (the main
+// equilibrium search, the fate rules, the scenarios' horizons): a coarser search or a looser rule
+// there puts breaks where none are.
+
+/** Path points a scenario keeps while its outcome is decided: the fate is read, not the path. */
 export const OUTCOME_PATH_POINTS = 16;
 /**
- * An undecided trajectory ending this close (scaled) to a stable equilibrium, or closer to it at
- * the horizon than at SLOW_ARRIVAL_LATE_FRACTION of its path, is counted as arriving there: near
- * a threshold the approach slows down, and the outcome is still that equilibrium.
+ * Outcome samples across each range (OUTCOME_SAMPLES + 1 values, both ends included), besides the
+ * current value and the located thresholds' sides: catches changes no local bifurcation marks.
+ * Twelve missed fate switches a few percent of the range from a transcritical.
  */
-export const SLOW_ARRIVAL_DISTANCE = 0.02;
-export const SLOW_ARRIVAL_LATE_FRACTION = 0.75;
-/** Outcome samples across each range, besides the located thresholds: catches changes no local bifurcation marks. */
-export const OUTCOME_SAMPLES = 12;
-/** A break found by sampling is bisected to this fraction of the range. */
+export const OUTCOME_SAMPLES = 24;
+/**
+ * Gaps beside a change (a break, a decision limit, a threshold's sides) are halved and searched
+ * this many times, down to 1/16 of a sample interval: fate switches come in company (beside a
+ * transcritical, or one separatrix after another), and two in one gap cancel out.
+ */
+export const OUTCOME_REFINE_LEVELS = 4;
+/** A break found between samples is bisected on the outcome itself to this fraction of the range. */
 export const SWITCH_LOCATE_TOL = 1e-6;
+/**
+ * The outcome on each side of a located threshold is read at least this fraction of the range
+ * away from it: nearer, the linearisation does not decide (CLASSIFY_REL_TOL), and breaks are located no
+ * finer anyway. The current value this near a break sits on it.
+ */
+export const THRESHOLD_SIDE_OFFSET = SWITCH_LOCATE_TOL;
+/**
+ * ... and up to this many decades farther, until the next decade out confirms it: where two
+ * equilibria about to meet are within DEDUP_REL_TOL of the window they are one, and the outcome
+ * read there is neither side's (a transcritical on a wide window: 1e-6 of the range was not enough).
+ */
+export const THRESHOLD_SIDE_DECADES = 3;
+/**
+ * Outcome evaluations one study may spend on locating breaks; past it, the changes left are
+ * reported as unresolved (a limit, not a break) with a diagnostic. A study needs a few hundred.
+ */
+export const OUTCOME_EVALUATION_BUDGET = 4000;
+/**
+ * A break or claimed value within this fraction of the range from zero is at zero: a margin or a
+ * difference is then given in the parameter's unit, not as a percentage of a value that is zero
+ * to the location's accuracy.
+ */
+export const ZERO_VALUE_TOL = SWITCH_LOCATE_TOL;
+/**
+ * A claimed threshold value of zero has no relative difference: the claim's tolerance is read
+ * against this fraction of the parameter's range width instead (all of it: "within 1 %" of a
+ * threshold at zero means within 1 % of the range).
+ */
+export const CLAIM_ZERO_SCALE_OF_RANGE = 1;
 /** A numerical and a symbolic threshold are the same threshold when they agree to this, relatively. */
 export const SYMBOLIC_MATCH_TOL = 1e-6;
-/** Smallest magnitude a symbolic threshold is divided by in that test: keeps it finite at 0. */
-export const SYMBOLIC_MATCH_FLOOR = 1e-300;
+/** ... or, for a symbolic threshold at zero, to this fraction of the range (ZERO_VALUE_TOL). */
+export const SYMBOLIC_MATCH_ZERO_TOL = ZERO_VALUE_TOL;
 /** Outcome-map grid points per parameter axis: enough to show the shape of each outcome region at a few seconds' cost. */
 export const MAP_RESOLUTION = 24;
 /** condition-decides: sample points whose condition sides agree to this, relatively, are too close to call and skipped. */

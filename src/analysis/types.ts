@@ -1,6 +1,7 @@
 import type { Diagnostic } from "../diagnostics/issue.js";
 import type { RESULTS_FORMAT } from "../version.js";
 import type { EquilibriumResult } from "./phase/equilibria.js";
+import type { SingularityResult } from "./phase/singularities.js";
 import type { PortraitTrajectory, ScenarioResult } from "./flow/trajectories.js";
 import type { CycleResult } from "./flow/cycles.js";
 import type { SeparatrixResult } from "./flow/manifolds.js";
@@ -13,6 +14,12 @@ import type { InvasionConditionResult } from "./parameters/invasion.js";
 import type { OutcomeMapResult } from "./parameters/maps.js";
 
 export type { EquilibriumResult } from "./phase/equilibria.js";
+export type {
+  SingularityResult,
+  SingularityReason,
+  SingularFactorEvidence,
+  SingularRay,
+} from "./phase/singularities.js";
 export type { PortraitTrajectory, ScenarioResult } from "./flow/trajectories.js";
 export type { CycleResult } from "./flow/cycles.js";
 export type { SeparatrixResult, SeparatrixFate } from "./flow/manifolds.js";
@@ -68,6 +75,8 @@ export interface Results {
     jacobian: { text: string; tex: string }[][];
   };
   equilibria: EquilibriumResult[];
+  /** Where the field or its Jacobian is not defined or not continuous: points and lines, with evidence, never a type. */
+  singularities: SingularityResult[];
   nullclines: NullclineResult[];
   regions: RegionResult[];
   field: DirectionFieldResult;

@@ -45,7 +45,8 @@ export type DiagnosticDetail =
       data: { rate: string; nullcline: string; point: number[] };
     }
   | { code: "equilibrium-off-nullcline"; data: { equilibrium: string; nullcline: string } }
-  | { code: "too-many-equilibria"; data: { max: number } };
+  | { code: "too-many-equilibria"; data: { max: number } }
+  | { code: "outcome-search-budget"; data: { parameter: string; evaluations: number } };
 
 export type DiagnosticCode = DiagnosticDetail["code"];
 

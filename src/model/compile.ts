@@ -3,35 +3,18 @@ import type { Parsed, SpecIssue } from "../diagnostics/issue.js";
 import type { NormalizedSpec } from "../spec/types.js";
 import { buildNameTable, parseCondition, parseExpression } from "./expressions.js";
 import { differentiate } from "./derivatives.js";
-import { emitBody, emitExpression, PRELUDE, type CodegenOptions } from "./codegen.js";
+import { emitBody, emitExpression, type CodegenOptions } from "./codegen.js";
+import { instantiate, instantiateParametric, instantiateRhs } from "./instantiate.js";
+import { findSingularFactors } from "./factors.js";
 import { expressionToTex, expressionToText, nameToTex } from "./tex.js";
-import type {
-  CompiledCondition,
-  CompiledExpression,
-  GeneratedSource,
-  Model,
-  ParametricRhsFunction,
-  RhsFunction,
-} from "./types.js";
+import type { CompiledCondition, CompiledExpression, GeneratedSource, Model } from "./types.js";
+
+export { instantiateParametric, instantiateRhs };
 
 const COMPARISON_TEX = { "<": "<", "<=": "\\le", ">": ">", ">=": "\\ge" } as const;
 
 function body(nodes: MathNode[], options: CodegenOptions): string {
   return emitBody(nodes, 2, options);
-}
-
-/** Builds a function from generated source. Source comes only from whitelisted trees, never user text. */
-function instantiate<F>(params: string[], source: string): F {
-  // eslint-disable-next-line no-new-func -- the source is generated from whitelisted trees (codegen.ts)
-  return new Function(`${PRELUDE}\nreturn function (${params.join(", ")}) {\n${source}\n};`)() as F;
-}
-
-export function instantiateRhs(source: string): RhsFunction {
-  return instantiate<RhsFunction>(["y", "out"], source);
-}
-
-export function instantiateParametric(source: string): ParametricRhsFunction {
-  return instantiate<ParametricRhsFunction>(["y", "p", "out"], source);
 }
 
 type ParsedCondition = { index: number; text: string; result: ReturnType<typeof parseCondition> };
@@ -139,6 +122,7 @@ export function compileModel(spec: NormalizedSpec): Parsed<Model> {
       jacobianAt: instantiateRhs(source.jacobian),
       rhsParametric: instantiateParametric(source.rhsParametric),
       jacobianParametric: instantiateParametric(source.jacobianParametric),
+      singularFactors: findSingularFactors(trees, describe),
       source,
     },
   };

@@ -207,6 +207,17 @@ function toInternal(root: MathNode, names: NameTable): MathNode {
   });
 }
 
+/**
+ * The text the expression parser reads: each `**` token becomes `^` and a space, so the parser
+ * sees its own power operator and every column (for its error carets) stays where it was.
+ */
+function parserText(text: string, tokens: Token[]): string {
+  let out = text;
+  for (const tok of tokens)
+    if (tok.text === "**") out = out.slice(0, tok.column - 1) + "^ " + out.slice(tok.column + 1);
+  return out;
+}
+
 /** Parses one expression of the whitelisted grammar into an internal-symbol tree. */
 export function parseExpression(
   text: string,
@@ -222,7 +233,7 @@ export function parseExpression(
   if (tokenProblem) return tokenProblem;
   let root: MathNode;
   try {
-    root = parse(text);
+    root = parse(parserText(text, lexed.tokens));
   } catch (err) {
     const e = err as Error & { char?: number };
     const detail = e.message.replace(/\s*\(char \d+\)\s*$/, "");

@@ -40,6 +40,12 @@ export function lexExpression(text: string, allowComparison: boolean): LexResult
       i += name[0].length;
       continue;
     }
+    if (ch === "*" && rest[1] === "*") {
+      // `**` is a power, as in many programming languages; parseExpression hands the parser `^`
+      tokens.push({ kind: "op", text: "**", column });
+      i += 2;
+      continue;
+    }
     if ("+-*/^".includes(ch)) tokens.push({ kind: "op", text: ch, column });
     else if (ch === "(") tokens.push({ kind: "lparen", text: ch, column });
     else if (ch === ")") tokens.push({ kind: "rparen", text: ch, column });

@@ -1,6 +1,7 @@
 import type { MathNode } from "mathjs";
 import type { NormalizedSpec } from "../spec/types.js";
 import type { Comparison } from "./expressions.js";
+import type { SingularFactor } from "./factors.js";
 
 /** Right-hand side with parameters bound: writes f(y) into out. No allocation. */
 export type RhsFunction = (y: ArrayLike<number>, out: Float64Array) => void;
@@ -57,5 +58,7 @@ export interface Model {
   jacobianAt: RhsFunction;
   rhsParametric: ParametricRhsFunction;
   jacobianParametric: ParametricRhsFunction;
+  /** Where the field or its Jacobian may be undefined: denominators, log/sqrt/power arguments, kinks (factors.ts). */
+  singularFactors: SingularFactor[];
   source: GeneratedSource;
 }

@@ -98,11 +98,12 @@ const RESERVED = new Set<string>([
   "not",
   "xor",
   "end",
+  // `i` (mathjs's imaginary unit) and `E` are free: user names become internal symbols straight
+  // after parsing, so the parser's constants never meet them, and trades use both (an infected
+  // or infective class i, an exposed class E); e and pi stay reserved, as a reader takes them for constants
   "e",
-  "E",
   "pi",
   "PI",
-  "i",
   "tau",
   "phi",
   "LN2",

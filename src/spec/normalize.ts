@@ -33,6 +33,7 @@ export function normalizeSpec(spec: KeelSpecInput, sha256: string): NormalizedSp
       unit: s.unit ?? "",
       min: s.min,
       max: s.max,
+      population: s.population ?? false,
     })),
     parameters: pick(spec.parameters, [], "parameters").map((p) => ({
       name: p.name,

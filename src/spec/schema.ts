@@ -22,6 +22,12 @@ export const StateSpecSchema = z
     unit: z.string().optional().describe("Unit of the state, e.g. 'fish' or 'g/m^2'."),
     min: finite().describe("Lower bound of the feasible region (a population is at least 0)."),
     max: finite().describe("Upper bound of the feasible region."),
+    population: z
+      .boolean()
+      .optional()
+      .describe(
+        "The state is a population (a count, biomass or density of living things). When every state is, the dossier names equilibria as populations: 'coexistence', 'N only', 'all absent'. Default false: neutral words ('all states positive', 'only N positive', 'the origin').",
+      ),
   })
   .describe("One state variable of the model.");
 
@@ -74,7 +80,7 @@ const presenceSchema = z
   .string()
   .min(1)
   .describe(
-    "Which populations the attractor keeps: 'coexistence' (all present), '<state> only' (e.g. 'S only'), or 'all absent'.",
+    "Which states the attractor keeps away from their lower bounds: 'coexistence' (all of them), '<state> only' (e.g. 'S only'), or 'all absent' (none), whether or not the states are populations.",
   );
 const claimBase = {
   id: z

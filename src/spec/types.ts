@@ -5,6 +5,8 @@ export interface NormalizedState {
   unit: string;
   min: number;
   max: number;
+  /** The spec declares the state a population (the dossier's presence words depend on it). */
+  population: boolean;
 }
 
 export interface NormalizedParameter {

@@ -10,6 +10,7 @@ import { prepareModel, runPipeline } from "../../src/pipeline.js";
 import { exampleField, exampleSpec as readExample } from "../fixtures/examples.js";
 import { fixtureSpec, type ModelFixture } from "../fixtures/models.js";
 import { seededUniform } from "../fixtures/random.js";
+import { runReference } from "../fixtures/scipy.js";
 import { referenceFate, rk4Step, type Field, type Point } from "../fixtures/reference-integrators.js";
 
 /**
@@ -579,6 +580,150 @@ describe("basin kernel on escapes, blow-ups and slow approaches, against closed 
           const p = cellCentre(box, n, i, j);
           expect(names[j * n + i], `cell (${p})`).toBe(expected(p[0]));
         }
+    });
+  }
+});
+
+// ---------------------------------------------------------------- a stable cycle beyond a Hopf point; the feasible region
+
+/**
+ * Prey with logistic growth and a predator with a saturating (Holling type II) response, the
+ * Rosenzweig–MacArthur model, with invented values. Its interior equilibrium N* = m/(a(b − m h))
+ * is unstable, with a stable limit cycle around it, when N* < (K − 1/(a h))/2 (the paradox of
+ * enrichment: Rosenzweig, Science 171 (1971) 385–387; the condition from memory): here
+ * N* ≈ 1.88 < 2, close enough to the Hopf point that the cycle attracts slowly (multiplier ≈ 0.4
+ * per period). The window is [0, 6] × [0, 4]; with bounds equal to it a trajectory that
+ * overshoots P = 4 has left, with the predator's bound at 4.1 it is followed on.
+ */
+const RM_PARAMETERS = { r: 1, K: 5, a: 1, h: 1, b: 0.5, m: 0.3265 };
+const RM_WINDOW: Record<string, [number, number]> = { N: [0, 6], P: [0, 4] };
+const RM_WIDE: Record<string, [number, number]> = { N: [0, 6], P: [0, 4.1] };
+const RM_EQUATIONS = { N: "r*N*(1 - N/K) - a*N*P/(1 + a*h*N)", P: "b*a*N*P/(1 + a*h*N) - m*P" };
+/** The same right-hand side typed out in Python syntax for the scipy reference. */
+const RM_PYTHON = ["r*N*(1 - N/K) - a*N*P/(1 + a*h*N)", "b*a*N*P/(1 + a*h*N) - m*P"];
+/** Seeded random starts in the window for the reference: a few hundred, as the basin fractions' check needs. */
+const RM_SAMPLES = 200;
+/**
+ * Two-sided 99.9 % normal quantile (common practice): a share estimated from RM_SAMPLES
+ * independent starts differs from the true one by more than this many standard errors once in
+ * a thousand runs.
+ */
+const SAMPLE_QUANTILE = 3.29;
+/** The reference's last three crossings of the section agree this closely (state units): settled on the cycle. */
+const SETTLED_TOL = 1e-7;
+/** Its settled crossing lies this close (scaled) to keel's C1 on the same section: the same cycle. */
+const SAME_CYCLE_CROSSING = 1e-5;
+
+interface BoxFate {
+  exits: ({ t: number; state: string; bound: "min" | "max" } | null)[];
+  settled: boolean;
+  crossing: number | null;
+}
+
+describe("basin map of a predator–prey cycle (Rosenzweig–MacArthur, invented values) against scipy", () => {
+  const configs = { window: RM_WINDOW, wide: RM_WIDE };
+  const runs: Record<string, { results: Results; kernel: BasinKernel }> = {};
+  let starts: Point[] = [];
+  let reference: BoxFate[] = [];
+  beforeAll(async () => {
+    for (const [name, bounds] of Object.entries(configs)) {
+      const fixture: ModelFixture = {
+        id: `rosenzweig-macarthur-${name}`,
+        equations: RM_EQUATIONS,
+        parameters: RM_PARAMETERS,
+        window: RM_WINDOW,
+        bounds,
+      };
+      runs[name] = await analyzeKeepingKernel(
+        withBasins(fixtureSpec(fixture), { resolution: 256, coarse: 32 }),
+      );
+    }
+    const box = boxOf(runs.window.results);
+    const uniform = seededUniform(0xb5a1);
+    starts = Array.from({ length: RM_SAMPLES }, () => [
+      box.lo[0] + uniform() * box.width[0],
+      box.lo[1] + uniform() * box.width[1],
+    ]);
+    const { r, K, a, h, b, m } = RM_PARAMETERS;
+    const nStar = m / (a * (b - m * h));
+    const pStar = (r * (1 - nStar / K) * (1 + a * h * nStar)) / a;
+    const cycle = runs.window.results.cycles[0];
+    reference = runReference<{ fates: BoxFate[] }>("box_fates.py", {
+      states: ["N", "P"],
+      rhs: RM_PYTHON,
+      parameters: RM_PARAMETERS,
+      boxes: [Object.values(RM_WINDOW), Object.values(RM_WIDE)],
+      starts,
+      horizon: 40 * cycle.period,
+      chunk: 2 * cycle.period,
+      maxStep: cycle.period / 40,
+      section: { center: [nStar, pStar], sense: cycle.section.sense },
+      settle: { crossings: 3, tol: SETTLED_TOL },
+    }).fates;
+  }, 600_000);
+
+  it("analyze(rosenzweig-macarthur).cycles has one stable cycle, attracting slowly, and the basin map labels it", () => {
+    for (const { results } of Object.values(runs)) {
+      expect(results.cycles.map((c) => c.stability)).toEqual(["stable"]);
+      const mu = results.cycles[0].floquetMultiplier;
+      expect(mu).toBeGreaterThan(0.2);
+      expect(mu).toBeLessThan(0.6);
+      expect(results.basins.attractors).toEqual(["C1"]);
+      expect(results.equilibria.map((e) => e.type)).toContain("unstable-focus");
+    }
+  });
+
+  for (const name of ["window", "wide"] as const) {
+    it(`analyze(rosenzweig-macarthur, bounds = ${name}).basins agrees with scipy's fates of ${RM_SAMPLES} random starts within errorBound`, () => {
+      const { results, kernel } = runs[name];
+      const box = boxOf(results);
+      const cycle = results.cycles[0];
+      const exitBox = name === "window" ? 0 : 1;
+      const expected = reference.map((f) => {
+        if (f.exits[exitBox]) return "left-window";
+        // bounds = window: a start that left the window has left; wide: it was followed on
+        if (!f.settled || f.crossing === null) return "undecided";
+        const gap = Math.abs(f.crossing - cycle.section.point.N) / box.width[0];
+        return gap < SAME_CYCLE_CROSSING ? "C1" : "another orbit";
+      });
+      const { n, names } = gridNames(results);
+      const kernelLabels = new Int32Array(RM_SAMPLES);
+      kernel(Float64Array.from(starts.flat()), kernelLabels);
+      let mapOff = 0,
+        kernelOff = 0,
+        leftWindowOnly = 0;
+      starts.forEach((p, k) => {
+        const i = Math.min(n - 1, Math.floor(((p[0] - box.lo[0]) / box.width[0]) * n));
+        const j = Math.min(n - 1, Math.floor(((p[1] - box.lo[1]) / box.width[1]) * n));
+        const uncertain = isMapBoundary(names, n, i, j) || names[j * n + i] === "undecided";
+        if (names[j * n + i] !== expected[k] && !uncertain) mapOff++;
+        if (labelName(kernelLabels[k], results.basins.attractors) !== expected[k] && !uncertain) kernelOff++;
+        if (reference[k].exits[0] && !reference[k].exits[1] && expected[k] === "C1") leftWindowOnly++;
+      });
+      const sample = fractionsOf(expected);
+      const b = results.basins;
+      const worst = Math.max(
+        ...["C1", "left-window", "undecided"].map((label) => {
+          const p = sample[label] ?? 0;
+          const allowed =
+            b.errorBound + SAMPLE_QUANTILE * Math.sqrt(Math.max(p * (1 - p), 1 / RM_SAMPLES) / RM_SAMPLES);
+          return Math.abs((b.fractions[label] ?? 0) - p) - allowed;
+        }),
+      );
+      console.info(
+        `rosenzweig-macarthur (bounds ${name}): map ${JSON.stringify(b.fractions)}, errorBound ${b.errorBound.toExponential(2)}; ` +
+          `scipy sample ${JSON.stringify(sample)}; ${mapOff} map and ${kernelOff} kernel labels differ off uncertain cells; ` +
+          `${leftWindowOnly} starts leave the window, stay feasible and end on C1`,
+      );
+      expect(expected).not.toContain("another orbit");
+      expect(expected).not.toContain("undecided");
+      expect(mapOff).toBeLessThanOrEqual(FRACTION_ALLOWANCE_CELLS);
+      expect(kernelOff).toBeLessThanOrEqual(FRACTION_ALLOWANCE_CELLS);
+      // each share within errorBound of the sample's, beyond the sample's own error
+      expect(worst).toBeLessThanOrEqual(0);
+      expect(b.fractions.undecided ?? 0).toBeLessThan(1e-3);
+      expect(b.fractions.C1).toBeGreaterThan(0.9);
+      if (name === "wide") expect(leftWindowOnly).toBeGreaterThan(0);
     });
   }
 });

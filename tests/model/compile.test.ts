@@ -194,3 +194,73 @@ describe("compileModel derivative rules (standard derivative table, common pract
     expect(f[1]).toBe(x / y / 2);
   });
 });
+
+describe("compileModel: trade names i and E, and ** as a power", () => {
+  const iE: Record<string, [number, number]> = { i: [-5, 5], E: [-5, 5] };
+  it("compileModel accepts states named S and I, and i and E (no complex numbers are involved)", () => {
+    // an SIR-type pair: S' = −b S I, I' = b S I − g I (Kermack–McKendrick form, common practice)
+    const sir = buildModel({
+      equations: { S: "-b*S*I", I: "b*S*I - g*I" },
+      window: { S: [0, 1], I: [0, 1] },
+      parameters: { b: 0.5, g: 0.1 },
+    });
+    const [S, I] = [0.75, 0.125];
+    expect(rhsAt(sir, [S, I])).toEqual([-0.5 * S * I, 0.5 * S * I - 0.1 * I]);
+    // a state literally named i, beside an exposed class E
+    const model = buildModel({ equations: { i: "-i^2 + E*i", E: "0.5*E^2 - i^3" }, window: iE });
+    const [x, y] = [0.75, -1.5];
+    expect(rhsAt(model, [x, y])).toEqual([-(x * x) + y * x, 0.5 * y * y - x * x * x]);
+    // J = [[−2i + E, i], [−3i², E]], derived by hand
+    expect(jacobianAt(model, [x, y])).toEqual([
+      [-2 * x + y, x],
+      [-3 * x * x, y],
+    ]);
+    expect(model.equations[0].text).toBe("-i ^ 2 + E * i");
+  });
+
+  it("compileModel reads ** as ^: the same numbers and the same Jacobian", () => {
+    const starred = buildModel({ equations: { i: "-i**2 + E*i", E: "0.5*E**2 - i**3" }, window: iE });
+    const caret = buildModel({ equations: { i: "-i^2 + E*i", E: "0.5*E^2 - i^3" }, window: iE });
+    for (const p of [
+      [0.75, -1.5],
+      [-2, 0.25],
+      [3, 4],
+    ]) {
+      expect(rhsAt(starred, p)).toEqual(rhsAt(caret, p));
+      expect(jacobianAt(starred, p)).toEqual(jacobianAt(caret, p));
+    }
+    expect(starred.equations.map((e) => e.text)).toEqual(caret.equations.map((e) => e.text));
+  });
+
+  it("compileModel gives ** the precedence of ^: -x**2 = -(x²), 2**3**x = 2^(3^x), x**-1 = 1/x", () => {
+    // the power binds tighter than a unary minus on its left and groups from the right (Python
+    // Language Reference, section 6.5 "The power operator"; from memory)
+    const model = buildModel({ equations: { x: "-x**2 + 2**3**x", y: "x**-1 + y ** 2" }, window: unit });
+    const [x, y] = [0.5, 4];
+    const f = rhsAt(model, [x, y]);
+    expect(Math.abs(f[0] - (-(x ** 2) + 2 ** (3 ** x)))).toBeLessThanOrEqual(EXACT_TOL);
+    expect(Math.abs(f[1] - (1 / x + y * y))).toBeLessThanOrEqual(EXACT_TOL);
+  });
+
+  // columns counted by hand from the literal text, 1-based
+  const carets: { text: string; code: string; column: number; length?: number }[] = [
+    { text: "x ** * 2", code: "syntax", column: 6 }, // the lone * after the power
+    { text: "x *** 2", code: "syntax", column: 5 }, // ** then *, so the third * has no left operand
+    { text: "x**", code: "ends_early", column: 4 },
+    { text: "x**y**", code: "ends_early", column: 7 },
+    { text: "2 x**2", code: "implicit_multiplication", column: 3 },
+  ];
+  for (const c of carets) {
+    it(`compileModel puts the caret of '${c.text}' at column ${c.column}`, () => {
+      const result = compileModel(buildSpec({ equations: { x: c.text, y: "-y" }, window: unit }));
+      expect(result.ok).toBe(false);
+      if (result.ok) return;
+      expect(result.issues).toHaveLength(1);
+      expect(result.issues[0]).toMatchObject({
+        code: c.code,
+        path: ["equations", "x"],
+        source: { column: c.column },
+      });
+    });
+  }
+});

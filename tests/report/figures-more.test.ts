@@ -8,7 +8,8 @@ import { buildFigures, type Figure } from "../../src/report/figures/index.js";
 import { BASIN_DRAW_MAX, buildBasinFigure, downsampleBasinGrid } from "../../src/report/figures/basins.js";
 import { branchPieces, buildBifurcationFigure, labelNumber } from "../../src/report/figures/bifurcation.js";
 import { outcomeLetter } from "../../src/report/figures/outcomeMap.js";
-import { outcomeWords } from "../../src/report/words/index.js";
+import { buildPortraitFigure } from "../../src/report/figures/portrait.js";
+import { outcomeWords, stateTerms } from "../../src/report/words/index.js";
 import {
   BRANCH_STYLES,
   EQUILIBRIUM_MARKERS,
@@ -493,13 +494,13 @@ describe("the outcome map", () => {
   });
 
   it("outcomeMap(example) keys outcomes by letter and spells each out in the caption", () => {
-    const { results } = runs.get("reservoir-competition")!;
+    const { results, spec } = runs.get("reservoir-competition")!;
     const map = results.conditions.maps[0];
     const f = figure("reservoir-competition", "outcome-map-a12-a21");
     const key = rowsOf(f, "key_text").map((r) => (r.text as string[]).join(" "));
     map.legend.forEach((outcome, k) => {
       expect(key).toContain(`outcome ${outcomeLetter(k)}`);
-      expect(f.caption).toContain(`${outcomeLetter(k)}, ${outcomeWords(outcome, results.model.states)}`);
+      expect(f.caption).toContain(`${outcomeLetter(k)}, ${outcomeWords(outcome, stateTerms(spec.states))}`);
     });
     expect(
       rowsOf(f, "letters")
@@ -546,5 +547,99 @@ describe("visual code of the maps and diagrams", () => {
     expect(new Set(Object.values(THRESHOLD_CURVE_STYLES).map((s) => JSON.stringify(s.strokeDash))).size).toBe(
       4,
     );
+  });
+});
+
+describe("figures agree with the results they draw", () => {
+  const asFigure = (spec: unknown): Figure => ({ id: "x", title: "", caption: "", spec }) as Figure;
+  const branchRows = (f: Figure, k: number) =>
+    ["stable", "unstable", "undecided"].flatMap((s) => rowsOf(f, `branches_${s}_${k}`));
+
+  it("bifurcation(reservoir-competition, a12) draws no part of the coexistence branch where its N is negative", () => {
+    // Competitive Lotka–Volterra (Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., §6.4; Murray,
+    // Mathematical Biology I, 3rd ed., §3.5): the coexistence point is ((K1 − a12 K2), (K2 − a21 K1)) /
+    // (1 − a12 a21); for a12 > K1/K2 its N is negative while its S = (K2 − a21 K1)/(1 − a12 a21) lies
+    // inside the S window. The other branches are (0, 0), (K1, 0) and (0, K2): S is 0 or K2 there.
+    const { results } = runs.get("reservoir-competition")!;
+    const p = results.model.parameters;
+    const f = figure("reservoir-competition", "bifurcation-a12");
+    const beyond = branchRows(f, 2).filter((r) => Number(r.x) > (p.K1 / p.K2) * (1 + 1e-6));
+    expect(beyond.length).toBeGreaterThan(0);
+    for (const r of beyond) {
+      const y = Number(r.y);
+      expect(Math.min(Math.abs(y), Math.abs(y - p.K2)) / p.K2, `S panel at a12 = ${r.x}`).toBeLessThan(1e-6);
+    }
+    for (const r of branchRows(f, 1)) expect(Number(r.y)).toBeGreaterThanOrEqual(0);
+  });
+
+  it("buildBifurcationFigure(a stable branch leaving N ≥ 0 at a12 = 0.55, window below the bound) draws it solid only up to 0.55", () => {
+    // A hand-made branch (not keel's output): N = 40000 (0.55 − a12), S = 30000, stable throughout; the
+    // window reaches N = −20000, below the state's bound N ≥ 0, so only the feasible-region cut hides it.
+    const { results, spec } = runs.get("reservoir-competition")!;
+    const study = results.conditions.studies.find((s) => s.parameter === "a12")!;
+    const values = Array.from({ length: 29 }, (_, k) => 0.2 + 0.025 * k);
+    const branch: BranchResult = {
+      index: 0,
+      seed: { value: values[0], point: { N: 40000 * 0.35, S: 30000 } },
+      ends: ["range", "range"],
+      points: values.map((v) => ({
+        value: v,
+        point: { N: 40000 * (0.55 - v), S: 30000 },
+        stable: true,
+        type: "stable-node",
+        trace: -1,
+        determinant: 1,
+      })),
+    };
+    const window: Results["model"]["window"] = { ...results.model.window, N: [-20000, 60000] };
+    const wide: Results = { ...results, model: { ...results.model, window } };
+    const f = asFigure(
+      buildBifurcationFigure(wide, spec, {
+        ...study,
+        thresholds: [],
+        continuation: { ...study.continuation, branches: [branch] },
+      }),
+    );
+    for (const k of [1, 2]) {
+      const solid = rowsOf(f, `branches_stable_${k}`);
+      expect(solid.length).toBeGreaterThan(2);
+      expect(Math.max(...solid.map((r) => Number(r.x)))).toBeCloseTo(0.55, 6);
+    }
+    const inN = rowsOf(f, "branches_stable_1").map((r) => Number(r.y));
+    expect(Math.min(...inN)).toBe(0);
+  });
+
+  it("buildPortraitFigure(a manifold that leaves the window and runs on outside) draws its curve, not chords between outside points", () => {
+    // A hand-made unstable manifold: 41 points on a quarter ellipse inside the window (≥ 5 px apart, so
+    // thinning keeps them all), one step leaving through the top edge S = 80000 at N = 30000, then two
+    // points far outside whose chords cut across the window.
+    const { results, spec } = runs.get("reservoir-competition")!;
+    const arc = Array.from({ length: 41 }, (_, k) => (Math.PI / 2) * (k / 40));
+    const x = [...arc.map((t) => 30000 + 20000 * Math.cos(t)), 30000, -50000, 120000];
+    const y = [...arc.map((t) => 40000 + 30000 * Math.sin(t)), 100000, 40000, 40000];
+    const separatrix = {
+      saddle: "E9",
+      manifold: "unstable" as const,
+      side: 1 as const,
+      start: { N: x[0], S: y[0] },
+      fate: {
+        kind: "left-window" as const,
+        point: { N: 30000, S: 80000 },
+        edge: { state: "S", value: 80000 },
+      },
+      path: { t: x.map((_, k) => k), x, y },
+    };
+    const f = asFigure(
+      buildPortraitFigure({
+        results: { ...results, separatrices: [separatrix] } as Results,
+        spec,
+        nullclines: null,
+        field: null,
+      }),
+    );
+    const rows = rowsOf(f, "unstable_manifolds");
+    expect(new Set(rows.map((r) => r.k)).size).toBe(1);
+    expect(rows).toHaveLength(42);
+    expect(rows.at(-1)).toMatchObject({ x: 30000, y: 80000 });
   });
 });

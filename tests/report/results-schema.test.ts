@@ -127,8 +127,9 @@ describe("results.json of fixture specs the suites compile", () => {
 });
 
 describe("results.json with non-finite numbers", () => {
-  // x' = −√x, y' = −y: the one equilibrium is the origin, where ∂(−√x)/∂x = −1/(2√x) is −∞
-  // (closed form), so serializeResults must write null there and list the path
+  // x' = −√x, y' = −y: the one root is the origin, where ∂(−√x)/∂x = −1/(2√x) is −∞ (closed
+  // form): a singular point, never classified, whose compiled Jacobian serializeResults must
+  // write as null there, listing the path
   const spec: JsonSpec = {
     keel: 1,
     id: "infinite-jacobian",
@@ -141,10 +142,11 @@ describe("results.json with non-finite numbers", () => {
     equations: { x: "-sqrt(x)", y: "-y" },
   };
 
-  it("lists equilibria[0].jacobian[0][0]: -Infinity under nonFinite, and validates", () => {
+  it("lists singularities[0].jacobian[0][0]: -Infinity under nonFinite, and validates", () => {
     const doc = resultsJsonOf(spec) as JsonSpec;
-    expect(doc.equilibria[0].jacobian[0][0]).toBeNull();
-    expect(doc.nonFinite).toContain("equilibria[0].jacobian[0][0]: -Infinity");
+    expect(doc.equilibria).toEqual([]);
+    expect(doc.singularities[0].jacobian[0][0]).toBeNull();
+    expect(doc.nonFinite).toContain("singularities[0].jacobian[0][0]: -Infinity");
     expect(errorsOf(doc)).toEqual([]);
   });
 });

@@ -2,7 +2,7 @@ import type { Model } from "../../model/types.js";
 import type { Diagnostic } from "../../diagnostics/issue.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
 import type { CycleResult } from "../flow/cycles.js";
-import type { Box } from "../numeric/window.js";
+import { boundsOf, type Box } from "../numeric/window.js";
 import { findCaptureRegions } from "../flow/capture.js";
 import { generateBasinKernel, type BasinTargets, type KernelSettings } from "./kernel.js";
 import {
@@ -11,6 +11,7 @@ import {
   BASIN_MAX_STEPS,
   BASIN_MAX_STEPS_OUTSIDE,
   BASIN_RELATIVE_TOL,
+  CYCLE_CAPTURE_RADIUS,
 } from "../constants.js";
 import {
   basinRefinement,
@@ -26,9 +27,13 @@ export type BasinOptions = BasinGridOptions;
 
 export interface BasinResult {
   attractors: string[];
-  /** Area fraction of the window per attractor id, and for left-window, blow-up, undecided. */
+  /** Area fraction of the window per attractor id, and for left-window (left the feasible region), blow-up, undecided. */
   fractions: Record<string, number>;
-  /** Largest error of any fraction from the finest cells whose label is uncertain (they border another label). */
+  /**
+   * Largest error of any fraction: the share of finest cells whose label is uncertain, those that
+   * border another label (each could belong to either side) and the undecided ones (each could
+   * belong to any). It does not count a feature no coarse cell centre samples (refine.ts).
+   */
   errorBound: number;
   resolution: number;
   coarse: number;
@@ -90,7 +95,12 @@ export function planBasins(
     const around = equilibria.find((e) => e.id === c.around)!;
     const center: [number, number] = [around.point[model.stateNames[0]], around.point[model.stateNames[1]]];
     const radius = (c.section.point[model.stateNames[0]] - center[0]) / box.width[0];
-    targets.cycles.push({ label: attractors.length, center, sense: c.section.sense, radius });
+    // the capture probed when the cycle was solved; else a neighbourhood its multiplier (< 1) makes attracting
+    const radii: [number, number] =
+      c.capture?.kind === "attracting"
+        ? c.capture.radii
+        : [radius - Math.min(CYCLE_CAPTURE_RADIUS, radius / 2), radius + CYCLE_CAPTURE_RADIUS];
+    targets.cycles.push({ label: attractors.length, center, sense: c.section.sense, radii });
     attractors.push(c.id);
   }
   const settings: KernelSettings = {
@@ -101,7 +111,8 @@ export function planBasins(
     maxSteps: BASIN_MAX_STEPS,
     maxStepsOutside: BASIN_MAX_STEPS_OUTSIDE,
   };
-  return { kernelSource: generateBasinKernel(model, box, targets, settings), targets, options, box };
+  const bounds = boundsOf(model);
+  return { kernelSource: generateBasinKernel(model, box, bounds, targets, settings), targets, options, box };
 }
 
 export function startRefinement(plan: BasinPlan) {
@@ -123,7 +134,7 @@ export function assembleBasinResult(plan: BasinPlan, grid: BasinGrid): BasinResu
   return {
     attractors,
     fractions,
-    errorBound: grid.boundaryCells / grid.labels.length,
+    errorBound: grid.uncertainCells / grid.labels.length,
     resolution: grid.resolution,
     coarse: plan.options.coarse,
     trajectories: grid.trajectories,

@@ -19,13 +19,16 @@ import {
   emitHasLeftWindow,
   emitIsBlowUp,
   emitIsFarOutside,
-  emitOutsideBy,
+  emitStepOutside,
+  KERNEL_HERMITE_HELPERS,
+  type CycleTarget,
 } from "../flow/rules.js";
 
 /**
  * The basin kernel: a Dormand–Prince 5(4) integrator generated for this model, with the
- * right-hand side inlined as straight-line scalar code (no arrays inside the step) and the
- * attractor tests of the fate rules (flow/rules.ts) inlined with their constants. Written by hand because the general integrators
+ * right-hand side inlined as straight-line scalar code (no arrays inside the step) and the fate
+ * rules (flow/rules.ts) inlined with their constants: starts lie in the window, trajectories are
+ * followed inside the feasible region. Written by hand because the general integrators
  * allocate per step and dominate the basin map's cost; it is validated against odex in tests.
  *
  * The generated function has the signature (starts: Float64Array, out: Int32Array) => number,
@@ -36,7 +39,7 @@ export interface BasinTargets {
   attractors: string[];
   sinks: { label: number; region: CaptureRegion }[];
   slowSinks: { label: number; center: [number, number] }[];
-  cycles: { label: number; center: [number, number]; sense: 1 | -1; radius: number }[];
+  cycles: CycleTarget[];
 }
 
 export interface KernelSettings {
@@ -85,24 +88,10 @@ function emitAttractorTests(
         ${emitAlgebraicStep(i, label)} }`,
     )
     .join("\n      ");
-  const cycleTests = targets.cycles
-    .map(
-      ({ label, center, sense, radius }, i) => `{
-        const before = yPrev - ${L(center[1])}, after = y - ${L(center[1])};
-        if (${sense === 1 ? "before < 0 && after >= 0" : "before > 0 && after <= 0"}) {
-          const w = before / (before - after);
-          const xc = xPrev + w * (x - xPrev);
-          const r = (xc - ${L(center[0])}) * ${L(1 / box.width[0])};
-          if (r > 0) {
-            ${emitCycleCapture(i, label, radius)}
-          }
-        } }`,
-    )
-    .join("\n      ");
-  const perStart = [
-    ...targets.slowSinks.map((_, i) => `let slowCount${i} = 0, slowLast${i} = Infinity;`),
-    ...targets.cycles.map((_, i) => `let cycleHits${i} = 0, cycleGap${i} = Infinity;`),
-  ].join(" ");
+  const cycleTests = targets.cycles.map((c) => emitCycleCapture(c, box.width)).join("\n      ");
+  const perStart = targets.slowSinks
+    .map((_, i) => `let slowCount${i} = 0, slowLast${i} = Infinity;`)
+    .join(" ");
   return { sinkTests, slowTests, cycleTests, perStart };
 }
 
@@ -136,9 +125,11 @@ function emitTrialStep(f0: string, f1: string, atol: [number, number], rtol: num
       const sb = eb / (${L(atol[1])} + ${L(rtol)} * Math.max(Math.abs(y), Math.abs(yn)));`;
 }
 
+/** The kernel's source for the attractors `targets`: starts in the window `box`, trajectories followed inside `bounds`. */
 export function generateBasinKernel(
   model: Model,
   box: Box,
+  bounds: Box,
   targets: BasinTargets,
   settings: KernelSettings,
 ): string {
@@ -153,6 +144,7 @@ export function generateBasinKernel(
   const rtol = settings.relativeTolerance;
   const maxStep = settings.horizon * MAX_STEP_OF_HORIZON;
   return `${PRELUDE}
+${KERNEL_HERMITE_HELPERS}
 return function basinKernel(starts, out) {
   let totalSteps = 0;
   const n = out.length;
@@ -174,12 +166,12 @@ return function basinKernel(starts, out) {
       const factor = err === 0 ? ${L(STEP_MAX_GROWTH)} : Math.min(${L(STEP_MAX_GROWTH)}, Math.max(${L(STEP_MIN_SHRINK)}, ${L(STEP_SAFETY)} * Math.exp(${L(STEP_ERROR_EXPONENT)} * Math.log(err))));
       if (err > 1) { h *= Math.min(1, factor); continue; }
       xPrev = x; yPrev = y;
-      const tPrev = t;
+      const tPrev = t, hs = h, f0a = k1a, f0b = k1b;
       t += h; x = xn; y = yn; k1a = k7a; k1b = k7b; steps++;
       h = Math.min(h * factor, ${L(maxStep)});
-      ${emitOutsideBy(box)}
+      ${emitStepOutside(bounds, box.width)}
       if (${emitHasLeftWindow("off")} && outside === 0) tExit = tPrev;
-      if (${emitIsFarOutside("off")}) {
+      if (${emitIsFarOutside("offEnd")}) {
         // as followTrajectory: a blow-up only if faster than exponential, else a plain exit
         const zx = x * ${L(1 / w0)}, zy = y * ${L(1 / w1)}, vx = k1a * ${L(1 / w0)}, vy = k1b * ${L(1 / w1)};
         const eFolding = Math.sqrt(zx * zx + zy * zy) / Math.sqrt(vx * vx + vy * vy);

@@ -1,5 +1,5 @@
 import type { Box } from "../numeric/window.js";
-import { labelName } from "./labels.js";
+import { labelName, LABEL_UNDECIDED } from "./labels.js";
 
 /** Labels a batch of starts (x0, y0, x1, y1, ...). Implementations may fan out to workers; labels depend only on each start. */
 export type BatchEvaluator = (starts: Float64Array) => Promise<Int32Array>;
@@ -19,6 +19,8 @@ export interface BasinGrid {
   trajectories: number;
   /** Finest-level cells next to a differently labelled cell: each could belong to either side. */
   boundaryCells: number;
+  /** Finest-level cells whose label is uncertain: boundary cells and undecided cells (each could belong to any label). */
+  uncertainCells: number;
 }
 
 /**
@@ -74,10 +76,15 @@ export function* basinRefinement(
     size = half;
     if (cells.length === 0) break;
   }
-  let boundaryCells = 0;
+  let boundaryCells = 0,
+    uncertainCells = 0;
   for (let j = 0; j < n; j++)
-    for (let i = 0; i < n; i++) if (touchesOtherLabel(labels, n, i, j, 1)) boundaryCells++;
-  return { resolution: n, labels, trajectories, boundaryCells };
+    for (let i = 0; i < n; i++) {
+      const boundary = touchesOtherLabel(labels, n, i, j, 1);
+      if (boundary) boundaryCells++;
+      if (boundary || labels[j * n + i] === LABEL_UNDECIDED) uncertainCells++;
+    }
+  return { resolution: n, labels, trajectories, boundaryCells, uncertainCells };
 }
 
 /** Whether the block [i0, i0+size) × [j0, j0+size) borders (8-neighbourhood) a cell with another label. */

@@ -5,7 +5,7 @@ import {
   ASSUMPTION_MATCH_TOL,
   FLIP_BISECTION_MAX_ITERATIONS,
   FLIP_SAMPLES,
-  RELATIVE_DENOMINATOR_FLOOR,
+  ZERO_VALUE_TOL,
 } from "../constants.js";
 
 /** Each assumption, with its machine-checkable condition evaluated at the nominal values. */
@@ -43,6 +43,7 @@ export interface AssumptionFlip {
   /** Where the condition changes truth, the other parameters at their nominal values. */
   value: number;
   nearestThreshold: { value: number; kind: string; decisive: boolean } | null;
+  /** |threshold − flip| / |flip|, or, for a flip at zero (within ZERO_VALUE_TOL of the range), over the range's width. */
   relativeDifference: number | null;
   /** The condition flips where a located threshold lies (to ASSUMPTION_MATCH_TOL). */
   coincides: boolean;
@@ -70,6 +71,7 @@ export function findAssumptionFlips(
         return r.lhs - r.rhs;
       };
       const [lo, hi] = study.range;
+      const zero = ZERO_VALUE_TOL * (hi - lo);
       let prevV = lo,
         prevG = g(lo);
       for (let k = 1; k <= FLIP_SAMPLES; k++) {
@@ -93,7 +95,7 @@ export function findAssumptionFlips(
             [...study.thresholds].sort((x, y) => Math.abs(x.value - value) - Math.abs(y.value - value))[0] ??
             null;
           const relativeDifference = nearest
-            ? Math.abs(nearest.value - value) / Math.max(Math.abs(value), RELATIVE_DENOMINATOR_FLOOR)
+            ? Math.abs(nearest.value - value) / (Math.abs(value) > zero ? Math.abs(value) : hi - lo)
             : null;
           flips.push({
             parameter: study.parameter,

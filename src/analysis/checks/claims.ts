@@ -2,16 +2,18 @@ import type { Model } from "../../model/types.js";
 import type { ClaimSpec } from "../../spec/schema.js";
 import { withParameters } from "../../model/parameters.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
-import type { EquilibriumType } from "../phase/stability.js";
+import type { BorderlineResult, EquilibriumType } from "../phase/stability.js";
 import type { Fate, UndecidedReason } from "../flow/follow.js";
 import type { ScenarioResult } from "../flow/trajectories.js";
 import type { ParameterStudyResult } from "../parameters/study.js";
 import { classifyOutcome, type AttractorResult } from "../parameters/outcomes.js";
 import {
+  CLAIM_ZERO_SCALE_OF_RANGE,
   CONDITION_MARGIN_TOL,
   DEFAULT_CLAIM_CONDITION_SAMPLES,
   DEFAULT_CLAIM_NEAR,
   HALTON_PRIMES,
+  ZERO_VALUE_TOL,
 } from "../constants.js";
 
 type ClaimKind = ClaimSpec["kind"];
@@ -19,6 +21,15 @@ type ClaimOf<K extends ClaimKind> = Extract<ClaimSpec, { kind: K }>;
 type Point = Record<string, number>;
 /** A threshold kind a claim may name, or any threshold that changes the outcome. */
 type ClaimedThreshold = "saddle-node" | "transcritical" | "hopf" | "boundary-crossing" | "any";
+/**
+ * A distance to a threshold: relative to the threshold's value, or, where that value is zero (to
+ * ZERO_VALUE_TOL of the range) or the distance is, absolute in the parameter's unit.
+ */
+interface ClaimDistance {
+  absolute: number;
+  relative: number | null;
+  form: "relative" | "absolute";
+}
 
 /** What a check found: the numbers behind a verdict (the report words them). */
 export type ClaimEvidence =
@@ -41,6 +52,8 @@ export type ClaimEvidence =
       hyperbolic: boolean;
       trace: number;
       determinant: number;
+      /** The equilibrium's borderline call, when the claimed type is one it does not decide against. */
+      borderline: BorderlineResult | null;
     }
   | { kind: "fate-undecided"; scenario: string; reason: UndecidedReason; t: number }
   | { kind: "fate-cycle"; scenario: string; cycle: string; t: number }
@@ -76,8 +89,9 @@ export type ClaimEvidence =
       parameter: string;
       nominal: number;
       threshold: { value: number; kind: string };
-      side: "below" | "above";
-      margin: number;
+      /** "at": on the threshold to ZERO_VALUE_TOL of the range, neither below nor above. */
+      side: "below" | "above" | "at";
+      margin: ClaimDistance;
     }
   | { kind: "value-outside-range"; parameter: string; claimed: number; range: [number, number] }
   | { kind: "no-threshold"; parameter: string; threshold: ClaimedThreshold; claimed: number }
@@ -86,8 +100,16 @@ export type ClaimEvidence =
       parameter: string;
       claimed: number;
       located: { value: number; kind: string };
-      relativeDifference: number;
+      /** |located − claimed|, in the parameter's unit. */
+      difference: number;
+      /** difference / |located| (or / |claimed| for a located threshold at zero); null for a claimed value of zero. */
+      relativeDifference: number | null;
+      /** The claim's tolerance, relative. */
       tolerance: number;
+      /** relative: relativeDifference against tolerance; absolute: difference against allowed. */
+      form: "relative" | "absolute";
+      /** The largest difference accepted, in the parameter's unit. */
+      allowed: number;
     }
   /** A sampled point where the condition and the attractor's existence disagree. */
   | {
@@ -186,6 +208,22 @@ function checkCount(ctx: ClaimContext, claim: ClaimOf<"equilibrium-count">): Ver
   };
 }
 
+/**
+ * A borderline equilibrium decides neither for nor against the two types it lies between, nor
+ * the degenerate node on the boundary between node and focus; a claim of stability alone is
+ * decided (the borderline is within one side).
+ */
+function borderlineAgainst(e: EquilibriumResult, claimed: string): BorderlineResult | null {
+  const b = e.borderline;
+  if (!b) return null;
+  const side = e.stable ? "stable" : "unstable";
+  const undecided: string[] = [
+    ...b.between,
+    ...(b.quantity === "discriminant" ? [`${side}-degenerate-node`] : []),
+  ];
+  return undecided.includes(claimed) ? b : null;
+}
+
 function checkType(ctx: ClaimContext, claim: ClaimOf<"equilibrium-type">): Verdict {
   const tolerance = claim.tolerance ?? DEFAULT_CLAIM_NEAR;
   const hit = nearest(ctx, claim.near);
@@ -204,8 +242,9 @@ function checkType(ctx: ClaimContext, claim: ClaimOf<"equilibrium-type">): Verdi
       : claim.type === "unstable"
         ? e.stable === false
         : e.type === claim.type;
+  const borderline = borderlineAgainst(e, claim.type);
   return {
-    verdict: matches ? "supported" : e.hyperbolic ? "contradicted" : "undecided",
+    verdict: borderline ? "undecided" : matches ? "supported" : e.hyperbolic ? "contradicted" : "undecided",
     evidence: {
       kind: "type",
       equilibrium: e.id,
@@ -216,6 +255,7 @@ function checkType(ctx: ClaimContext, claim: ClaimOf<"equilibrium-type">): Verdi
       hyperbolic: e.hyperbolic,
       trace: e.trace,
       determinant: e.determinant,
+      borderline,
     },
     where: { section: "equilibria", equilibrium: e.id },
   };
@@ -302,10 +342,14 @@ function checkSide(ctx: ClaimContext, claim: ClaimOf<"parameter-side">): Verdict
       evidence: { kind: "no-deciding-threshold", parameter, threshold, nominal: st.nominal, range: st.range },
       where,
     };
-  const side = st.nominal < best.value ? "below" : "above";
-  const margin = Math.abs(best.value - st.nominal) / Math.abs(best.value);
+  const zero = ZERO_VALUE_TOL * (st.range[1] - st.range[0]);
+  const absolute = Math.abs(best.value - st.nominal);
+  const side = absolute <= zero ? "at" : st.nominal < best.value ? "below" : "above";
+  const relative = side === "at" || Math.abs(best.value) <= zero ? null : absolute / Math.abs(best.value);
+  const margin: ClaimDistance = { absolute, relative, form: relative === null ? "absolute" : "relative" };
   return {
-    verdict: side === claim.side ? "supported" : "contradicted",
+    // on the threshold to the location's accuracy, the value is on neither side
+    verdict: side === "at" ? "undecided" : side === claim.side ? "supported" : "contradicted",
     evidence: { kind: "side", parameter, nominal: st.nominal, threshold: best, side, margin },
     where,
   };
@@ -398,16 +442,30 @@ function checkThresholdValue(ctx: ClaimContext, claim: ClaimOf<"threshold-value"
       evidence: { kind: "no-threshold", parameter, threshold, claimed: claim.value },
       where,
     };
-  const relativeDifference = Math.abs(best.value - claim.value) / Math.abs(best.value);
+  const width = st.range[1] - st.range[0];
+  const zero = ZERO_VALUE_TOL * width;
+  const difference = Math.abs(best.value - claim.value);
+  // a claimed zero has no relative difference: the tolerance is read against the range's width
+  const scale =
+    Math.abs(claim.value) <= zero
+      ? null
+      : Math.abs(best.value) > zero
+        ? Math.abs(best.value)
+        : Math.abs(claim.value);
+  const allowed = claim.tolerance * (scale ?? CLAIM_ZERO_SCALE_OF_RANGE * width);
+  const within = scale === null ? difference <= allowed : difference / scale <= claim.tolerance;
   return {
-    verdict: relativeDifference <= claim.tolerance ? "supported" : "contradicted",
+    verdict: within ? "supported" : "contradicted",
     evidence: {
       kind: "threshold-value",
       parameter,
       claimed: claim.value,
       located: { value: best.value, kind: best.kind },
-      relativeDifference,
+      difference,
+      relativeDifference: scale === null ? null : difference / scale,
       tolerance: claim.tolerance,
+      form: scale === null ? "absolute" : "relative",
+      allowed,
     },
     where,
   };

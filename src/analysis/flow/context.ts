@@ -2,18 +2,27 @@ import type { Model } from "../../model/types.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
 import { findCaptureRegions, type CaptureRegion } from "./capture.js";
 import { tolerancesFor, type IntegrationTolerances } from "../numeric/integrate.js";
-import type { Box } from "../numeric/window.js";
+import { boundsOf, type Box } from "../numeric/window.js";
 
 /** What the fate rules need to know about the equilibria, for one time direction. */
 export interface FlowContext {
   model: Model;
+  /** The window: the scale of every scaled distance and overshoot, and where portrait seeds lie. */
   box: Box;
+  /** The feasible region (the states' min/max): trajectories are followed inside it; leaving it is the fate left-window. */
+  bounds: Box;
   equilibria: EquilibriumResult[];
   direction: 1 | -1;
   captures: CaptureRegion[];
   saddles: { id: string; center: [number, number]; stable: [number, number]; unstable: [number, number] }[];
   nonHyperbolic: { id: string; center: [number, number] }[];
   rays: { id: string; center: [number, number] }[];
+  /**
+   * Rule 7's known cycles: a crossing of the ray through `around` in forward sense `sense` at a
+   * scaled radius within `radii` ends at cycle `id` (the attracting captures of the stable cycles
+   * solved so far; empty until the cycle registry supplies them, see flow/registry.ts).
+   */
+  cycleCaptures: { id: string; around: string; sense: 1 | -1; radii: [number, number] }[];
   tolerances: IntegrationTolerances;
 }
 
@@ -43,12 +52,14 @@ export function buildFlowContext(
   return {
     model,
     box,
+    bounds: boundsOf(model),
     equilibria,
     direction,
     captures: findCaptureRegions(model, equilibria, box, direction),
     saddles,
     nonHyperbolic: equilibria.filter((e) => !e.hyperbolic).map((e) => ({ id: e.id, center: pointOf(e) })),
     rays: equilibria.filter((e) => e.type !== "saddle").map((e) => ({ id: e.id, center: pointOf(e) })),
+    cycleCaptures: [],
     tolerances: tolerancesFor(box.width),
   };
 }

@@ -1,14 +1,14 @@
 import { isCaptured } from "./capture.js";
 import type { FlowContext } from "./context.js";
 import { integrateFlow, type IntegrationResult, type StepInfo } from "../numeric/integrate.js";
-import { edgeBeyond, type WindowEdge } from "../numeric/window.js";
+import type { WindowEdge } from "../numeric/window.js";
+import { firstExit, type ExitSide } from "../numeric/excursion.js";
 import { bisectPredicate } from "../numeric/roots.js";
 import { scaledDistance } from "../numeric/distance.js";
 import { solve2 } from "../numeric/linear.js";
 import {
   continueAlgebraicRun,
   hasArrived,
-  hasLeftWindow,
   isBlowUp,
   isFarOutside,
   outsideBy,
@@ -24,21 +24,28 @@ import {
   SADDLE_UNSTABLE_FRACTION,
   SLOW_RECURRENCE_CROSSINGS,
   TRAJECTORY_MAX_STEPS,
+  WINDOW_EXIT_SLACK,
 } from "../constants.js";
 
 export { buildFlowContext, type FlowContext } from "./context.js";
 
 /**
  * Following one trajectory and deciding its fate by the rules of rules.ts, tried in their order
- * at every accepted step: a non-finite right-hand side, a blow-up, a capture region, a saddle's
- * stable manifold, an algebraic approach, recurrence through an equilibrium's ray (a
- * periodic-orbit candidate, confirmed by the caller by shooting); outside the window the
+ * at every accepted step: a non-finite right-hand side, a blow-up, an exit from the feasible
+ * region (also between steps), a capture region, a saddle's stable manifold, an algebraic
+ * approach, a known cycle's capture, recurrence through an equilibrium's ray (a periodic-orbit
+ * candidate, confirmed by the caller by shooting). The trajectory is followed inside the
+ * feasible region, out of the window and back if it goes so; past the region's edge the
  * integration goes on only to tell a blow-up from a plain exit.
+ *
+ * "left-window" (the kind's name is fixed by the results contract) is leaving the feasible
+ * region: `edge` is the state bound crossed first ({ state, value: its min or max }), `bound`
+ * says which of the two; where the window reaches that bound, it is also the window's edge.
  */
 export type Fate =
   | { kind: "equilibrium"; target: string; t: number; approach: "linear" | "stable-manifold" | "algebraic" }
   | { kind: "cycle"; target: string; t: number }
-  | { kind: "left-window"; t: number; point: Record<string, number>; edge: WindowEdge }
+  | { kind: "left-window"; t: number; point: Record<string, number>; edge: WindowEdge; bound: "min" | "max" }
   | { kind: "blow-up"; t: number; point: Record<string, number> }
   | { kind: "undecided"; t: number; reason: UndecidedReason };
 
@@ -64,11 +71,12 @@ export interface TrajectoryPath {
   y: number[];
 }
 
-/** Where and when a trajectory left the window. */
+/** Where and when a trajectory left the feasible region, and through which state bound. */
 export interface WindowExit {
   t: number;
   point: [number, number];
   edge: WindowEdge;
+  bound: "min" | "max";
 }
 
 export interface FollowResult {
@@ -76,7 +84,7 @@ export interface FollowResult {
   /** Present when the trajectory recurs through a section: the caller confirms a cycle. */
   recurrence: Recurrence | null;
   path: TrajectoryPath;
-  /** The window exit, when the trajectory left it (also when it then blew up). */
+  /** The exit from the feasible region, when the trajectory left it (also when it then blew up). */
   exit: WindowExit | null;
   steps: number;
   evaluations: number;
@@ -154,13 +162,13 @@ class TrajectoryFollower {
   /** One accepted step; false stops the integration. */
   step(info: StepInfo): boolean {
     const { t1, y } = info;
+    const { bounds, box } = this.ctx;
     this.steps++;
     this.path.t.push(t1);
     this.path.x.push(y[0]);
     this.path.y.push(y[1]);
-    const out = outsideBy(this.ctx.box, y);
-    if (hasLeftWindow(out) && !this.exit) this.exit = this.locateExit(info);
-    if (isFarOutside(out)) {
+    if (!this.exit) this.exit = this.findExit(info);
+    if (isFarOutside(outsideBy(bounds, y, box.width))) {
       this.testBlowUp(t1, y);
       return false; // else the fate is the exit, in settle()
     }
@@ -179,16 +187,36 @@ class TrajectoryFollower {
     return true;
   }
 
-  private locateExit({ t0, t1, dense }: StepInfo): WindowExit {
-    const box = this.ctx.box;
-    const hit = locate(dense, t0, t1, (x) => hasLeftWindow(outsideBy(box, x)));
-    return { t: hit.t, point: hit.x, edge: edgeBeyond(this.ctx.model.stateNames, box, hit.x) };
+  /**
+   * Rule 3: the first time in the step the dense output passes a bound of the feasible region
+   * by more than the slack (an excursion between the step points included), or null.
+   */
+  private findExit({ t0, t1, y, dense }: StepInfo): WindowExit | null {
+    const { bounds, box, model } = this.ctx;
+    let first: { s: number; k: number; side: ExitSide } | null = null;
+    for (let k = 0; k < 2; k++) {
+      const slack = WINDOW_EXIT_SLACK * box.width[k];
+      // the end point is the integrator's own; the dense output only fills in between
+      const at = (s: number) => (s === 1 ? y[k] : dense(k, t0 + s * (t1 - t0)));
+      const hit = firstExit(at, bounds.lo[k] - slack, bounds.hi[k] + slack);
+      if (hit && (!first || hit.s < first.s)) first = { ...hit, k };
+    }
+    if (!first) return null;
+    const { s, k, side } = first;
+    const t = t0 + s * (t1 - t0);
+    return {
+      t,
+      point: s === 1 ? [y[0], y[1]] : [dense(0, t), dense(1, t)],
+      edge: { state: model.stateNames[k], value: side === "lo" ? bounds.lo[k] : bounds.hi[k] },
+      bound: side === "lo" ? "min" : "max",
+    };
   }
 
   /** Rule 2: an e-folding time short against the time since the exit. */
   private testBlowUp(t1: number, y: number[]): void {
     const { model, box } = this.ctx;
     model.rhs(y, this.f);
+    // scaled by the window, as every overshoot; the exit is from the feasible region
     const eFolding =
       Math.hypot(y[0] / box.width[0], y[1] / box.width[1]) /
       Math.hypot(this.f[0] / box.width[0], this.f[1] / box.width[1]);
@@ -245,7 +273,7 @@ class TrajectoryFollower {
     return false;
   }
 
-  /** Rule 7: crossings of the ray {second state = centre, first state > centre}, kept apart by sense. */
+  /** Rule 7: crossings of the ray {second state = centre, first state > centre}, kept apart by sense; one inside a known stable cycle's capture ends there. */
   private recurs({ t0, t1, y, dense }: StepInfo): boolean {
     if (!this.detectRecurrence) return false;
     const box = this.ctx.box;
@@ -257,6 +285,14 @@ class TrajectoryFollower {
       const hit = locate(dense, t0, t1, (x) => sense * (x[1] - ray.center[1]) >= 0);
       if (hit.x[0] <= ray.center[0]) continue;
       const r = (hit.x[0] - ray.center[0]) / box.width[0];
+      const forward = sense * this.ctx.direction;
+      const known = this.ctx.cycleCaptures.find(
+        (c) => c.around === ray.id && c.sense === forward && r >= c.radii[0] && r <= c.radii[1],
+      );
+      if (known) {
+        this.fate = { kind: "cycle", target: known.id, t: hit.t };
+        return true;
+      }
       const list = this.crossingsOf(ray.id, sense);
       list.push({ t: hit.t, r, x: hit.x });
       const n = list.length;
@@ -282,7 +318,13 @@ class TrajectoryFollower {
     if (this.fate || this.recurrence) return;
     const exit = this.exit;
     if (exit) {
-      this.fate = { kind: "left-window", t: exit.t, point: this.record(exit.point), edge: exit.edge };
+      this.fate = {
+        kind: "left-window",
+        t: exit.t,
+        point: this.record(exit.point),
+        edge: exit.edge,
+        bound: exit.bound,
+      };
     } else if (integration.status === "non-finite") {
       this.fate = { kind: "undecided", t: integration.tEnd, reason: "non-finite-rhs" };
     } else if (integration.status === "step-limit") {

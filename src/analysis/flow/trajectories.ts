@@ -1,19 +1,13 @@
 import type { Model } from "../../model/types.js";
 import type { Diagnostic } from "../../diagnostics/issue.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
-import {
-  buildFlowContext,
-  followTrajectory,
-  thinPath,
-  type Fate,
-  type FlowContext,
-  type FollowResult,
-  type TrajectoryPath,
-} from "./follow.js";
+import { buildFlowContext, thinPath, type Fate, type FlowContext, type TrajectoryPath } from "./follow.js";
 import { integrateFlow } from "../numeric/integrate.js";
-import { sameCycle, solvePeriodicOrbit, type CycleResult } from "./cycles.js";
+import { CycleRegistry, followToFate } from "./registry.js";
 import type { Box, WindowEdge } from "../numeric/window.js";
 import { MAX_STEP_OF_HORIZON, SCENARIO_PATH_POINTS, TRAJECTORY_MAX_STEPS } from "../constants.js";
+
+export { CycleRegistry, followToFate, settleFate } from "./registry.js";
 
 export interface ScenarioResult {
   name: string;
@@ -49,46 +43,6 @@ export interface TrajectoryOptions {
   seedsAroundEquilibrium: number;
   /** Radius of that circle, as a fraction of the window. */
   seedRadius: number;
-}
-
-/** Registry of solved periodic orbits, filled in a fixed order so ids are deterministic. */
-export class CycleRegistry {
-  readonly cycles: CycleResult[] = [];
-  constructor(
-    private readonly model: Model,
-    private readonly box: Box,
-  ) {}
-
-  /** Confirms a recurrence by shooting; returns the id of the (new or known) cycle, or null. */
-  resolve(ctx: FlowContext, follow: FollowResult): string | null {
-    const rec = follow.recurrence;
-    if (!rec) return null;
-    const around = ctx.equilibria.find((e) => e.id === rec.around);
-    if (!around) return null;
-    const center: [number, number] = [
-      around.point[this.model.stateNames[0]],
-      around.point[this.model.stateNames[1]],
-    ];
-    const solved = solvePeriodicOrbit(this.model, this.box, rec, center, ctx.direction);
-    if (!solved) return null;
-    const known = this.cycles.find((c) => sameCycle(c, solved, this.box, this.model.stateNames));
-    if (known) return known.id;
-    const id = `C${this.cycles.length + 1}`;
-    this.cycles.push({ id, ...solved });
-    return id;
-  }
-}
-
-/** Turns a raw follow result into a final fate, confirming cycles by shooting. */
-export function settleFate(ctx: FlowContext, follow: FollowResult, registry: CycleRegistry): Fate {
-  if (!follow.recurrence) return follow.fate;
-  const id = registry.resolve(ctx, follow);
-  if (id) return { kind: "cycle", target: id, t: follow.recurrence.t };
-  return {
-    kind: "undecided",
-    t: follow.recurrence.t,
-    reason: "no-periodic-orbit",
-  };
 }
 
 function recordOf(model: Model, x: ArrayLike<number>): Record<string, number> {
@@ -164,15 +118,21 @@ export function integrateScenarios(
 ): ScenarioResult[] {
   return model.spec.scenarios.map((sc) => {
     const start: [number, number] = [sc.initial[model.stateNames[0]], sc.initial[model.stateNames[1]]];
-    const follow = followTrajectory(ctx, start, {
-      horizon: sc.horizon,
-      maxPathPoints: SCENARIO_PATH_POINTS,
-      detectRecurrence: true,
-    });
-    const fate = settleFate(ctx, follow, registry);
-    const full = follow.path;
+    const follow = followToFate(
+      ctx,
+      start,
+      { horizon: sc.horizon, maxPathPoints: SCENARIO_PATH_POINTS, detectRecurrence: true },
+      registry,
+    );
+    const fate = follow.fate;
+    // the path and time series show the scenario's horizon; a fate decided later is still its fate
+    const full = clipPath(follow.path, sc.horizon);
     // the fate is decided; the time series still runs to the horizon so a reader sees the approach
-    if ((fate.kind === "equilibrium" || fate.kind === "cycle") && full.t[full.t.length - 1] < sc.horizon) {
+    const clipped = full.t.length < follow.path.t.length;
+    if (
+      (clipped || fate.kind === "equilibrium" || fate.kind === "cycle") &&
+      full.t[full.t.length - 1] < sc.horizon
+    ) {
       extendToHorizon(model, ctx, full, sc.horizon);
     }
     const last = full.t.length - 1;
@@ -191,6 +151,12 @@ export function integrateScenarios(
       steps: follow.steps,
     };
   });
+}
+
+/** The step points of a path up to time `horizon`. */
+function clipPath(path: TrajectoryPath, horizon: number): TrajectoryPath {
+  const n = path.t.findIndex((t) => t > horizon);
+  return n < 0 ? path : { t: path.t.slice(0, n), x: path.x.slice(0, n), y: path.y.slice(0, n) };
 }
 
 function extendToHorizon(model: Model, ctx: FlowContext, path: TrajectoryPath, horizon: number): void {
@@ -270,12 +236,14 @@ export function integratePortrait(
   }
   const out: PortraitTrajectory[] = [];
   for (const s of seeds) {
-    const follow = followTrajectory(s.ctx, s.x, {
-      horizon,
-      maxPathPoints: options.maxPathPoints,
-      detectRecurrence: true,
-    });
-    const fate = settleFate(s.ctx, follow, registry);
+    const follow = followToFate(
+      s.ctx,
+      s.x,
+      { horizon, maxPathPoints: options.maxPathPoints, detectRecurrence: true },
+      registry,
+      true, // one cycle per family of closed orbits in the portrait (scenarios keep their own)
+    );
+    const fate = follow.fate;
     out.push({
       seed: s.seed,
       direction: s.ctx.direction === 1 ? "forward" : "backward",

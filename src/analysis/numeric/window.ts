@@ -14,7 +14,14 @@ export function windowOf(model: Model): Box {
   return { lo, hi, width: lo.map((l, k) => hi[k] - l) };
 }
 
-/** A side of the window: where state `state` equals `value` (its lower or upper window bound). */
+/** The feasible region (the states' min/max) as arrays in state order: trajectories are followed inside it. */
+export function boundsOf(model: Model): Box {
+  const lo = model.stateNames.map((n) => model.spec.states.find((s) => s.name === n)!.min);
+  const hi = model.stateNames.map((n) => model.spec.states.find((s) => s.name === n)!.max);
+  return { lo, hi, width: lo.map((l, k) => hi[k] - l) };
+}
+
+/** A side of a box (the window, or the feasible region a fate's exit crosses): where state `state` equals `value`. */
 export interface WindowEdge {
   state: string;
   value: number;

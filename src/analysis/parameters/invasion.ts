@@ -119,6 +119,11 @@ function polynomialRoots(expr: MathNode, variable: string): MathNode[] | null {
   ];
 }
 
+/** Whether the line x_i = value is invariant: f_i vanishes identically on it (population i absent, at value 0). */
+export function isInvariantBound(model: Model, i: number, value: number): boolean {
+  return isZero(substitute(model.equations[i].node, symbol(i), new ConstantNode(value)));
+}
+
 export function findInvasionConditions(
   model: Model,
   equilibria: EquilibriumResult[],
@@ -129,8 +134,7 @@ export function findInvasionConditions(
   const zero = new ConstantNode(0);
   for (let i = 0; i < 2; i++) {
     const spec = model.spec.states[i];
-    const invariant = isZero(substitute(model.equations[i].node, symbol(i), new ConstantNode(spec.min)));
-    if (!invariant) continue;
+    if (!isInvariantBound(model, i, spec.min)) continue;
     const j = 1 - i;
     const jii = differentiate(model.equations[i].node, symbol(i));
     for (const e of equilibria) {

@@ -3,16 +3,10 @@ import type { EquilibriumResult } from "../phase/equilibria.js";
 import type { EquilibriumType } from "../phase/stability.js";
 import type { CycleResult } from "../flow/cycles.js";
 import { findEquilibria } from "../phase/equilibria.js";
-import { buildFlowContext, followTrajectory, type FollowResult, type Fate } from "../flow/follow.js";
-import { CycleRegistry, settleFate } from "../flow/trajectories.js";
+import { buildFlowContext, type FollowResult, type Fate, type UndecidedReason } from "../flow/follow.js";
+import { CycleRegistry, followToFate } from "../flow/trajectories.js";
 import { windowOf, type Box } from "../numeric/window.js";
-import {
-  OUTCOME_EDGE_SAMPLES,
-  OUTCOME_GRID_SIZE,
-  OUTCOME_PATH_POINTS,
-  SLOW_ARRIVAL_DISTANCE,
-  SLOW_ARRIVAL_LATE_FRACTION,
-} from "../constants.js";
+import { DEFAULT_EQUILIBRIUM_OPTIONS, OUTCOME_PATH_POINTS } from "../constants.js";
 
 /**
  * A stable equilibrium named by which states it keeps present (away from their lower bound, in
@@ -40,9 +34,10 @@ export type OutcomeFateResult =
   | { kind: "equilibrium"; type: EquilibriumType; present: string[] }
   | { kind: "cycle"; stability: CycleResult["stability"] | null }
   | { kind: "left-window"; state: string }
-  /** exitState: the state whose edge it crossed before blowing up, if it left the window first. */
-  | { kind: "blow-up"; exitState: string | null }
-  | { kind: "undecided" };
+  /** A blow-up inside the window; one after a window exit is that exit (left-window). */
+  | { kind: "blow-up" }
+  /** Not decided within the scenario's horizon or step budget, or by the rules: never a break by itself. */
+  | { kind: "undecided"; reason: UndecidedReason };
 
 /**
  * The outcome at one parameter point: the attractors (each once, in key order) and every
@@ -80,7 +75,7 @@ function fateKey(f: OutcomeFateResult): string {
     case "left-window":
       return `left-window ${f.state}`;
     case "blow-up":
-      return `blow-up ${f.exitState ?? ""}`;
+      return "blow-up";
     case "undecided":
       return "undecided";
   }
@@ -93,6 +88,38 @@ export function outcomeKey(o: OutcomeResult): string {
 }
 
 export const sameOutcome = (a: OutcomeResult, b: OutcomeResult) => outcomeKey(a) === outcomeKey(b);
+
+const attractorSetKey = (o: OutcomeResult) =>
+  JSON.stringify([...new Set(o.attractors.map(attractorKey))].sort());
+
+/**
+ * How two outcomes differ: not at all; by a break (other attractors, or a scenario decided on
+ * both sides with different fates); or only where a fate is undecided on one side, which is a
+ * limit of what was decided and never a break.
+ */
+export function outcomeChange(a: OutcomeResult, b: OutcomeResult): "same" | "break" | "undecided" {
+  if (outcomeKey(a) === outcomeKey(b)) return "same";
+  if (attractorSetKey(a) !== attractorSetKey(b)) return "break";
+  const switched = a.scenarios.some((s, k) => {
+    const f = s.fate,
+      g = b.scenarios[k].fate;
+    return f.kind !== "undecided" && g.kind !== "undecided" && fateKey(f) !== fateKey(g);
+  });
+  return switched ? "break" : "undecided";
+}
+
+/** The undecided fates' scenarios and reasons of either outcome, each once, in scenario order. */
+export function undecidedFates(
+  ...outcomes: OutcomeResult[]
+): { scenario: string; reason: UndecidedReason }[] {
+  const out: { scenario: string; reason: UndecidedReason }[] = [];
+  for (let k = 0; k < (outcomes[0]?.scenarios.length ?? 0); k++) {
+    const fate = outcomes.map((o) => o.scenarios[k].fate).find((f) => f.kind === "undecided");
+    if (fate?.kind === "undecided")
+      out.push({ scenario: outcomes[0].scenarios[k].name, reason: fate.reason });
+  }
+  return out;
+}
 
 /** The states an equilibrium keeps away from their lower bound, in state order. */
 export function presentStates(model: Model, e: EquilibriumResult): string[] {
@@ -130,26 +157,6 @@ interface FateContext {
   registry: CycleRegistry;
 }
 
-/**
- * Near a threshold the approach slows down: an undecided trajectory ending close to a stable
- * equilibrium at the horizon goes there, for the purpose of naming the outcome.
- */
-function slowArrival(c: FateContext, follow: FollowResult, fate: Fate): Fate {
-  if (fate.kind !== "undecided" || !c.stable.length) return fate;
-  const [s0, s1] = c.model.stateNames;
-  const k = follow.path.t.length - 1;
-  const late = Math.floor(SLOW_ARRIVAL_LATE_FRACTION * k);
-  const dist = (e: EquilibriumResult, i: number) =>
-    Math.hypot(
-      (e.point[s0] - follow.path.x[i]) / c.box.width[0],
-      (e.point[s1] - follow.path.y[i]) / c.box.width[1],
-    );
-  const near = [...c.stable].sort((a, b) => dist(a, k) - dist(b, k))[0];
-  if (dist(near, k) < SLOW_ARRIVAL_DISTANCE || dist(near, k) < dist(near, late))
-    return { kind: "equilibrium", target: near.id, t: follow.path.t[k], approach: "linear" };
-  return fate;
-}
-
 function outcomeFate(c: FateContext, follow: FollowResult, fate: Fate): OutcomeFateResult {
   switch (fate.kind) {
     case "equilibrium": {
@@ -165,11 +172,12 @@ function outcomeFate(c: FateContext, follow: FollowResult, fate: Fate): OutcomeF
       };
     case "left-window":
       return { kind: "left-window", state: fate.edge.state };
-    // a blow-up after an exit (a population driven through 0) is told by where it left, as for manifolds
+    // a blow-up after an exit (a population driven through 0) is told by where it left, as for
+    // manifolds: whether it blows up before the horizon or not is the horizon's doing, not a break
     case "blow-up":
-      return { kind: "blow-up", exitState: follow.exit ? follow.exit.edge.state : null };
+      return follow.exit ? { kind: "left-window", state: follow.exit.edge.state } : { kind: "blow-up" };
     case "undecided":
-      return { kind: "undecided" };
+      return { kind: "undecided", reason: fate.reason };
   }
 }
 
@@ -181,39 +189,35 @@ function distinctAttractors(list: AttractorResult[]): AttractorResult[] {
 
 /**
  * Outcome of `model` (already bound to the parameter values of interest). With scenarios, each
- * scenario is followed to its fate; attractor-only outcomes (for maps) skip that.
+ * scenario is followed to its fate; attractor-only outcomes (for maps) skip that. Everything is
+ * decided as at the nominal values: the same equilibrium search, fate rules, tolerances and
+ * horizons, so an outcome anywhere in a range means what the nominal one means.
  */
 export function classifyOutcome(model: Model, withScenarios: boolean): OutcomeResult {
-  const equilibria = findEquilibria(model, {
-    gridSize: OUTCOME_GRID_SIZE,
-    edgeSamples: OUTCOME_EDGE_SAMPLES,
-  });
+  const equilibria = findEquilibria(model, DEFAULT_EQUILIBRIUM_OPTIONS);
   const stable = equilibria.filter((e) => e.stable === true);
   const named = equilibriumAttractors(model, stable);
   const attractors: AttractorResult[] = stable.map((e) => named.get(e.id)!);
   const scenarios: OutcomeResult["scenarios"] = [];
+  const box = windowOf(model);
+  // the cycle search of the nominal analysis (section scan around every focus), in both modes;
+  // the cycles' captures serve only to settle the scenarios' fates
+  const registry = new CycleRegistry(model, box, { captures: withScenarios, families: false });
+  registry.scanSections(equilibria);
   if (withScenarios && model.spec.scenarios.length) {
-    const box = windowOf(model);
-    const context: FateContext = {
-      model,
-      box,
-      equilibria,
-      stable,
-      named,
-      registry: new CycleRegistry(model, box),
-    };
+    const context: FateContext = { model, box, equilibria, stable, named, registry };
     const flow = buildFlowContext(model, equilibria, box, 1);
     for (const sc of model.spec.scenarios) {
       const start: [number, number] = [sc.initial[model.stateNames[0]], sc.initial[model.stateNames[1]]];
-      const follow = followTrajectory(flow, start, {
-        horizon: sc.horizon,
-        maxPathPoints: OUTCOME_PATH_POINTS,
-        detectRecurrence: true,
-      });
-      const fate = slowArrival(context, follow, settleFate(flow, follow, context.registry));
-      scenarios.push({ name: sc.name, fate: outcomeFate(context, follow, fate) });
+      const follow = followToFate(
+        flow,
+        start,
+        { horizon: sc.horizon, maxPathPoints: OUTCOME_PATH_POINTS, detectRecurrence: true },
+        registry,
+      );
+      scenarios.push({ name: sc.name, fate: outcomeFate(context, follow, follow.fate) });
     }
-    for (const c of context.registry.cycles) if (c.stability === "stable") attractors.push({ kind: "cycle" });
   }
+  for (const c of registry.cycles) if (c.stability === "stable") attractors.push({ kind: "cycle" });
   return { attractors: distinctAttractors(attractors), scenarios };
 }

@@ -5,6 +5,14 @@ import { componentScales, windowOf, type Box } from "../numeric/window.js";
 import { bisect } from "../numeric/roots.js";
 import { solve2 } from "../numeric/linear.js";
 import {
+  groupsAt,
+  locateSingularPoint,
+  singularContext,
+  singularPointAt,
+  type SingularContext,
+  type SingularPoint,
+} from "./singularities/points.js";
+import {
   DEDUP_REL_TOL,
   DEFAULT_EQUILIBRIUM_OPTIONS,
   EDGE_BISECTION_MAX_ITERATIONS,
@@ -226,17 +234,60 @@ function gridStarts(box: Box, g: number): [number, number][] {
 }
 
 /**
+ * Roots where the field or its Jacobian is singular (a factor of model.singularFactors vanishes
+ * there, or the Jacobian is not finite) are no equilibria to classify: they leave the list, with
+ * the evidence findSingularities reports (singularities.ts).
+ */
+function splitSingular<T extends { x: [number, number] }>(
+  model: Model,
+  box: Box,
+  found: T[],
+): { regular: T[]; singular: SingularPoint[] } {
+  const j = new Float64Array(4);
+  let ctx: SingularContext | null = null;
+  const regular: T[] = [];
+  const singular: SingularPoint[] = [];
+  for (const e of found) {
+    model.jacobianAt(e.x, j);
+    const suspect = !Array.from(j).every(Number.isFinite) || model.singularFactors.length > 0;
+    ctx = suspect ? (ctx ?? singularContext(model, box)) : ctx;
+    const evidence =
+      ctx && (groupsAt(ctx, e.x).length || !Array.from(j).every(Number.isFinite))
+        ? singularPointAt(ctx, locateSingularPoint(ctx, e.x), true)
+        : null;
+    if (evidence) singular.push(evidence);
+    else regular.push(e);
+  }
+  return { regular, singular };
+}
+
+/** Equilibria (as findEquilibria returns them) and the roots that were singular points, with their evidence. */
+export interface EquilibriumCandidates {
+  equilibria: EquilibriumResult[];
+  singular: SingularPoint[];
+}
+
+/** Every equilibrium in the window, and no singular point: see findEquilibriumCandidates. */
+export function findEquilibria(
+  model: Model,
+  options: EquilibriumOptions = DEFAULT_EQUILIBRIUM_OPTIONS,
+  diagnostics: Diagnostic[] = [],
+): EquilibriumResult[] {
+  return findEquilibriumCandidates(model, options, diagnostics).equilibria;
+}
+
+/**
  * Every equilibrium in the window: damped Newton from a deterministic multistart set (interior
  * grid, window corners, points on each edge and axis, and the roots of each component along each
  * edge), deduplicated in window-scaled coordinates, polished, snapped to bounds.
  * Sorted by the first state ascending, then the second (each compared to DEDUP_REL_TOL of the
  * window), and numbered E1, E2, ... in that order.
  */
-export function findEquilibria(
+export function findEquilibriumCandidates(
   model: Model,
   options: EquilibriumOptions = DEFAULT_EQUILIBRIUM_OPTIONS,
   diagnostics: Diagnostic[] = [],
-): EquilibriumResult[] {
+): EquilibriumCandidates {
   const box = windowOf(model);
   const fScale = componentScales(model, box);
   const ws: Workspace = { f: new Float64Array(2), j: new Float64Array(4), y: new Float64Array(2) };
@@ -270,6 +321,9 @@ export function findEquilibria(
     found.push({ x, residual });
   }
 
+  const { regular, singular } = splitSingular(model, box, found);
+  found.length = 0;
+  found.push(...regular);
   found.sort((p, q) => {
     for (let k = 0; k < 2; k++) {
       const diff = p.x[k] - q.x[k];
@@ -288,7 +342,7 @@ export function findEquilibria(
   }
 
   const states = model.spec.states;
-  return found.map((e, k) => {
+  const equilibria = found.map((e, k): EquilibriumResult => {
     ws.y[0] = e.x[0];
     ws.y[1] = e.x[1];
     model.jacobianAt(ws.y, ws.j);
@@ -303,7 +357,9 @@ export function findEquilibria(
       onBoundary: boundaryStates.length > 0,
       boundaryStates,
       residual: e.residual,
-      ...classifyEquilibrium(jacobian),
+      // star against degenerate node is read in window units, so it does not depend on the spec's units
+      ...classifyEquilibrium(jacobian, box.width),
     };
   });
+  return { equilibria, singular };
 }

@@ -1,5 +1,10 @@
 import { EigenvalueDecomposition, Matrix } from "ml-matrix";
-import { CLASSIFY_REL_TOL, EIGENVECTOR_LEAD_TOL } from "../constants.js";
+import {
+  CLASSIFY_BORDERLINE_TOL,
+  CLASSIFY_REL_TOL,
+  CLASSIFY_ROUNDING_TOL,
+  EIGENVECTOR_LEAD_TOL,
+} from "../constants.js";
 import { spectralRadius } from "../numeric/linear.js";
 
 export type EquilibriumType =
@@ -28,7 +33,10 @@ export interface StabilityResult {
   eigenvalues: Complex[];
   /** Unit eigenvectors for real eigenvalues, in eigenvalue order; empty for a complex pair. */
   eigenvectors: number[][];
+  /** The best call; when it rests on a quantity near zero, `borderline` says so. */
   type: EquilibriumType;
+  /** Null when the type is decided with margin, or is a boundary type read at zero (non-hyperbolic, center, star, or a degenerate node whose discriminant is zero to rounding). */
+  borderline: BorderlineResult | null;
   hyperbolic: boolean;
   /** true: asymptotically stable; false: unstable; null: the linearisation does not decide. */
   stable: boolean | null;
@@ -45,12 +53,87 @@ function normalizeVector(v: number[]): number[] {
   return v.map((c) => (sign * c) / norm + 0); // + 0 turns -0 into 0 for stable JSON
 }
 
-/** Classifies a planar equilibrium from its Jacobian (row-major 2 × 2). */
-export function classifyEquilibrium(jacobian: number[][]): StabilityResult {
+/**
+ * A type called on a quantity near zero: the reported type, the type across the nearest
+ * boundary, and the evidence. Both quantities are unit-free.
+ */
+export interface BorderlineResult {
+  /** The reported type first, then the type a small change of J would give instead. */
+  between: [EquilibriumType, EquilibriumType];
+  /**
+   * discriminant: node against focus, by discriminant / trace² = ((λ₁ − λ₂)/(λ₁ + λ₂))²;
+   * jordan: degenerate node against star, by ‖S⁻¹(J − λI)S‖ / |λ| (Frobenius norm, S the
+   * states' scales, λ the repeated eigenvalue): zero exactly when J − λI has rank 0.
+   */
+  quantity: "discriminant" | "jordan";
+  value: number;
+  /** The band the value lies in: |value| ≤ CLASSIFY_BORDERLINE_TOL. */
+  tolerance: number;
+}
+
+/**
+ * Node, focus, degenerate node or star, for det > 0 and a trace that is not zero, read in the
+ * states' scales: J̃ = S⁻¹ J S and its traceless part Ñ = J̃ − λI, λ = trace/2. The eigenvalue is
+ * repeated when discriminant = −4 det Ñ vanishes; then J − λI of rank 0 is a star, of rank 1 a
+ * degenerate node (Horn and Johnson, Matrix Analysis, 2nd ed., section 3.1: two Jordan blocks
+ * or one). The discriminant is zero to precision when below CLASSIFY_ROUNDING_TOL · 4‖Ñ‖‖J̃‖:
+ * an error E in J̃ moves −4 det Ñ by at most 4‖Ñ‖‖E‖, so an exactly computed near-star keeps
+ * its node or focus while a Jordan block with noise in its entries stays a degenerate node.
+ */
+function fineType(
+  J: number[][],
+  side: "stable" | "unstable",
+  discriminant: number,
+  scales: readonly number[],
+): { type: EquilibriumType; borderline: BorderlineResult | null } {
+  const [[a, b], [c, d]] = J;
+  const trace = a + d;
+  const upper = (b * scales[1]) / scales[0],
+    lower = (c * scales[0]) / scales[1];
+  const half = (a - d) / 2;
+  const tracelessNorm = Math.hypot(half, upper, lower, half);
+  const jordan = tracelessNorm / Math.abs(trace / 2);
+  if (jordan <= CLASSIFY_ROUNDING_TOL) return { type: `${side}-star`, borderline: null };
+  const precision = CLASSIFY_ROUNDING_TOL * 4 * tracelessNorm * Math.hypot(a, upper, lower, d);
+  if (Math.abs(discriminant) > precision) {
+    const node: EquilibriumType = `${side}-node`,
+      focus: EquilibriumType = `${side}-focus`;
+    const between: [EquilibriumType, EquilibriumType] = discriminant > 0 ? [node, focus] : [focus, node];
+    return {
+      type: between[0],
+      borderline: borderlineOf(between, "discriminant", discriminant / (trace * trace)),
+    };
+  }
+  const type: EquilibriumType = `${side}-degenerate-node`;
+  return { type, borderline: borderlineOf([type, `${side}-star`], "jordan", jordan) };
+}
+
+function borderlineOf(
+  between: [EquilibriumType, EquilibriumType],
+  quantity: BorderlineResult["quantity"],
+  value: number,
+): BorderlineResult | null {
+  return Math.abs(value) <= CLASSIFY_BORDERLINE_TOL
+    ? { between, quantity, value, tolerance: CLASSIFY_BORDERLINE_TOL }
+    : null;
+}
+
+/**
+ * Classifies a planar equilibrium from its Jacobian (row-major 2 × 2), following the
+ * trace–determinant plane (Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., section 5.2).
+ * `scales` are the states' typical sizes (the window widths): the precision of J and its Jordan
+ * structure are read in them, since a Jordan block's coupling changes with the units while
+ * trace, determinant and discriminant do not (J → D J D⁻¹). Without them J is read as given.
+ */
+export function classifyEquilibrium(
+  jacobian: number[][],
+  scales: readonly number[] = [1, 1],
+): StabilityResult {
   const [[a, b], [c, d]] = jacobian;
   const trace = a + d;
   const determinant = a * d - b * c;
-  const discriminant = trace * trace - 4 * determinant;
+  // τ² − 4Δ written without the cancellation of τ² against 4ad
+  const discriminant = (a - d) ** 2 + 4 * b * c;
   const scale = Math.hypot(a, b, c, d);
 
   const evd = new EigenvalueDecomposition(new Matrix(jacobian));
@@ -71,10 +154,8 @@ export function classifyEquilibrium(jacobian: number[][]): StabilityResult {
   const radius = spectralRadius(eigenvalues);
   const traceScale = Math.max(Math.abs(a), Math.abs(d), radius);
   const detScale = Math.max(Math.abs(a * d), Math.abs(b * c), radius * radius);
-  const discScale = Math.max(trace * trace, 4 * detScale);
   const zeroTrace = Math.abs(trace) <= CLASSIFY_REL_TOL * traceScale;
   const zeroDet = Math.abs(determinant) <= CLASSIFY_REL_TOL * detScale;
-  const zeroDisc = Math.abs(discriminant) <= CLASSIFY_REL_TOL * discScale;
   const base = {
     jacobian: jacobian.map((r) => r.slice()),
     trace,
@@ -82,20 +163,13 @@ export function classifyEquilibrium(jacobian: number[][]): StabilityResult {
     discriminant,
     eigenvalues,
     eigenvectors,
+    borderline: null,
   };
 
   if (scale === 0 || zeroDet) return { ...base, type: "non-hyperbolic", hyperbolic: false, stable: null };
   if (determinant < 0) return { ...base, type: "saddle", hyperbolic: true, stable: false };
   if (zeroTrace) return { ...base, type: "center", hyperbolic: false, stable: null };
   const stable = trace < 0;
-  const side = stable ? "stable" : "unstable";
-  if (zeroDisc) {
-    // repeated eigenvalue: a star when J is a multiple of the identity, else a degenerate node
-    const isScalar =
-      Math.abs(b) <= CLASSIFY_REL_TOL * scale &&
-      Math.abs(c) <= CLASSIFY_REL_TOL * scale &&
-      Math.abs(a - d) <= CLASSIFY_REL_TOL * scale;
-    return { ...base, type: isScalar ? `${side}-star` : `${side}-degenerate-node`, hyperbolic: true, stable };
-  }
-  return { ...base, type: discriminant > 0 ? `${side}-node` : `${side}-focus`, hyperbolic: true, stable };
+  const fine = fineType(jacobian, stable ? "stable" : "unstable", discriminant, scales);
+  return { ...base, ...fine, hyperbolic: true, stable };
 }

@@ -1,7 +1,7 @@
 import { prepareModel } from "../../pipeline.js";
 import { CliExit, EXIT, inputError, makeProgress, readSpecFile } from "../io.js";
 import { runAnalysis } from "./run.js";
-import { claimEvidenceWords, claimReferenceWords } from "../../report/words/index.js";
+import { claimEvidenceWords, claimReferenceWords, stateTerms } from "../../report/words/index.js";
 
 /** `keel check SPEC`: validate and print a model summary. */
 export function runCheck(file: string): string {
@@ -45,7 +45,7 @@ export async function runCheckClaims(
   const output = await runAnalysis(text, options.jobs, makeProgress(options.quiet));
   if (!output.ok) throw inputError(output.issues, file);
   const claims = output.value.results.claims;
-  const states = output.value.results.model.states;
+  const states = stateTerms(prepared.value.spec.states);
   const lines = claims.map(
     (c) =>
       `${c.verdict.padEnd(12)} ${c.id}: ${claimEvidenceWords(c, states)} (see ${claimReferenceWords(c.where)})`,

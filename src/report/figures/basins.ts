@@ -2,7 +2,7 @@ import { decodeRuns } from "../../analysis/basins/refine.js";
 import type { BasinResult, Results } from "../../analysis/types.js";
 import type { NormalizedSpec } from "../../spec/types.js";
 import { formatPercent } from "../format.js";
-import { attractorIdWords } from "../words/index.js";
+import { attractorIdWords, basinAttractors } from "../words/index.js";
 import { markerBox, portraitFrame } from "./geometry.js";
 import { buildKey, type KeyEntry } from "./key.js";
 import { keyedFigure, labelLayers, pathLayer, symbolLayer, type VegaLiteSpec } from "./layers.js";
@@ -70,7 +70,7 @@ export function basinFills(basins: BasinResult): string[] {
 }
 
 const SPECIAL_WORDS: Record<string, string> = {
-  "left-window": "leaves the window",
+  "left-window": "leaves the feasible region",
   "blow-up": "grows without bound",
   undecided: "undecided",
 };
@@ -85,9 +85,11 @@ export function buildBasinFigure(results: Results, spec: NormalizedSpec): VegaLi
   const layers: Record<string, unknown>[] = [
     cellLayer("cells", regionCellRows(frame, drawn, basins.grid.legend, fills), enc),
   ];
+  // only attractors (a center the map could label but nothing reaches is none), and other labels where found
+  const listed = basinAttractors(results);
   const key: KeyEntry[] = basins.grid.legend
     .map((name, k) => ({ name, k, fraction: basins.fractions[name] ?? 0 }))
-    .filter(({ k, fraction }) => k < basins.attractors.length || fraction > 0)
+    .filter(({ name, k, fraction }) => (k < basins.attractors.length ? listed.includes(name) : fraction > 0))
     .map(({ name, k, fraction }): KeyEntry => {
       const what =
         k < basins.attractors.length

@@ -12,6 +12,8 @@ import {
   type Polyline,
   type ScreenBox,
 } from "./geometry.js";
+import { feasibleRuns } from "./feasible.js";
+import { CYCLE_KEY_LABELS, cycleBranchLayers, type CycleKind } from "./amplitude.js";
 import { buildKey, type KeyEntry } from "./key.js";
 import {
   keyedFigure,
@@ -31,6 +33,7 @@ import {
   BIFURCATION_PANEL,
   BRANCH_STYLES,
   FONT_SIZE,
+  LINE_STYLES,
   NOMINAL_COLOR,
   NOMINAL_STYLE,
   SPECIAL_POINT_MARKERS,
@@ -41,7 +44,8 @@ import {
  * per state on a shared parameter axis, drawn solid where stable, dashed where unstable and
  * dotted where the linearisation does not decide; the located special points marked by kind
  * and labelled; the current value as a vertical rule. Each panel's y range is the state's
- * window: branches continue through infeasible states (negative populations), which are cut off.
+ * window. Branches continue through infeasible states (negative populations); those parts are
+ * cut off in every panel, at the bound they cross (feasible.ts).
  */
 
 export type BranchStability = keyof typeof BRANCH_STYLES;
@@ -150,16 +154,23 @@ function panelEncoding(frame: PlotFrame, param: NormalizedParameter, last: boole
   };
 }
 
-/** Every branch in `state`, one layer per stability drawn, and which stabilities were drawn. */
+/** Every branch's feasible parts in `state`, one layer per stability drawn, and which stabilities were drawn. */
 function branchLayers(
   study: ParameterStudyResult,
   state: string,
   frame: PlotFrame,
   enc: Encoding,
   k: number,
+  feasible: (b: BranchResult) => BranchResult[],
 ) {
   const pieces = study.continuation.branches.flatMap((b) =>
-    branchPieces(b, state).map((p, i) => ({ key: `B${b.index}.${i}`, line: p.line, stability: p.stability })),
+    feasible(b).flatMap((run, r) =>
+      branchPieces(run, state).map((p, i) => ({
+        key: `B${b.index}.${r}.${i}`,
+        line: p.line,
+        stability: p.stability,
+      })),
+    ),
   );
   const layers: Record<string, unknown>[] = [];
   const drawn: BranchStability[] = [];
@@ -247,16 +258,18 @@ function bifurcationPanel(results: Results, spec: NormalizedSpec, study: Paramet
   const param = spec.parameters.find((p) => p.name === study.parameter)!;
   const frame = bifurcationFrame(results, study, names[k]);
   const enc = panelEncoding(frame, param, k === names.length - 1);
-  const branches = branchLayers(study, names[k], frame, enc, k);
+  const feasible = (b: BranchResult) => feasibleRuns(b, spec.states, results.model.window);
+  const branches = branchLayers(study, names[k], frame, enc, k, feasible);
+  const cycles = cycleBranchLayers(study, names[k], frame, enc, k);
   const nominal = nominalLayers(study, frame, enc, k);
   const specials = specialPointLayers(results, study, k, frame, enc, nominal.occupied);
   const view = {
     width: frame.width,
     height: frame.height,
     title: panelTitle(stateAxisTitle(state)),
-    layer: [...branches.layers, ...nominal.layers, ...specials],
+    layer: [...branches.layers, ...cycles.layers, ...nominal.layers, ...specials],
   };
-  return { view, drawn: branches.drawn };
+  return { view, drawn: branches.drawn, cycles: cycles.drawn };
 }
 
 /** Key rows: the stabilities drawn, the current value, the kinds of special point drawn. */
@@ -264,6 +277,7 @@ function bifurcationKey(
   results: Results,
   study: ParameterStudyResult,
   drawn: Set<BranchStability>,
+  cycles: Set<CycleKind>,
 ): KeyEntry[] {
   const kinds = new Set(
     results.model.states.flatMap((s) => drawnSpecialPoints(results, study, s).map((t) => t.kind)),
@@ -273,6 +287,12 @@ function bifurcationKey(
     ...(["stable", "unstable", "undecided"] as const)
       .filter((s) => drawn.has(s))
       .map((s): KeyEntry => ({ kind: "line", style: BRANCH_STYLES[s] })),
+    ...(["attracting", "other"] as const)
+      .filter((c) => cycles.has(c))
+      .map((c): KeyEntry => {
+        const style = c === "attracting" ? LINE_STYLES.cycleStable : LINE_STYLES.cycleOther;
+        return { kind: "line", style: { ...style, label: CYCLE_KEY_LABELS[c] } };
+      }),
     { kind: "line", style: { ...NOMINAL_STYLE, label: nominal } },
     ...(["saddle-node", "transcritical", "hopf", "boundary-crossing"] as const)
       .filter((c) => kinds.has(c))
@@ -288,7 +308,7 @@ export function buildBifurcationFigure(
   const n = results.model.states.length;
   const panels = results.model.states.map((_, k) => bifurcationPanel(results, spec, study, k));
   const drawn = new Set(panels.flatMap((p) => p.drawn));
-  const key = bifurcationKey(results, study, drawn);
+  const key = bifurcationKey(results, study, drawn, new Set(panels.flatMap((p) => p.cycles)));
   const height = n * (BIFURCATION_PANEL.height + TITLE_HEIGHT) + (n - 1) * PANEL_SPACING;
   const stacked = {
     vconcat: panels.map((p) => p.view),

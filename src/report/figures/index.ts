@@ -11,6 +11,7 @@ import {
   attractorIdWords,
   fateWords,
   outcomeWords,
+  stateTerms,
   pointWords,
 } from "../words/index.js";
 import { BASIN_DRAW_MAX, downsampleBasinGrid, buildBasinFigure } from "./basins.js";
@@ -136,8 +137,8 @@ function basinCaption(results: Results, spec: NormalizedSpec): string {
     `each cell is filled by the outcome its centre's trajectory reaches, ${computed}, ${drawing}. ` +
     `Shares of the window: ${shares}; ` +
     (b.errorBound > 0
-      ? `each share is within ±${formatPercent(b.errorBound)} of the window (the finest cells that border another label could belong to either side)`
-      : "no cell borders another label, so the shares are exact at this resolution") +
+      ? `each share is within ±${formatPercent(b.errorBound)} of the window (the finest cells that border another label could belong to either side, an undecided cell to any)`
+      : "no cell borders another label and none is undecided, so the shares are exact at this resolution") +
     ", and a basin narrower than a coarse cell can be missed." +
     (over.length ? ` Drawn over the fills: ${over.join("; ")}.` : "")
   );
@@ -160,15 +161,18 @@ function bifurcationCaption(results: Results, spec: NormalizedSpec, study: Param
     (marked.length
       ? `Marked by kind and labelled with the value: ${marked.join("; ")}. `
       : "No threshold lies in the range. ") +
+    (study.continuation.cycles.some((c) => c.points.length)
+      ? "Teal lines from a Hopf point: the least and the greatest value of the state over the periodic orbit born there, solid where it attracts, dashed where not. "
+      : "") +
     `The vertical line is the current value, ${study.parameter} = ${formatNumber(study.nominal)}. ` +
-    "Each panel spans the state's window: branch parts outside it (infeasible equilibria, such as negative populations) are cut off."
+    "Each panel spans the state's window; branch parts outside the feasible region (infeasible equilibria, such as negative populations) are cut off in every panel."
   );
 }
 
 function outcomeMapCaption(results: Results, spec: NormalizedSpec, map: OutcomeMapResult): string {
   const [p1, p2] = map.parameters.map((n) => spec.parameters.find((q) => q.name === n)!);
   const outcomes = map.legend
-    .map((o, k) => `${outcomeLetter(k)}, ${outcomeWords(o, results.model.states)}`)
+    .map((o, k) => `${outcomeLetter(k)}, ${outcomeWords(o, stateTerms(spec.states))}`)
     .join("; ");
   const curves = map.curves.map(
     (c) =>

@@ -170,6 +170,32 @@ function nullclinePart(frame: PlotFrame, states: string[], nullclines: Nullcline
   return part;
 }
 
+const outsideFrame = (frame: PlotFrame, x: number, y: number) =>
+  !(x >= frame.lo[0] && x <= frame.hi[0] && y >= frame.lo[1] && y <= frame.hi[1]);
+
+/**
+ * A manifold's path cut at every step between two points outside the window: the curve between
+ * them is not resolved there (a separatrix that has left runs on, sparsely sampled, as it blows
+ * up), so its chord, which may cut across the window, is not drawn.
+ */
+export function resolvedRuns(frame: PlotFrame, line: Polyline): Polyline[] {
+  const runs: Polyline[] = [];
+  let run: Polyline = { x: [], y: [] };
+  line.x.forEach((x, k) => {
+    const y = line.y[k];
+    const out = outsideFrame(frame, x, y);
+    const n = run.x.length;
+    if (n && out && outsideFrame(frame, run.x[n - 1], run.y[n - 1])) {
+      if (n >= 2) runs.push(run);
+      run = { x: [], y: [] };
+    }
+    run.x.push(x);
+    run.y.push(y);
+  });
+  if (run.x.length >= 2) runs.push(run);
+  return runs;
+}
+
 /** The separatrices: unstable manifolds drawn under stable ones (the stable ones bound basins), listed after them. */
 function separatrixPart(frame: PlotFrame, results: Results, enc: Encoding): PortraitPart {
   const part: PortraitPart = { layers: [], key: [] };
@@ -177,7 +203,9 @@ function separatrixPart(frame: PlotFrame, results: Results, enc: Encoding): Port
     const style = manifold === "stable" ? LINE_STYLES.stableManifold : LINE_STYLES.unstableManifold;
     const paths = results.separatrices
       .filter((s) => s.manifold === manifold)
-      .map((s) => ({ key: `${s.saddle}${s.side}`, line: polyline(s.path) }));
+      .flatMap((s) =>
+        resolvedRuns(frame, polyline(s.path)).map((line, j) => ({ key: `${s.saddle}${s.side}.${j}`, line })),
+      );
     const layer = pathLayer(`${manifold}_manifolds`, frame, paths, style, enc, "catmull-rom");
     if (!layer) continue;
     part.layers.push(layer);

@@ -6,9 +6,12 @@ import {
   THRESHOLD_KIND_WORDS,
   breakKindWords,
   intervalCondition,
+  marginAmountWords,
   marginStatement,
   outcomeWords,
   pointWords,
+  invasionTerms,
+  stateTerms,
 } from "../words/index.js";
 import { m, type ViewInput } from "./common.js";
 
@@ -36,14 +39,17 @@ function buildInvasionView({ results }: ViewInput) {
 
 function symbolicAgreement(t: ParameterStudyResult["thresholds"][number]): string {
   if (!t.symbolic) return "";
-  if (t.symbolic.relativeDifference === 0) return "matches the located value exactly";
+  if (t.symbolic.difference === 0) return "matches the located value exactly";
+  // a symbolic threshold at zero has no relative difference: the distance is in the parameter's unit
+  if (t.symbolic.relativeDifference === null)
+    return `matches the located value to ${formatNumberHtml(t.symbolic.difference, 2)}, absolute`;
   return `matches the located value to ${formatNumberHtml(t.symbolic.relativeDifference, 2)}, relative`;
 }
 
 function buildStudyView(input: ViewInput, st: ParameterStudyResult) {
-  const { spec, results, figure } = input;
+  const { spec, figure } = input;
   const param = spec.parameters.find((q) => q.name === st.parameter)!;
-  const states = results.model.states;
+  const states = stateTerms(spec.states);
   return {
     parameter: st.parameter,
     symbol: m(nameToTex(st.parameter)),
@@ -65,53 +71,59 @@ function buildStudyView(input: ViewInput, st: ParameterStudyResult) {
       words: outcomeWords(iv.outcome, states),
       now: iv.containsNominal,
     })),
-    margin: marginStatement(st, states),
+    margin: marginStatement(st, states, param.unit ?? ""),
     figure: figure(`bifurcation-${st.parameter}`),
   };
 }
 
+const marginOrder = (m: NonNullable<ParameterStudyResult["margin"]>) => Math.abs(m.relative ?? m.ofRange);
+
 /** The margin of every studied parameter, nearest break first: the summary's and the conditions section's table. */
 export function buildMarginsView({ spec, results }: ViewInput) {
-  const states = results.model.states;
-  return results.conditions.studies
-    .filter((st) => st.margin)
-    .sort((x, y) => Math.abs(x.margin!.relative) - Math.abs(y.margin!.relative))
-    .map((st) => {
-      const margin = st.margin!;
-      const unit = spec.parameters.find((q) => q.name === st.parameter)?.unit ?? "";
-      const current = st.intervals.find((iv) => iv.containsNominal);
-      return {
-        parameter: st.parameter,
-        symbol: m(nameToTex(st.parameter)),
-        statement: marginStatement(st, states),
-        // the interval of this parameter over which the current outcome holds, the others fixed
-        holds: current ? m(intervalCondition(st, current).tex) : "",
-        now: formatQuantity(st.nominal, unit),
-        // the table has no room for the long "(no local bifurcation)" gloss the threshold tables give
-        threshold: `${breakKindWords(margin.to, false)} at ${formatNumberHtml(margin.to.value)}`,
-        percent: formatNumber(100 * Math.abs(margin.relative), 3) + "%",
-        side: margin.side,
-      };
-    });
+  const states = stateTerms(spec.states);
+  return (
+    results.conditions.studies
+      .filter((st) => st.margin)
+      // by the printed measure: the percentage, or for a break at zero the fraction of the range
+      .sort((x, y) => marginOrder(x.margin!) - marginOrder(y.margin!))
+      .map((st) => {
+        const margin = st.margin!;
+        const unit = spec.parameters.find((q) => q.name === st.parameter)?.unit ?? "";
+        const current = st.intervals.find((iv) => iv.containsNominal);
+        return {
+          parameter: st.parameter,
+          symbol: m(nameToTex(st.parameter)),
+          statement: marginStatement(st, states, unit),
+          // the interval of this parameter over which the current outcome holds, the others fixed
+          holds: current ? m(intervalCondition(st, current).tex) : "",
+          now: formatQuantity(st.nominal, unit),
+          // the table has no room for the long "(no local bifurcation)" gloss the threshold tables give
+          threshold: `${breakKindWords(margin.to, false)} at ${formatNumberHtml(margin.to.value)}`,
+          percent: margin.side === "at" ? "0" : marginAmountWords(margin, unit),
+          side: margin.side === "at" ? "(on it)" : margin.side,
+        };
+      })
+  );
 }
 
 /** At the current values every study sees the same outcome; it is printed once, above the margins. */
-export function currentOutcomeWords({ results }: ViewInput): string {
+export function currentOutcomeWords({ spec, results }: ViewInput): string {
   const current = results.conditions.studies.flatMap((st) =>
     st.intervals.filter((iv) => iv.containsNominal),
   )[0];
-  return current ? outcomeWords(current.outcome, results.model.states) : "";
+  return current ? outcomeWords(current.outcome, stateTerms(spec.states)) : "";
 }
 
 /** Invasion conditions, one block per studied parameter, and the outcome maps. */
 export function buildConditionsView(input: ViewInput) {
   const { results, figure } = input;
   const c = results.conditions;
-  const states = results.model.states;
+  const states = stateTerms(input.spec.states);
   return {
     show: c.studies.length > 0 || c.invasion.length > 0,
     locateTolerance: formatNumberHtml(LOCATE_TOL),
     invasion: buildInvasionView(input),
+    invasionTerms: invasionTerms(states),
     studies: c.studies.map((st) => buildStudyView(input, st)),
     maps: c.maps.map((mp) => ({
       pair: mp.parameters.join(" and "),

@@ -1,5 +1,12 @@
 import { formatEigenvalues, formatNumberHtml, formatUnit } from "../format.js";
-import { TYPE_WORDS } from "../words/index.js";
+import {
+  SINGULARITY_REASON_WORDS,
+  TYPE_WORDS,
+  borderlineWords,
+  singularEvidenceWords,
+  singularFactorWords,
+  singularWhereWords,
+} from "../words/index.js";
 import { m, matrixTex, numberTex, type ViewInput } from "./common.js";
 
 /** The equilibria table, each Jacobian typeset, and the trace–determinant figure. */
@@ -12,6 +19,8 @@ export function buildEquilibriaView({ spec, results, figure }: ViewInput) {
     discriminant: formatNumberHtml(e.discriminant),
     eigenvalues: formatEigenvalues(e.eigenvalues, 5),
     type: TYPE_WORDS[e.type],
+    // the best call stays in the Type column; a borderline call says so beside it, with its evidence
+    borderline: e.borderline ? borderlineWords(e.borderline) : "",
     hyperbolic: e.hyperbolic ? "yes" : "no",
     boundary: e.onBoundary ? `on the boundary (${e.boundaryStates.join(", ")} at a bound)` : "interior",
     jacobianMath: m(`J(${e.id}) = ${matrixTex(e.jacobian.map((r) => r.map((v) => numberTex(v))))}`, true),
@@ -19,8 +28,17 @@ export function buildEquilibriaView({ spec, results, figure }: ViewInput) {
       ? ""
       : "The linearisation does not decide this equilibrium's stability; higher-order terms do.",
   }));
+  // singular points and lines: listed with their evidence, never with a type
+  const singularities = results.singularities.map((s) => ({
+    id: s.id,
+    where: singularWhereWords(s),
+    reason: SINGULARITY_REASON_WORDS[s.reason],
+    factors: s.factors.map((f) => ({ math: m(f.tex), words: singularFactorWords(f) })),
+    evidence: singularEvidenceWords(s),
+  }));
   return {
     equilibria: rows,
+    singularities,
     stateHeaders: spec.states.map((s) => (s.unit ? `${s.name} (${formatUnit(s.unit)})` : s.name)),
     traceDeterminant: figure("trace-determinant"),
   };

@@ -12,7 +12,7 @@ function separatrixEndWords(input: ViewInput, end: SeparatrixEnd): string {
     case "cycle":
       return `reaches ${end.target}`;
     case "left-window":
-      return `leaves the window through ${edgeWords(end.edge)} at ${pointWords(snapToZero(input.spec, end.point))}`;
+      return `leaves the feasible region through ${edgeWords(end.edge)} at ${pointWords(snapToZero(input.spec, end.point))}`;
     case "outside-window":
       return "points out of the window (not drawn)";
     default:

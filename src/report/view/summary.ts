@@ -1,16 +1,17 @@
 import { formatNumber } from "../format.js";
 import {
-  TYPE_WORDS,
+  equilibriumTypeWords,
   claimEvidenceWords,
   claimReferenceWords,
   fateWords,
   pointWords,
+  stateTerms,
 } from "../words/index.js";
 import type { ViewInput } from "./common.js";
 import { buildMarginsView, currentOutcomeWords } from "./conditions.js";
 import { buildAssumptionsView } from "./model.js";
 
-function buildClaimsView({ results }: ViewInput) {
+function buildClaimsView({ spec, results }: ViewInput) {
   const claims = results.claims;
   const count = (verdict: string) => claims.filter((c) => c.verdict === verdict).length;
   return {
@@ -18,7 +19,7 @@ function buildClaimsView({ results }: ViewInput) {
       id: c.id,
       text: c.text,
       verdict: c.verdict,
-      evidence: claimEvidenceWords(c, results.model.states),
+      evidence: claimEvidenceWords(c, stateTerms(spec.states)),
       where: claimReferenceWords(c.where),
     })),
     claimCounts: {
@@ -47,7 +48,7 @@ export function buildSummaryView(input: ViewInput) {
     })),
     equilibria: results.equilibria.map((e) => ({
       id: e.id,
-      type: TYPE_WORDS[e.type],
+      type: equilibriumTypeWords(e),
       at: pointWords(e.point, 4),
     })),
     assumptionsFailing: buildAssumptionsView(input).filter((a) => a.holds === false).length,

@@ -1,6 +1,8 @@
 import type { ClaimEvidence, ClaimReference, ClaimResult } from "../../analysis/checks/claims.js";
 import { attractorListWords } from "./outcomes.js";
-import { undecidedReasonWords } from "./fates.js";
+import type { StateTerms } from "./presence.js";
+import { borderlineWords, undecidedReasonWords } from "./fates.js";
+import { CLAIM_ZERO_SCALE_OF_RANGE } from "../../analysis/constants.js";
 
 /** Evidence numbers: six significant digits, plain ASCII, so a reader can paste them back into a spec. */
 const fmt = (v: number) => String(Number(v.toPrecision(6)));
@@ -28,6 +30,8 @@ function equilibriumEvidence(
     case "type": {
       const what = `${e.equilibrium} at ${at(e.point)}`;
       const numbers = `(trace ${fmt(e.trace)}, determinant ${fmt(e.determinant)})`;
+      if (e.borderline)
+        return `${what} is ${borderlineWords(e.borderline)}: the linearisation's numbers do not decide whether it is a ${typeWords(e.claimedType)}`;
       if (e.matches) return `${what} is a ${typeWords(e.type)} ${numbers}`;
       if (!e.hyperbolic)
         return `${what} is ${typeWords(e.type)}: its linearisation does not decide whether it is a ${typeWords(e.claimedType)}`;
@@ -79,23 +83,37 @@ function parameterEvidence(
       return `${e.parameter} was not studied`;
     case "no-deciding-threshold":
       return `no ${e.threshold === "any" ? "threshold that changes the outcome" : e.threshold + " threshold"} of ${e.parameter} lies in its range ${fmt(e.range[0])} to ${fmt(e.range[1])}`;
-    case "side":
-      return `${e.parameter} = ${fmt(e.nominal)} lies ${e.side} the ${e.threshold.kind} threshold at ${fmt(e.threshold.value)} (margin ${percent(e.margin)})`;
+    case "side": {
+      const where = `the ${e.threshold.kind} threshold at ${fmt(e.threshold.value)}`;
+      if (e.side === "at")
+        return `${e.parameter} = ${fmt(e.nominal)} lies on ${where} (to the accuracy of its location), neither below nor above it`;
+      const margin =
+        e.margin.relative === null ? `${fmt(e.margin.absolute)}, absolute` : percent(e.margin.relative);
+      return `${e.parameter} = ${fmt(e.nominal)} lies ${e.side} ${where} (margin ${margin})`;
+    }
     case "value-outside-range":
       return `the claimed value ${fmt(e.claimed)} lies outside the range searched, ${fmt(e.range[0])} to ${fmt(e.range[1])}`;
     case "no-threshold":
       return `no ${e.threshold === "any" ? "" : e.threshold + " "}threshold of ${e.parameter} lies in its range`;
-    case "threshold-value":
+    case "threshold-value": {
+      const nearest = `the nearest ${e.located.kind} threshold of ${e.parameter} is at ${fmt(e.located.value)}; `;
+      // a claimed zero has no relative difference: the distance is compared in the parameter's unit
+      if (e.relativeDifference === null)
+        return (
+          nearest +
+          `the claimed ${fmt(e.claimed)} differs by ${fmt(e.difference)} (allowed ${fmt(e.allowed)}: ${percent(e.tolerance * CLAIM_ZERO_SCALE_OF_RANGE)} of the range's width, since a relative difference from 0 means nothing)`
+        );
       return (
-        `the nearest ${e.located.kind} threshold of ${e.parameter} is at ${fmt(e.located.value)}; ` +
+        nearest +
         `the claimed ${fmt(e.claimed)} differs by ${percent(e.relativeDifference)} (allowed ${percent(e.tolerance)})`
       );
+    }
   }
 }
 
 function conditionEvidence(
   e: Extract<ClaimEvidence, { kind: "counterexample" | "condition-agrees" | "too-close-to-call" }>,
-  states: string[],
+  states: StateTerms,
 ): string {
   switch (e.kind) {
     case "counterexample":
@@ -113,8 +131,8 @@ function conditionEvidence(
   }
 }
 
-/** A claim's evidence as a sentence; `states` are the model's state names (attractors are named by them). */
-export function claimEvidenceWords(claim: ClaimResult, states: string[]): string {
+/** A claim's evidence as a sentence; `states` are the model's states (attractors are named by them). */
+export function claimEvidenceWords(claim: ClaimResult, states: StateTerms): string {
   const e = claim.evidence;
   switch (e.kind) {
     case "count":

@@ -34,6 +34,8 @@ const DIAGNOSTIC_WORDS: Wording = {
     `equilibrium ${equilibrium} lies on no traced branch of the ${nullcline}-nullcline (an isolated zero or a tangency the grid cannot see)`,
   "too-many-equilibria": ({ max }) =>
     `more than ${max} equilibria found: the model may have a curve of equilibria; only the first ${max} are listed`,
+  "outcome-search-budget": ({ parameter, evaluations }) =>
+    `the search for outcome breaks in ${parameter} stopped after ${evaluations} outcome evaluations; the changes it had not located are reported as unresolved, not as breaks`,
 };
 
 /** A point near a sign change, to six significant digits: enough to find it, short enough to read. */

@@ -1,4 +1,4 @@
-import type { EquilibriumType } from "../../analysis/phase/stability.js";
+import type { BorderlineResult, EquilibriumType } from "../../analysis/phase/stability.js";
 import type { Fate, UndecidedReason } from "../../analysis/flow/follow.js";
 import type { Results } from "../../analysis/types.js";
 import type { WindowEdge } from "../../analysis/numeric/window.js";
@@ -18,6 +18,29 @@ export const TYPE_WORDS: Record<EquilibriumType, string> = {
   "unstable-star": "unstable star",
   "non-hyperbolic": "non-hyperbolic",
 };
+
+const BORDERLINE_QUANTITY_WORDS: Record<BorderlineResult["quantity"], string> = {
+  discriminant: "discriminant/trace²",
+  jordan: "‖J − λI‖/|λ| in window units",
+};
+
+/** "borderline between stable focus and stable node (discriminant/trace² = −10⁻¹⁰, within 10⁻⁸ of zero)". */
+export function borderlineWords(b: BorderlineResult): string {
+  const [call, other] = b.between.map((t) => TYPE_WORDS[t]);
+  return (
+    `borderline between ${call} and ${other} ` +
+    `(${BORDERLINE_QUANTITY_WORDS[b.quantity]} = ${formatNumber(b.value, 2)}, within ${formatNumber(b.tolerance)} of zero)`
+  );
+}
+
+/** A type as tables and sentences print it: "stable focus", or "stable focus, borderline with stable node". */
+export function equilibriumTypeWords(e: {
+  type: EquilibriumType;
+  borderline: BorderlineResult | null;
+}): string {
+  const type = TYPE_WORDS[e.type];
+  return e.borderline ? `${type}, borderline with ${TYPE_WORDS[e.borderline.between[1]]}` : type;
+}
 
 export function stabilityWord(stable: boolean | null): string {
   return stable === true
@@ -41,7 +64,7 @@ export function edgeWords(edge: WindowEdge): string {
 /** An attractor by its id and kind: "E4 (stable node)", "C1 (stable cycle)" (or "periodic orbit"). */
 export function attractorIdWords(results: Results, id: string, orbit: "cycle" | "periodic orbit"): string {
   const e = results.equilibria.find((q) => q.id === id);
-  if (e) return `${id} (${TYPE_WORDS[e.type]})`;
+  if (e) return `${id} (${equilibriumTypeWords(e)})`;
   const c = results.cycles.find((q) => q.id === id);
   return c ? `${id} (${c.stability} ${orbit})` : id;
 }
@@ -51,7 +74,7 @@ export function fateWords(fate: Fate, results: Results, timeUnit: string): strin
   switch (fate.kind) {
     case "equilibrium": {
       const e = results.equilibria.find((q) => q.id === fate.target);
-      const what = e ? `${fate.target} (${TYPE_WORDS[e.type]} at ${pointWords(e.point)})` : fate.target;
+      const what = e ? `${fate.target} (${equilibriumTypeWords(e)} at ${pointWords(e.point)})` : fate.target;
       if (fate.approach === "stable-manifold")
         return `converges to the saddle ${what} along its stable manifold; any perturbation off that curve leaves it`;
       if (fate.approach === "algebraic")
@@ -65,7 +88,7 @@ export function fateWords(fate: Fate, results: Results, timeUnit: string): strin
         : `settles on the periodic orbit ${fate.target}`;
     }
     case "left-window":
-      return `leaves the analysed window through ${edgeWords(fate.edge)} at ${t(fate.t)}, at ${pointWords(fate.point)}`;
+      return `leaves the feasible region through ${edgeWords(fate.edge)} (the ${fate.bound === "min" ? "lower" : "upper"} bound of ${fate.edge.state}) at ${t(fate.t)}, at ${pointWords(fate.point)}`;
     case "blow-up":
       return `grows without bound (blow-up) by ${t(fate.t)}`;
     case "undecided":

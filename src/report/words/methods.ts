@@ -4,7 +4,9 @@
  */
 import {
   CAPTURE_SAFETY,
+  CLASSIFY_BORDERLINE_TOL,
   CLASSIFY_REL_TOL,
+  CLASSIFY_ROUNDING_TOL,
   CONDITION_MARGIN_TOL,
   DEDUP_REL_TOL,
   DEFAULT_CLAIM_CONDITION_SAMPLES,
@@ -12,13 +14,18 @@ import {
   LOCATE_TOL,
   MANIFOLD_OFFSET,
   MAP_RESOLUTION,
-  OUTCOME_GRID_SIZE,
   OUTCOME_SAMPLES,
   ROOT_RESIDUAL_TOL,
   SHOOT_RELATIVE_TOL,
   SHOOT_RESIDUAL_TOL,
-  SLOW_ARRIVAL_DISTANCE,
+  SHOOT_ACCEPT_TOL,
+  CYCLE_MIN_EXTENT,
+  CYCLE_SCAN_RATIO,
+  MULTIPLIER_AGREEMENT_TOL,
+  FATE_HORIZON_DOUBLINGS,
   SWITCH_LOCATE_TOL,
+  THRESHOLD_SIDE_OFFSET,
+  ZERO_VALUE_TOL,
   SYMBOLIC_MATCH_TOL,
 } from "../../analysis/constants.js";
 import { formatNumber } from "../format.js";
@@ -56,8 +63,13 @@ function equilibriumMethod(s: RecordedSettings): string {
 
 function classificationMethod(): string {
   return (
-    `Classification: trace, determinant and discriminant are called zero within ${formatNumber(CLASSIFY_REL_TOL)} relative to scales a change of units leaves unchanged ` +
-    "(the spectral radius, and the sizes of the terms that cancel); such borderline cases are reported as non-hyperbolic or center."
+    `Classification: trace and determinant are called zero within ${formatNumber(CLASSIFY_REL_TOL)} relative to scales a change of units leaves unchanged ` +
+    "(the spectral radius, and the sizes of the terms that cancel); such cases are reported as non-hyperbolic or center, which the linearisation does not decide. " +
+    "Node, focus, degenerate node and star are read with each state measured in its window width (J̃ = S⁻¹JS, λ half the trace): " +
+    `node against focus follows the sign of the discriminant, called zero within ${formatNumber(CLASSIFY_ROUNDING_TOL)} of 4‖J̃ − λI‖‖J̃‖, ` +
+    `and a repeated eigenvalue is a star when ‖J̃ − λI‖ is within ${formatNumber(CLASSIFY_ROUNDING_TOL)} of |λ|, else a degenerate node. ` +
+    `A call resting on discriminant/trace² or on ‖J̃ − λI‖/|λ| within ${formatNumber(CLASSIFY_BORDERLINE_TOL)} of zero is reported as borderline, with its value, ` +
+    "and a claim of either type it lies between is undecided."
   );
 }
 
@@ -74,15 +86,23 @@ function trajectoryMethod(s: RecordedSettings): string {
   return (
     `Trajectories: ${t.integrator ?? "adaptive integration"}${tolerances ? `; ${tolerances}` : ""}. ` +
     "A trajectory counts as converged once it enters a neighbourhood of a stable equilibrium on which the linearisation's quadratic Lyapunov function " +
-    `was checked by sampling to decrease (only ${percent(CAPTURE_SAFETY)} of the checked level is used, as sampling is not a proof).`
+    `was checked by sampling to decrease (only ${percent(CAPTURE_SAFETY)} of the checked level is used, as sampling is not a proof). ` +
+    "Trajectories are followed inside the feasible region (the states' bounds), out of the window and back where they go so; " +
+    "leaving that region, also between two integration steps (read from each step's cubic Hermite interpolant), is the fate 'leaves the feasible region'."
   );
 }
 
 function cycleMethod(): string {
   return (
-    "Periodic orbits: recurrence through a ray section from an equilibrium, then shooting (secant iteration on the return map) " +
-    `integrated at relative tolerance ${formatNumber(SHOOT_RELATIVE_TOL)}, until the return misses its start by less than ${formatNumber(SHOOT_RESIDUAL_TOL)} of the window; ` +
-    "the Floquet multiplier is exp of the integral of the Jacobian's trace over one period."
+    "Periodic orbits: the return map of a ray section from each focus or centre is sampled at radii growing by a factor " +
+    `${formatNumber(CYCLE_SCAN_RATIO)} and every sign change of its displacement is solved for (at every parameter point an outcome is decided at, too); ` +
+    "recurrence through such a section seen along a trajectory is solved by shooting (secant iteration on the return map); " +
+    `returns are integrated at relative tolerance ${formatNumber(SHOOT_RELATIVE_TOL)}, until the return misses its start by less than ${formatNumber(SHOOT_RESIDUAL_TOL)} of the window. ` +
+    "The Floquet multiplier is exp of the integral of the Jacobian's trace over one period. An orbit is accepted only when its return closes to " +
+    `${formatNumber(SHOOT_ACCEPT_TOL)}, it lies farther than ${formatNumber(CYCLE_MIN_EXTENT)} of the window from its equilibrium, and its multiplier agrees with the return map's slope to ${formatNumber(MULTIPLIER_AGREEMENT_TOL)}; ` +
+    "otherwise the trajectory is followed on. Once solved, a stable cycle's section is probed for the radii whose returns close in on it (a trajectory crossing there goes to it), " +
+    "and a neutral cycle's for the radii whose return map is the identity (its family of closed orbits). " +
+    `A trajectory undecided at its horizon is followed on, each stretch twice the last, up to ${FATE_HORIZON_DOUBLINGS} times.`
   );
 }
 
@@ -104,7 +124,7 @@ function basinMethod(s: RecordedSettings, timeUnit: string): string[] {
         ? `, absolute tolerance ${formatNumber(b.absoluteToleranceOfWindow)} of the window`
         : "") +
       (b.horizon !== undefined ? `, for at most t = ${formatNumber(b.horizon, 4)} ${timeUnit}` : "") +
-      ".",
+      ", by the trajectories' fate rules; a cell whose trajectory crosses a stable cycle's section within the stretch checked to return towards the cycle is that cycle's.",
   ];
 }
 
@@ -112,10 +132,13 @@ function conditionMethods(studied: boolean, mapped: boolean): string[] {
   if (!studied) return [];
   return [
     "Deciding conditions: each ranged parameter varied alone; branches of equilibria followed by pseudo-arclength continuation, and each threshold located " +
-      `to ${formatNumber(LOCATE_TOL)} of the range's width. The outcome (the attractors, found from a multistart grid of ${gridSize(OUTCOME_GRID_SIZE)}, and every scenario's fate) ` +
-      `is also sampled at ${OUTCOME_SAMPLES} evenly spaced values, and a change between samples that no threshold explains is bisected to ` +
-      `${formatNumber(SWITCH_LOCATE_TOL)} of the range. A trajectory still undecided at its horizon within ${formatNumber(SLOW_ARRIVAL_DISTANCE)} of the window of a stable ` +
-      `equilibrium, or still closing in on it, counts as reaching it. A threshold matches a symbolic invasion condition when they agree to ${formatNumber(SYMBOLIC_MATCH_TOL)}, relatively.`,
+      `to ${formatNumber(LOCATE_TOL)} of the range's width. The outcome (the attractors and every scenario's fate) is decided everywhere exactly as at the current values: ` +
+      `the same equilibrium search, fate rules, tolerances and horizons. It is evaluated at ${OUTCOME_SAMPLES + 1} evenly spaced values (both ends included), at the current value, ` +
+      `${formatNumber(THRESHOLD_SIDE_OFFSET)} of the range on either side of each threshold and midway into the gaps beside it; every change between neighbouring values is bisected ` +
+      `on the outcome itself to ${formatNumber(SWITCH_LOCATE_TOL)} of the range, and each break is confirmed by the outcomes evaluated on its two sides. ` +
+      "Where a scenario's fate turns undecided (its horizon or step limit reached) the change is a limit of what was decided, never a break, and no margin is taken to it. " +
+      `A margin is a percentage of the break's value, or a distance in the parameter's unit where the break lies within ${formatNumber(ZERO_VALUE_TOL)} of the range of zero or of the current value. ` +
+      `A threshold matches a symbolic invasion condition when they agree to ${formatNumber(SYMBOLIC_MATCH_TOL)}, relatively.`,
     ...(mapped
       ? [
           `Outcome maps: the attractors at the centre of each of ${gridSize(MAP_RESOLUTION)} cells over the two ranges.`,

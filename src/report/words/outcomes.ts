@@ -5,6 +5,8 @@ import type {
 } from "../../analysis/parameters/outcomes.js";
 import { rankPlace } from "../../analysis/parameters/outcomes.js";
 import type { IntervalEndResult } from "../../analysis/parameters/study.js";
+import { undecidedReasonWords } from "./fates.js";
+import { presenceClause, presenceWords, type StateTerms } from "./presence.js";
 
 /** Threshold kinds in words, for tables and captions. */
 export const THRESHOLD_KIND_WORDS: Record<string, string> = {
@@ -18,6 +20,10 @@ export const THRESHOLD_KIND_WORDS: Record<string, string> = {
 export function breakKindWords(end: IntervalEndResult, gloss = true): string {
   if (end.kind === "threshold") return THRESHOLD_KIND_WORDS[end.threshold] ?? end.threshold;
   if (end.kind === "sampled-break") return gloss ? "outcome change (no local bifurcation)" : "outcome change";
+  if (end.kind === "decision-limit")
+    return gloss
+      ? "limit of decided fates (not a break: a fate is undecided beyond it)"
+      : "limit of decided fates";
   return "range end";
 }
 
@@ -27,20 +33,15 @@ export function breakKindName(end: IntervalEndResult): string {
     ? end.threshold
     : end.kind === "sampled-break"
       ? "outcome change"
-      : "range end";
+      : end.kind === "decision-limit"
+        ? "limit of decided fates"
+        : "range end";
 }
 
-/** Which populations an equilibrium keeps: "coexistence", "S only", or "all absent". */
-export function presenceWords(present: string[], states: string[]): string {
-  if (present.length === states.length) return "coexistence";
-  if (present.length === 0) return "all absent";
-  return `${present.join(" and ")} only`;
-}
-
-/** "coexistence", "N only at lower N", "a stable cycle". */
-export function attractorWords(a: AttractorResult, states: string[]): string {
+/** "coexistence", "N only at lower N", "the origin", "a stable cycle". */
+export function attractorWords(a: AttractorResult, states: StateTerms): string {
   if (a.kind === "cycle") return "a stable cycle";
-  const first = states[0];
+  const first = states.names[0];
   const place = rankPlace(a.rank);
   const rank =
     place === "only"
@@ -53,30 +54,30 @@ export function attractorWords(a: AttractorResult, states: string[]): string {
   return `${presenceWords(a.present, states)}${rank}`;
 }
 
-export function outcomeFateWords(f: OutcomeFateResult, states: string[]): string {
+export function outcomeFateWords(f: OutcomeFateResult, states: StateTerms): string {
   switch (f.kind) {
     case "attractor":
       return `reaches ${attractorWords(f.attractor, states)}`;
     case "equilibrium":
-      return `reaches a ${f.type.replace(/-/g, " ")} with ${presenceWords(f.present, states)}`;
+      return `reaches a ${f.type.replace(/-/g, " ")} ${presenceClause(f.present, states)}`;
     case "cycle":
       return `settles on a ${f.stability ?? ""} cycle`;
     case "left-window":
-      return `leaves the window through ${f.state}`;
+      return `leaves the feasible region through a bound of ${f.state}`;
     case "blow-up":
-      return f.exitState ? `leaves the window through ${f.exitState} and then blows up` : "blows up";
+      return "blows up";
     case "undecided":
-      return "is undecided";
+      return `is undecided (${undecidedReasonWords(f.reason)})`;
   }
 }
 
 /** The attractors in words, in alphabetical order. */
-export function attractorListWords(attractors: AttractorResult[], states: string[]): string[] {
+export function attractorListWords(attractors: AttractorResult[], states: StateTerms): string[] {
   return attractors.map((a) => attractorWords(a, states)).sort();
 }
 
 /** "one attractor (coexistence); survey reaches coexistence". */
-export function outcomeWords(o: OutcomeResult, states: string[]): string {
+export function outcomeWords(o: OutcomeResult, states: StateTerms): string {
   const names = attractorListWords(o.attractors, states);
   const head =
     names.length === 0

@@ -188,6 +188,51 @@ describe("checkClaims on the linear center (Hirsch–Smale–Devaney ch. 3)", ()
 });
 
 /**
+ * x' = −x + 1e-5·y, y' = −1e-5·x − y is the canonical form [[α, β], [−β, α]] with eigenvalues
+ * α ± iβ = −1 ± 1e-5 i (Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., section 5.2): a stable
+ * focus a hair from the node region (discriminant/trace² = −β²/α² = −1e-10). Its stability is
+ * decided; node against focus, and the degenerate node between them, are not.
+ */
+describe("checkClaims on a borderline focus, eigenvalues −1 ± 1e-5 i (Strogatz 5.2)", () => {
+  let claims: Map<string, ClaimResult>;
+  beforeAll(() => {
+    const near = { x: 0, y: 0 };
+    claims = checkSpec(
+      spec({
+        id: "borderline-focus",
+        states: [
+          { name: "x", min: -1, max: 1 },
+          { name: "y", min: -1, max: 1 },
+        ],
+        equations: { x: "-x + 1e-5*y", y: "-1e-5*x - y" },
+        claims: [
+          { id: "focus", kind: "equilibrium-type", near, type: "stable-focus" },
+          { id: "node", kind: "equilibrium-type", near, type: "stable-node" },
+          { id: "degenerate", kind: "equilibrium-type", near, type: "stable-degenerate-node" },
+          { id: "saddle", kind: "equilibrium-type", near, type: "saddle" },
+          { id: "stable", kind: "equilibrium-type", near, type: "stable" },
+        ],
+      }),
+    );
+  });
+
+  it("checkClaims(borderline focus) leaves focus, node and degenerate node undecided, with the evidence", () => {
+    for (const id of ["focus", "node", "degenerate"]) {
+      const c = verdictOf(claims, id);
+      expect(c.verdict, id).toBe("undecided");
+      const b = evidenceOf(c, "type").borderline;
+      expect(b?.between).toEqual(["stable-focus", "stable-node"]);
+      expect(b!.value).toBeCloseTo(-1e-10, 15);
+    }
+  });
+
+  it("checkClaims(borderline focus) still contradicts a saddle and supports 'stable'", () => {
+    expect(verdictOf(claims, "saddle").verdict).toBe("contradicted");
+    expect(verdictOf(claims, "stable").verdict).toBe("supported");
+  });
+});
+
+/**
  * van der Pol's equation x'' − μ(1 − x²)x' + x = 0 with μ = 1 has one stable limit cycle, which
  * attracts every orbit but the origin (Liénard's theorem: Strogatz, Nonlinear Dynamics and
  * Chaos, 2nd ed., section 7.4); the origin is an unstable focus.
@@ -315,8 +360,10 @@ describe("checkClaims on Lotka–Volterra competition with a12 ranged (Murray 3.
     const side = evidenceOf(below, "side");
     expect(side.nominal).toBe(MURRAY.a12);
     expect(side.threshold.value).toBeCloseTo(A12_THRESHOLD, 6);
-    // (1.25 − 1)/1.25
-    expect(side.margin).toBeCloseTo(0.2, 6);
+    // (1.25 − 1)/1.25, relative to a threshold away from zero
+    expect(side.margin.form).toBe("relative");
+    expect(side.margin.relative!).toBeCloseTo(0.2, 6);
+    expect(side.margin.absolute).toBeCloseTo(0.25, 6);
     expect(below.where).toEqual({ section: "conditions", parameter: "a12" });
     expect(verdictOf(claims, "a12-above").verdict).toBe("contradicted");
   });
@@ -334,7 +381,8 @@ describe("checkClaims on Lotka–Volterra competition with a12 ranged (Murray 3.
     const off = verdictOf(claims, "threshold-10pc-off");
     expect(off.verdict).toBe("contradicted");
     // |1.25 − 1.375| / 1.25
-    expect(evidenceOf(off, "threshold-value").relativeDifference).toBeCloseTo(0.1, 6);
+    expect(evidenceOf(off, "threshold-value").relativeDifference!).toBeCloseTo(0.1, 6);
+    expect(evidenceOf(off, "threshold-value").form).toBe("relative");
   });
 
   it("checkClaims(Murray) leaves a threshold claimed outside the searched range undecided", () => {

@@ -13,6 +13,11 @@ import type { Model } from "../../../src/model/types.js";
 import * as jet from "../../fixtures/jets.js";
 import type { JetField } from "../../fixtures/jets.js";
 import { buildModel, type ModelFixture } from "../../fixtures/models.js";
+import { buildSystem } from "../../../src/analysis/parameters/continuation/system.js";
+import { continueBranch } from "../../../src/analysis/parameters/continuation/branch.js";
+import { buildSpecialPoints } from "../../../src/analysis/parameters/continuation/special.js";
+import type { LocatedEvent } from "../../../src/analysis/parameters/continuation/detect.js";
+import { DEFAULT_STEP_OPTIONS } from "../../../src/analysis/constants.js";
 
 /** Required accuracy: thresholds located to 1e-10 relative in the parameter. */
 const THRESHOLD_REL_TOL = 1e-10;
@@ -444,5 +449,125 @@ describe("continueEquilibria: branches, switching, determinism", () => {
         expect(pt.value).toBeLessThanOrEqual(2.2);
       }
     }
+  });
+});
+
+describe("continueEquilibria: bounds and the kind of threshold there", () => {
+  // Invented consumer–resource model with a harvested resource (values invented):
+  // N' = N (b R − m), R' = g − h − d R − c N R. The axis N = 0 is invariant (N' = 0 there); R = 0 is not
+  // (R' = g − h there). Worked by hand: the boundary branch is (0, (g − h)/d), lying on N = 0 for every h,
+  // with R passing through 0 at h = g (dR/dh = −1/d ≠ 0: transversally). The interior branch is
+  // R = m/b, N = (g − h − d m/b)/(c m/b); it meets (0, (g − h)/d) where N's invasion rate there,
+  // b (g − h)/d − m, vanishes: h = g − d m/b, a transcritical (Strogatz, Nonlinear Dynamics and Chaos,
+  // 2nd ed., §3.2; Kuznetsov, Elements of Applied Bifurcation Theory, 3rd ed., §3.3, from memory).
+  const consumer: ModelFixture = {
+    equations: { N: "N*(b*R - m)", R: "g - h - d*R - c*N*R" },
+    window: { N: [0, 40], R: [0, 5] },
+    parameters: { b: 0.4, m: 0.2, g: 2, h: 1, d: 0.5, c: 0.1 },
+  };
+
+  it("continueEquilibria(consumer, h) reports no crossing along the branch lying on N = 0, one where R crosses 0 at h = g", () => {
+    const model = buildModel(consumer);
+    const diagnostics: Diagnostic[] = [];
+    const result = continueEquilibria(model, "h", [0.5, 3], {}, diagnostics);
+    expect(diagnostics).toEqual([]);
+    const crossings = result.points.filter((p) => p.kind === "boundary-crossing");
+    expect(crossings.map((p) => [p.value, p.bound])).toHaveLength(1);
+    expect(crossings[0].bound).toEqual({ state: "R", value: 0 });
+    expect(relative(crossings[0].value, 2)).toBeLessThanOrEqual(1e-9);
+    const t = only(result, "transcritical");
+    expect(relative(t.value, 2 - (0.5 * 0.2) / 0.4)).toBeLessThanOrEqual(1e-9);
+    expect(t.bound).toEqual({ state: "N", value: 0 });
+    expect(result.points).toHaveLength(2);
+    expectOnCurve(model, result);
+  });
+
+  it("continueEquilibria(competition, K2) reports no crossing while (0, K2) and (K1, 0) lie on the axes, one where (0, K2) passes S = 160", () => {
+    // Same source as `competition` above: the coexistence point leaves through S = 0 at K2 = a21 K1 and
+    // through N = 0 at K2 = K1/a12 (transcriticals); (0, K2) and (K1, 0) lie on the axes for every K2, and
+    // (0, K2) passes the upper bound S = 160 of the window at K2 = 160 (dS/dK2 = 1: transversally).
+    const diagnostics: Diagnostic[] = [];
+    const result = continueEquilibria(buildModel(competition(1, 0.4)), "K2", [10, 200], {}, diagnostics);
+    expect(diagnostics).toEqual([]);
+    expect(result.points.map((p) => p.kind)).toEqual(["transcritical", "transcritical", "boundary-crossing"]);
+    const [atS, atN, top] = result.points;
+    expect(relative(atS.value, 0.4 * 130)).toBeLessThanOrEqual(THRESHOLD_REL_TOL);
+    expect(atS.bound).toEqual({ state: "S", value: 0 });
+    expect(relative(atN.value, 130 / 1)).toBeLessThanOrEqual(THRESHOLD_REL_TOL);
+    expect(atN.bound).toEqual({ state: "N", value: 0 });
+    expect(relative(top.value, 160)).toBeLessThanOrEqual(1e-9);
+    expect(top.bound).toEqual({ state: "S", value: 160 });
+    expect(top.point.N).toBe(0);
+  });
+
+  // Invented predator–prey model with harvesting effort E on the prey (values invented):
+  // N' = r N (1 − N/K) − q E N − a N P, P' = b N P − m P. Worked by hand: the boundary equilibrium is
+  // (K (1 − qE/r), 0), where P's invasion rate is b K (1 − qE/r) − m, zero at K* = m / (b (1 − qE/r));
+  // the interior branch N = m/b, P = (r (1 − N/K) − qE)/a passes through P = 0 exactly there.
+  const harvested: ModelFixture = {
+    equations: { N: "r*N*(1 - N/K) - q*Ef*N - a*N*P", P: "b*N*P - m*P" },
+    window: { N: [0, 100], P: [0, 50] },
+    parameters: { r: 1, K: 80, q: 0.01, Ef: 20, a: 0.05, b: 0.01, m: 0.3 },
+  };
+  const kStar = 0.3 / (0.01 * (1 - (0.01 * 20) / 1));
+
+  it("continueEquilibria(harvested predator–prey, K) calls the interior branch meeting (K(1 − qE/r), 0) a transcritical at K* with the exchange", () => {
+    const diagnostics: Diagnostic[] = [];
+    const result = continueEquilibria(buildModel(harvested), "K", [10, 150], {}, diagnostics);
+    expect(diagnostics).toEqual([]);
+    const t = only(result, "transcritical");
+    expect(relative(t.value, kStar)).toBeLessThanOrEqual(THRESHOLD_REL_TOL);
+    expect(t.bound).toEqual({ state: "P", value: 0 });
+    expect(Math.abs(t.point.N - 30) / 100).toBeLessThanOrEqual(POINT_REL_TOL);
+    // the boundary equilibrium is stable while P cannot invade (K < K*), a saddle after; the interior one
+    // the reverse (exchange of stability, Strogatz §3.2)
+    expect(t.stabilityChange).toEqual({ before: "stable-node", after: "saddle" });
+    expect(t.exchange).not.toBeNull();
+    // the only other point: (K(1 − qE/r), 0) reaching the window's edge N = 100 at K = 125
+    expect(result.points.filter((p) => p.kind === "boundary-crossing").map((p) => p.bound)).toEqual([
+      { state: "N", value: 100 },
+    ]);
+  });
+
+  it("buildSpecialPoints(a turning seen where the harvested interior branch meets P = 0) reports a transcritical, not a fold", () => {
+    // Where the continuation sees the branch turn numerically at (m/b, 0, K*) (a det J sign change with
+    // the tangent's parameter component flipping), the point still lies on the invariant axis P = 0 with
+    // P's invasion rate b N − m at zero: the closed form above says transcritical.
+    const model = buildModel(harvested);
+    const sys = buildSystem(model, model.parameterNames.indexOf("K"), [10, 150]);
+    const seeds = [
+      [30, 8.5, 80], // interior: N = m/b, P = (1 − 30/80 − 0.2)/0.05
+      [64, 0, 80], // boundary: K (1 − qE/r)
+    ];
+    const branches = seeds.map((z) => continueBranch(sys, Float64Array.from(z), DEFAULT_STEP_OPTIONS)!);
+    const turning: LocatedEvent = {
+      kind: "saddle-node",
+      branch: 0,
+      z: Float64Array.from([30, 0, kStar]),
+      t: Float64Array.from([0, 1, 0]),
+      residual: 0,
+      testResidual: 0,
+      before: "saddle",
+      after: "saddle",
+      bound: null,
+    };
+    const points = buildSpecialPoints(sys, branches, [turning], DEFAULT_STEP_OPTIONS, []);
+    expect(points.map((p) => p.kind)).toEqual(["transcritical"]);
+    expect(points[0].bound).toEqual({ state: "P", value: 0 });
+    expect(relative(points[0].value, kStar)).toBeLessThanOrEqual(THRESHOLD_REL_TOL);
+  });
+
+  it("continueEquilibria(x' = p − x², p) keeps the fold on the bound x = 0 a saddle-node: that bound is not invariant", () => {
+    // x' = p − x² has equilibria ±√p meeting in a saddle-node at p = 0, x = 0 (Strogatz, Nonlinear Dynamics
+    // and Chaos, 2nd ed., §3.1, with x ↦ −x); x' = p ≠ 0 on x = 0, so no branch lies on that bound.
+    const fold: ModelFixture = {
+      equations: { x: "p - x^2", y: "-y" },
+      window: { x: [0, 2], y: [0, 1] },
+      parameters: { p: 0.5 },
+    };
+    const result = continueEquilibria(buildModel(fold), "p", [-1, 1]);
+    const sn = only(result, "saddle-node");
+    expect(Math.abs(sn.value)).toBeLessThanOrEqual(THRESHOLD_ABS_TOL);
+    expect(result.points.filter((p) => p.kind === "transcritical")).toEqual([]);
   });
 });

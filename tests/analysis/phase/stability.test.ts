@@ -288,8 +288,11 @@ describe("classifyEquilibrium on matrices of every type", () => {
       expect(r.stable).toBe(c.stable);
       expect(r.trace).toBe(a + d);
       expect(r.determinant).toBe(a * d - b * cc);
+      // τ² − 4Δ = (a − d)² + 4bc, exact for these integer entries
       expect(r.discriminant).toBe((a + d) ** 2 - 4 * (a * d - b * cc));
       expect(r.jacobian).toEqual(c.J);
+      // each case is decided with margin or is a boundary type read at zero: nothing borderline
+      expect(r.borderline).toBeNull();
       expectEigenvalues(r.eigenvalues, c.eigenvalues);
       if (c.eigenvectors) expectEigenvectors(r.eigenvectors, c.eigenvectors);
       for (const [k, v] of r.eigenvectors.entries()) {
@@ -441,26 +444,314 @@ describe("classifyEquilibrium eigenvalues against an independent solver (seeded 
   });
 });
 
-describe("classifyEquilibrium is invariant under a change of units", () => {
-  // rescaling state k by s_k maps J to D J D⁻¹, a similarity, which keeps the eigenvalues and so
-  // the type (HSD 3rd ed., section 3.4, changing coordinates). Star versus degenerate node is left
-  // out: a Jordan block's off-diagonal entry can be scaled as small as one likes.
-  it("classifyEquilibrium(D J D⁻¹) has the type of classifyEquilibrium(J) for D = diag(1, 10^k)", () => {
+/**
+ * Borderline calls. Node, focus and degenerate node are the regions of the trace–determinant
+ * plane split by the parabola τ² = 4Δ (Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., section
+ * 5.2); on it, star against degenerate node is the Jordan structure of J − λI (Horn and Johnson,
+ * Matrix Analysis, 2nd ed., section 3.1). The expected quantities are closed forms:
+ * discriminant/τ² = ((λ₁ − λ₂)/(λ₁ + λ₂))², and for J = λI + N, ‖S⁻¹NS‖_F/|λ|.
+ */
+interface BorderlineCase {
+  name: string;
+  J: Matrix2;
+  scales?: [number, number];
+  type: EquilibriumType;
+  /** null: decided with margin; else the other type, the quantity and its closed-form value. */
+  borderline: { other: EquilibriumType; quantity: "discriminant" | "jordan"; value: number } | null;
+}
+
+/** The quantities are formed from entries rounded once or twice: 1e-5 of a value of 1e-10 is far above that. */
+const BORDERLINE_VALUE_REL_TOL = 1e-5;
+
+const BORDERLINE_CASES: BorderlineCase[] = [
+  // [[α, β], [−β, α]] has eigenvalues α ± iβ: −1 ± 1e-5 i, so discriminant/τ² = (2iβ/2α)² = −1e-10
+  {
+    name: "focus −1 ± 1e-5 i, canonical form",
+    J: [
+      [-1, 1e-5],
+      [-1e-5, -1],
+    ],
+    type: "stable-focus",
+    borderline: { other: "stable-node", quantity: "discriminant", value: -1e-10 },
+  },
+  // companion form of λ² + 2λ + (1 + 1e-10): the same eigenvalues, far from normal
+  {
+    name: "focus −1 ± 1e-5 i, companion form",
+    J: [
+      [0, 1],
+      [-(1 + 1e-10), -2],
+    ],
+    type: "stable-focus",
+    borderline: { other: "stable-node", quantity: "discriminant", value: -1e-10 },
+  },
+  // λ = −1 ± 1e-5: discriminant/τ² = (2e-5 / −2)² = 1e-10
+  {
+    name: "node −1 ± 1e-5, diagonal",
+    J: [
+      [-1 + 1e-5, 0],
+      [0, -1 - 1e-5],
+    ],
+    type: "stable-node",
+    borderline: { other: "stable-focus", quantity: "discriminant", value: 1e-10 },
+  },
+  {
+    name: "node −1 ± 1e-5, triangular",
+    J: [
+      [-1 + 1e-5, 1],
+      [0, -1 - 1e-5],
+    ],
+    type: "stable-node",
+    borderline: { other: "stable-focus", quantity: "discriminant", value: 1e-10 },
+  },
+  // 1 ± 1e-3 i: discriminant/τ² = −1e-6, outside the band
+  {
+    name: "focus 1 ± 1e-3 i, decided",
+    J: [
+      [1, 1e-3],
+      [-1e-3, 1],
+    ],
+    type: "unstable-focus",
+    borderline: null,
+  },
+  // the Jordan block [[−1, 1], [0, −1]] with its second state in units 1e10 larger:
+  // D B D⁻¹ for D = diag(1, 1e10) has coupling 1e-10, and the window of that state spans 1e10
+  {
+    name: "Jordan block, units 1e10 apart, window scales given",
+    J: [
+      [-1, 1e-10],
+      [0, -1],
+    ],
+    scales: [1, 1e10],
+    type: "stable-degenerate-node",
+    borderline: null,
+  },
+  // the same matrix read as given: ‖N‖/|λ| = 1e-10, a degenerate node borderline with a star
+  {
+    name: "Jordan block, units 1e10 apart, read as given",
+    J: [
+      [-1, 1e-10],
+      [0, -1],
+    ],
+    type: "stable-degenerate-node",
+    borderline: { other: "stable-star", quantity: "jordan", value: 1e-10 },
+  },
+  // units 1e12 apart: as given the coupling is below rounding, so only the scales tell
+  {
+    name: "Jordan block, units 1e12 apart, window scales given",
+    J: [
+      [2, 1e-12],
+      [0, 2],
+    ],
+    scales: [1, 1e12],
+    type: "unstable-degenerate-node",
+    borderline: null,
+  },
+  {
+    name: "Jordan block, units 1e12 apart, read as given",
+    J: [
+      [2, 1e-12],
+      [0, 2],
+    ],
+    type: "unstable-star",
+    borderline: null,
+  },
+  // J = kI is a star in any units: D (kI) D⁻¹ = kI
+  {
+    name: "star, units 1e10 apart",
+    J: [
+      [-2, 0],
+      [0, -2],
+    ],
+    scales: [1e-5, 1e5],
+    type: "stable-star",
+    borderline: null,
+  },
+];
+
+describe("classifyEquilibrium on borderline and unit-scaled matrices", () => {
+  for (const c of BORDERLINE_CASES) {
+    it(`classifyEquilibrium(${JSON.stringify(c.J)}${c.scales ? `, ${JSON.stringify(c.scales)}` : ""}) is ${c.type}${c.borderline ? `, borderline with ${c.borderline.other}` : ""} (${c.name})`, () => {
+      const r = classifyEquilibrium(c.J, c.scales);
+      expect(r.type).toBe(c.type);
+      expect(r.hyperbolic).toBe(true);
+      if (!c.borderline) {
+        expect(r.borderline).toBeNull();
+        return;
+      }
+      expect(r.borderline).not.toBeNull();
+      const b = r.borderline!;
+      expect(b.between).toEqual([c.type, c.borderline.other]);
+      expect(b.quantity).toBe(c.borderline.quantity);
+      expect(Math.abs(b.value - c.borderline.value)).toBeLessThanOrEqual(
+        BORDERLINE_VALUE_REL_TOL * Math.abs(c.borderline.value),
+      );
+      expect(Math.abs(b.value)).toBeLessThanOrEqual(b.tolerance);
+    });
+  }
+
+  // the same Jordan block through the whole compile → Newton → classify path, the window in the
+  // state's own units: x' = −x + 1e-10·y, y' = −y on [−1, 1] × [−1e10, 1e10]
+  it("findEquilibria(x' = -x + 1e-10*y, y' = -y) on a window 1e10 wider in y finds a stable degenerate node", () => {
+    const model = buildModel({
+      equations: { x: "-x + 1e-10*y", y: "-y" },
+      window: { x: [-1, 1], y: [-1e10, 1e10] },
+    });
+    const found = findEquilibria(model);
+    expect(found).toHaveLength(1);
+    expect(found[0].type).toBe("stable-degenerate-node");
+    expect(found[0].borderline).toBeNull();
+  });
+});
+
+/** T = [[1, p], [q, 1 + pq]] has determinant 1 and the exact inverse [[1 + pq, −p], [−q, 1]]. */
+const small = fc.integer({ min: -3, max: 3 });
+const similarity = fc.tuple(small, small);
+/** A nonzero eigenvalue size on a grid, either sign. */
+const rate = fc.integer({ min: 1, max: 1000 }).chain((k) => fc.constantFrom(k / 100, -k / 100));
+
+function conjugate(A: Matrix2, p: number, q: number): Matrix2 {
+  const T: Matrix2 = [
+    [1, p],
+    [q, 1 + p * q],
+  ];
+  const Ti: Matrix2 = [
+    [1 + p * q, -p],
+    [-q, 1],
+  ];
+  const mul = (X: Matrix2, Y: Matrix2): Matrix2 => [
+    [X[0][0] * Y[0][0] + X[0][1] * Y[1][0], X[0][0] * Y[0][1] + X[0][1] * Y[1][1]],
+    [X[1][0] * Y[0][0] + X[1][1] * Y[1][0], X[1][0] * Y[0][1] + X[1][1] * Y[1][1]],
+  ];
+  return mul(mul(T, A), Ti);
+}
+
+describe("classifyEquilibrium near the parabola τ² = 4Δ (seeded matrices T A T⁻¹ with known eigenvalues)", () => {
+  // eigenvalues λ(1 ± δ) or λ(1 ± iδ): discriminant/τ² = ±δ², borderline exactly when δ² ≤ 1e-8;
+  // δ = 10^-k keeps clear of the band's edge (δ² = 1e-8 is never drawn) and of the rounding floor
+  it("classifyEquilibrium(T A T⁻¹) is A's node or focus, with discriminant/τ² = ±δ², borderline iff δ² ≤ 1e-8", () => {
     fc.assert(
-      fc.property(matrix, fc.integer({ min: -6, max: 6 }), (J, k) => {
-        const norm = frobenius(J);
-        const r = classifyEquilibrium(J);
-        fc.pre(Math.abs(r.discriminant) > 1e-6 * norm * norm);
-        const s = 10 ** k;
-        const scaled: Matrix2 = [
-          [J[0][0], J[0][1] / s],
-          [J[1][0] * s, J[1][1]],
-        ];
-        expect(classifyEquilibrium(scaled).type).toBe(r.type);
-      }),
-      { seed: SEED + 4, numRuns: RUNS },
+      fc.property(
+        rate,
+        fc.constantFrom(1, 2, 3, 5),
+        fc.boolean(),
+        similarity,
+        (lambda, k, complex, [p, q]) => {
+          const delta = 10 ** -k;
+          const A: Matrix2 = complex
+            ? [
+                [lambda, lambda * delta],
+                [-lambda * delta, lambda],
+              ]
+            : [
+                [lambda * (1 + delta), 0],
+                [0, lambda * (1 - delta)],
+              ];
+          const r = classifyEquilibrium(conjugate(A, p, q));
+          const side = lambda < 0 ? "stable" : "unstable";
+          expect(r.type).toBe(`${side}-${complex ? "focus" : "node"}`);
+          const expected = (complex ? -1 : 1) * delta * delta;
+          if (delta * delta > 1e-8) {
+            expect(r.borderline).toBeNull();
+            return;
+          }
+          expect(r.borderline?.quantity).toBe("discriminant");
+          expect(Math.abs(r.borderline!.value - expected)).toBeLessThanOrEqual(
+            BORDERLINE_VALUE_REL_TOL * Math.abs(expected),
+          );
+        },
+      ),
+      { seed: SEED + 5, numRuns: RUNS },
     );
   });
+
+  // A = [[λ, μ], [0, λ]]: J − λI = μ (T e₁)(e₂ᵀ T⁻¹), a rank-one matrix, so in scales S its
+  // Frobenius norm is |μ| ‖S⁻¹ T e₁‖ ‖e₂ᵀ T⁻¹ S‖; with S = I here. λ = k/64 and μ = λ·2^-e keep
+  // T A T⁻¹ exact in binary; 2^-30 (1 + q²) ≤ 9.4e-9 lies inside the band, 2^-8 far outside.
+  const binaryRate = fc.integer({ min: 1, max: 640 }).chain((k) => fc.constantFrom(k / 64, -k / 64));
+  it("classifyEquilibrium(T [[λ, μ], [0, λ]] T⁻¹) is a degenerate node with ‖J − λI‖/|λ| in closed form", () => {
+    fc.assert(
+      fc.property(binaryRate, fc.constantFrom(0, 4, 8, 30), similarity, (lambda, e, [p, q]) => {
+        const mu = lambda * 2 ** -e;
+        const r = classifyEquilibrium(
+          conjugate(
+            [
+              [lambda, mu],
+              [0, lambda],
+            ],
+            p,
+            q,
+          ),
+        );
+        const side = lambda < 0 ? "stable" : "unstable";
+        expect(r.type).toBe(`${side}-degenerate-node`);
+        const ratio = (Math.abs(mu) * Math.hypot(1, q) * Math.hypot(-q, 1)) / Math.abs(lambda);
+        if (ratio > 1e-8) {
+          expect(r.borderline).toBeNull();
+          return;
+        }
+        expect(r.borderline?.between).toEqual([`${side}-degenerate-node`, `${side}-star`]);
+        expect(Math.abs(r.borderline!.value - ratio)).toBeLessThanOrEqual(BORDERLINE_VALUE_REL_TOL * ratio);
+      }),
+      { seed: SEED + 6, numRuns: RUNS },
+    );
+  });
+});
+
+describe("classifyEquilibrium is invariant under a change of units", () => {
+  // rescaling state k by d_k maps J to D J D⁻¹ and the window widths w to D w; in window units
+  // nothing changes, so neither may the type nor its borderline (HSD 3rd ed., section 3.4,
+  // changing coordinates). Random entries, and matrices on the parabola τ² = 4Δ and beside it.
+  const scales = fc.tuple(fc.integer({ min: -3, max: 3 }), fc.integer({ min: -3, max: 3 }));
+  const units = fc.tuple(fc.integer({ min: -10, max: 10 }), fc.integer({ min: -10, max: 10 }));
+  const nearParabola = fc
+    .tuple(
+      rate,
+      fc.constantFrom(0, 1e-5, 1e-3),
+      fc.constantFrom(-1, 0, 1),
+      fc.constantFrom(0, 1e-10, 1),
+      similarity,
+    )
+    .map(([lambda, delta, kind, coupling, [p, q]]) =>
+      conjugate(
+        kind === 0
+          ? [
+              [lambda, coupling * lambda],
+              [0, lambda],
+            ]
+          : [
+              [lambda * (1 + delta), kind * lambda * delta],
+              [-lambda * delta, lambda * (1 - delta)],
+            ],
+        p,
+        q,
+      ),
+    );
+  for (const [name, matrices] of [
+    ["random entries", matrix],
+    ["near τ² = 4Δ", nearParabola],
+  ] as const) {
+    it(`classifyEquilibrium(D J D⁻¹, D w) has the type and borderline of classifyEquilibrium(J, w) (${name})`, () => {
+      fc.assert(
+        fc.property(matrices, scales, units, (J, [w0, w1], [k0, k1]) => {
+          const w: [number, number] = [10 ** w0, 10 ** w1];
+          const d = [10 ** k0, 10 ** k1];
+          const scaled: Matrix2 = [
+            [J[0][0], (J[0][1] * d[0]) / d[1]],
+            [(J[1][0] * d[1]) / d[0], J[1][1]],
+          ];
+          const r = classifyEquilibrium(J, w);
+          const s = classifyEquilibrium(scaled, [w[0] * d[0], w[1] * d[1]]);
+          expect(s.type).toBe(r.type);
+          expect(s.borderline?.between).toEqual(r.borderline?.between);
+          if (r.borderline)
+            expect(Math.abs(s.borderline!.value - r.borderline.value)).toBeLessThanOrEqual(
+              BORDERLINE_VALUE_REL_TOL * Math.abs(r.borderline.value),
+            );
+        }),
+        { seed: SEED + 4, numRuns: RUNS },
+      );
+    });
+  }
 
   it("classifyEquilibrium keeps a stable focus when one state is in 1e5 units", () => {
     // the canonical focus [[−1, 2], [−2, −1]] with its second state rescaled by 1e-5

@@ -1,6 +1,6 @@
 import type { Diagnostic } from "../../../diagnostics/issue.js";
 import { classifyEquilibrium, type EquilibriumType } from "../../phase/stability.js";
-import { CLASSIFY_REL_TOL, SIDE_OFFSET } from "../../constants.js";
+import { BOUND_CONTACT_TOL, BOUND_TRANSVERSAL_TOL, CLASSIFY_REL_TOL, SIDE_OFFSET } from "../../constants.js";
 import { spectralRadius } from "../../numeric/linear.js";
 import type { ContinuedBranch, BranchVertex } from "./branch.js";
 import { locateBetween, pointAlong } from "./locate.js";
@@ -86,9 +86,13 @@ function findBrackets(sys: ContinuationSystem, branch: ContinuedBranch): Bracket
       brackets.push({ kind: "hopf", ...change, bound: null });
   }
   sys.model.spec.states.forEach((state, k) => {
+    // a vertex within contact of the bound is on it: a branch lying on an invariant axis carries
+    // corrector noise of ±1e-40 about it, whose sign flips are no crossing
+    const contact = BOUND_CONTACT_TOL * sys.box.width[k];
     for (const value of [state.min, state.max]) {
       if (!Number.isFinite(value)) continue;
-      for (const change of signChanges(pts.map((p) => p.z[k] - value)))
+      const offsets = pts.map((p) => (Math.abs(p.z[k] - value) <= contact ? 0 : p.z[k] - value));
+      for (const change of signChanges(offsets))
         brackets.push({ kind: "boundary-crossing", ...change, bound: { state: k, value } });
     }
   });
@@ -125,7 +129,7 @@ function testFunction(
 }
 
 function typeAt(sys: ContinuationSystem, z: ArrayLike<number>): EquilibriumType {
-  return classifyEquilibrium(jacobianRows(sys, z)).type;
+  return classifyEquilibrium(jacobianRows(sys, z), sys.box.width).type;
 }
 
 /** Types on either side of z along t; falls back to the bracket's end points. */
@@ -170,6 +174,12 @@ export function locateEvents(
       continue;
     }
     if (bracket.kind === "hopf" && !(determinantAt(sys, located.z) > 0)) continue;
+    // a crossing is real only where the branch passes through the bound, not along it
+    if (
+      bracket.kind === "boundary-crossing" &&
+      !(Math.abs(located.t[bracket.bound!.state]) >= BOUND_TRANSVERSAL_TOL)
+    )
+      continue;
     evaluate(sys, located.z);
     const residual = currentResidual(sys);
     const testResidual = Math.abs(g(located.z)) / scale(located.z);

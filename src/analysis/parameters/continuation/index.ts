@@ -13,6 +13,7 @@ import {
 } from "./branch.js";
 import { locateEvents, type LocatedEvent } from "./detect.js";
 import { buildSpecialPoints, type SpecialPointResult } from "./special.js";
+import { continueCycleFromHopf, type CycleBranchResult } from "../cycle-branch.js";
 import {
   CONTINUATION_MAX_BRANCHES,
   CONTINUATION_SEED_VALUES,
@@ -24,6 +25,7 @@ import { buildSystem, jacobianRows, tangentAt, type ContinuationSystem, type Cur
 export type { SpecialPointResult, SpecialPointKind } from "./special.js";
 export type { BranchEnd, StepOptions } from "./branch.js";
 export { firstLyapunovCoefficient, type LyapunovResult } from "./lyapunov.js";
+export type { CycleBranchResult, CycleBranchPointResult } from "../cycle-branch.js";
 
 /**
  * Branches of equilibria followed across a parameter range by pseudo-arclength continuation:
@@ -77,6 +79,8 @@ export interface ContinuationResult {
   branches: BranchResult[];
   /** Sorted by value, then kind (saddle-node, transcritical, hopf, boundary-crossing), then branch. */
   points: SpecialPointResult[];
+  /** The branch of cycles from each Hopf point with a criticality, in the order of points. */
+  cycles: CycleBranchResult[];
 }
 
 function collectSeeds(
@@ -128,7 +132,7 @@ function describeBranch(sys: ContinuationSystem, branch: ContinuedBranch, index:
     seed: { value: seed[2], point: point(seed) },
     ends: branch.ends,
     points: branch.points.map((p) => {
-      const s = classifyEquilibrium(jacobianRows(sys, p.z));
+      const s = classifyEquilibrium(jacobianRows(sys, p.z), sys.box.width);
       return {
         value: p.z[2] + 0,
         point: point(p.z),
@@ -187,10 +191,11 @@ export function continueEquilibria(
     }
     events.push(...found);
   }
-  return {
-    parameter,
-    range: [range[0], range[1]],
-    branches: branches.map((b, i) => describeBranch(sys, b, i)),
-    points: buildSpecialPoints(sys, branches, events, opts.steps, diagnostics),
-  };
+  const described = branches.map((b, i) => describeBranch(sys, b, i));
+  const points = buildSpecialPoints(sys, branches, events, opts.steps, diagnostics);
+  const cycles = points
+    .filter((q) => q.kind === "hopf" && q.criticality)
+    .map((q) => continueCycleFromHopf(model, parameter, range, q, described[q.branch]))
+    .filter((c): c is CycleBranchResult => c !== null);
+  return { parameter, range: [range[0], range[1]], branches: described, points, cycles };
 }

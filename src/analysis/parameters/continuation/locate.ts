@@ -56,14 +56,18 @@ export function locateBetween(
   let gHi = hi.g;
   let side = 0; // end replaced last: −1 lo, +1 hi
   let run = 0; // how many times in a row that end was replaced
+  let failed = false; // the last trial point did not converge
   for (let it = 0; it < LOCATE_MAX_ITERATIONS && hi.s - lo.s > tol; it++) {
-    let s = run >= 3 ? 0.5 * (lo.s + hi.s) : (lo.s * gHi - hi.s * gLo) / (gHi - gLo);
+    let s = run >= 3 || failed ? 0.5 * (lo.s + hi.s) : (lo.s * gHi - hi.s * gLo) / (gHi - gLo);
     if (!(s > lo.s && s < hi.s)) s = 0.5 * (lo.s + hi.s);
     const w = (s - lo.s) / (hi.s - lo.s);
     const guess = [0, 1, 2].map((k) => lo.z[k] + w * (hi.z[k] - lo.z[k]));
     const z = pointAlong(sys, chart, s, guess);
-    // near a branch point the corrector stops converging: the bracket so far is the answer
-    if (!z) break;
+    // near a branch point the corrector stops converging: a bisection step away from the failed
+    // trial point is tried once, then the bracket so far is the answer
+    if (!z && failed) break;
+    failed = !z;
+    if (!z) continue;
     const g = test(z);
     if (g === 0) return finish(sys, z, a.t, 0);
     const replaced = Math.sign(g) === Math.sign(lo.g) ? -1 : 1;

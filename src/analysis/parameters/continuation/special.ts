@@ -13,6 +13,7 @@ import {
 import { liesOnBranch, type StepOptions, type ContinuedBranch } from "./branch.js";
 import type { LocatedEvent } from "./detect.js";
 import { firstLyapunovCoefficient } from "./lyapunov.js";
+import { isInvariantBound } from "../invasion.js";
 import { jacobianRows, type ContinuationSystem, type CurvePoint } from "./system.js";
 import { scaledMaxDistance } from "../../numeric/distance.js";
 
@@ -69,6 +70,31 @@ function criticalBoundAt(sys: ContinuationSystem, z: CurvePoint): { state: numbe
   return boundAt(sys, z, BOUND_CONTACT_TOL, (k) => Math.abs(j[k][k]) <= ACROSS_BOUND_TOL * size);
 }
 
+const invariance = new WeakMap<object, Map<string, boolean>>();
+
+/** Whether f_k vanishes identically on the bound (invasion.ts's test), once per model and bound. */
+function invariantBound(sys: ContinuationSystem, bound: { state: number; value: number }): boolean {
+  let known = invariance.get(sys.model);
+  if (!known) invariance.set(sys.model, (known = new Map()));
+  const key = `${bound.state} ${bound.value}`;
+  let invariant = known.get(key);
+  if (invariant === undefined) {
+    invariant = isInvariantBound(sys.model, bound.state, bound.value);
+    known.set(key, invariant);
+  }
+  return invariant;
+}
+
+/**
+ * The invariant bound z lies on with its invasion rate J_kk (the eigenvalue across it) at zero:
+ * a branch of equilibria off the bound meets the branch lying on it there, so the point is a
+ * transcritical, whether the branch crossing the bound was seen to cross or (numerically) to turn.
+ */
+function invadedBoundAt(sys: ContinuationSystem, z: CurvePoint): { state: number; value: number } | null {
+  const bound = criticalBoundAt(sys, z);
+  return bound && invariantBound(sys, bound) ? bound : null;
+}
+
 /** Another branch passes through z and reaches parameter values on both sides of z's near it. */
 function crossedByAnother(
   sys: ContinuationSystem,
@@ -109,12 +135,20 @@ function classify(
 ): Candidate | null {
   const exactlyOnBound = boundAt(sys, event.z, 0) !== null;
   switch (event.kind) {
-    case "saddle-node":
-      return { event, kind: "saddle-node", bound: null, exactlyOnBound };
+    case "saddle-node": {
+      const invaded = invadedBoundAt(sys, event.z);
+      return invaded
+        ? { event, kind: "transcritical", bound: invaded, exactlyOnBound }
+        : { event, kind: "saddle-node", bound: null, exactlyOnBound };
+    }
     case "hopf":
       return { event, kind: "hopf", bound: null, exactlyOnBound };
-    case "boundary-crossing":
-      return { event, kind: "boundary-crossing", bound: event.bound, exactlyOnBound };
+    case "boundary-crossing": {
+      const invaded = invadedBoundAt(sys, event.z);
+      return invaded && invaded.state === event.bound?.state
+        ? { event, kind: "transcritical", bound: invaded, exactlyOnBound }
+        : { event, kind: "boundary-crossing", bound: event.bound, exactlyOnBound };
+    }
     case "transcritical": {
       const bound = criticalBoundAt(sys, event.z);
       if (bound || crossedByAnother(sys, branches, event.branch, event.z, steps) !== null)
@@ -226,7 +260,7 @@ export function buildSpecialPoints(
       best.kind === "transcritical"
         ? members.find((m) => m.event.branch !== event.branch && m.kind === "transcritical")
         : undefined;
-    const stability = classifyEquilibrium(jacobianRows(sys, event.z));
+    const stability = classifyEquilibrium(jacobianRows(sys, event.z), sys.box.width);
     let lyapunov: ReturnType<typeof firstLyapunovCoefficient> | null = null;
     if (best.kind === "hopf") {
       higher ??= compileHigherDerivatives(model);

@@ -2,7 +2,13 @@ import type { Model, ParametricRhsFunction } from "../../../model/types.js";
 import { compileParameterDerivative } from "../../../model/higher.js";
 import { componentScales, windowOf, type Box } from "../../numeric/window.js";
 import { solveSmall } from "../../numeric/linear.js";
-import { CORRECTOR_MAX_JUMP, CORRECTOR_STEP_TOL, RANK_TOL, TANGENT_P_ZERO_TOL } from "../../constants.js";
+import {
+  CORRECTOR_MAX_JUMP,
+  CORRECTOR_ROUNDING_RESIDUAL,
+  CORRECTOR_STEP_TOL,
+  RANK_TOL,
+  TANGENT_P_ZERO_TOL,
+} from "../../constants.js";
 
 /**
  * The curve F(x, p) = 0 in (x0, x1, p) space. Points are kept in the model's own units (so a seed
@@ -187,9 +193,13 @@ export function correct(
       return { z, iterations: it, converged: true, residual: 0 };
     const m = [...sys.a, normal[0], normal[1], normal[2]];
     const dz = solveSmall(m, [-sys.f[0], -sys.f[1], -g]);
-    if (!dz) break;
-    const size = Math.max(Math.abs(dz[0]), Math.abs(dz[1]), Math.abs(dz[2]));
-    if (size > CORRECTOR_MAX_JUMP) break;
+    const size = dz ? Math.max(Math.abs(dz[0]), Math.abs(dz[1]), Math.abs(dz[2])) : Infinity;
+    if (!dz || size > CORRECTOR_MAX_JUMP) {
+      // singular at a branch point: a point already on the curve and the hyperplane to rounding is the answer
+      const residual = currentResidual(sys);
+      const onCurve = residual <= CORRECTOR_ROUNDING_RESIDUAL && Math.abs(g) <= CORRECTOR_STEP_TOL;
+      return { z, iterations: it, converged: onCurve, residual };
+    }
     for (let k = 0; k < 3; k++) z[k] += dz[k] * s[k];
     if (size <= CORRECTOR_STEP_TOL) {
       const residual = residualAt(sys, z);

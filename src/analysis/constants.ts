@@ -38,6 +38,12 @@ export const ROOT_RESIDUAL_TOL = 1e-9;
 export const DEDUP_REL_TOL = 1e-6;
 /** A root may lie this fraction of the window outside it and still count (then it is clipped). */
 export const WINDOW_SLACK = 1e-9;
+/**
+ * The feasible region beyond the window is searched on a grid this fraction of the window's
+ * (per side): it is not drawn, and its equilibria matter as attractors and fates only, so a
+ * coarser multistart (plus every root along its edges) keeps the second pass cheap.
+ */
+export const FEASIBLE_GRID_FRACTION = 0.5;
 /** A coordinate this close to a bound (fraction of the window) is put exactly on it, if the residual stays small. */
 export const SNAP_REL_TOL = 1e-10;
 /** An edge is invariant for a state when its own derivative there stays below this fraction of its scale. */

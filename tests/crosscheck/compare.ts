@@ -112,7 +112,7 @@ function nearEdge(p: Point, window: [number, number][]): boolean {
 function compareEquilibria(t: Tally, k: KeelSummary, r: ReferenceModel): void {
   const { pairs, keelLeft, refLeft } = pairEquilibria(k, r);
   const missing = refLeft.filter((j) => r.equilibria[j].inside && !r.equilibria[j].nearEdge);
-  const extra = keelLeft.filter((i) => !nearEdge(k.equilibria[i].point, r.window));
+  const extra = keelLeft.filter((i) => !nearEdge(k.equilibria[i].point, r.region ?? r.window));
   refLeft.filter((j) => r.equilibria[j].nearEdge).forEach(() => t.skip("equilibrium near an edge"));
   t.compared("equilibrium-count");
   if (missing.length || extra.length)

@@ -128,6 +128,8 @@ export interface ReferenceModel {
   error?: string;
   states: string[];
   window: [number, number][];
+  /** The span of the window and the feasible region: where equilibria are searched and "inside" refers to. */
+  region?: [number, number][];
   equilibria: ReferenceEquilibrium[];
   scenarios: { name: string; fate: ReferenceFate; feasibleFate: ReferenceFate }[];
   cycles: { id: string; found: boolean; period?: number; stability?: string | null }[];

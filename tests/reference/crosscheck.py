@@ -4,8 +4,9 @@ Reads on stdin one keel spec, a list of specs, or a list of {"spec": ..., "cycle
 (cycles: keel's periodic orbits to verify, each {"id", "point": [x, y], "period"}), and prints
 a JSON list with, for each spec:
 
-  equilibria   every equilibrium in the window (xc_equilibria.py): point, type, borderline flag,
-               stable flag, eigenvalues, whether it sits within 1e-6 of a window edge
+  equilibria   every equilibrium in the window and the feasible region beyond it ("region", the
+               span of both; xc_equilibria.py): point, type, borderline flag, stable flag,
+               eigenvalues, whether it sits within 1e-6 of the region's edge
   scenarios    each scenario's fate against the window (the region keel's fates refer to) and
                against the feasible region (states' min/max), xc_flow.py; a cycle fate carries the
                orbit's period, stability and multiplier (xc_cycles.py)
@@ -28,7 +29,7 @@ import numpy as np
 
 import xc_breaks
 import xc_cycles
-from xc_equilibria import Finder
+from xc_equilibria import find_equilibria
 from xc_expr import Equations
 from xc_flow import Judge
 
@@ -43,6 +44,9 @@ class Context:
         self.bounds = [[float(s["min"]), float(s["max"])] for s in spec["states"]]
         self.window = [[float(v) for v in win.get(n, b)] for n, b in zip(self.states, self.bounds)]
         self.width = [w[1] - w[0] for w in self.window]
+        # keel follows trajectories in the feasible region and searches equilibria there and in
+        # the window: the region both span
+        self.region = [[min(w[0], b[0]), max(w[1], b[1])] for w, b in zip(self.window, self.bounds)]
         self.scenarios = [
             {"name": sc["name"], "start": [float(sc["initial"][n]) for n in self.states], "horizon": float(sc["horizon"])}
             for sc in spec.get("scenarios", [])
@@ -76,7 +80,7 @@ def analyse(item, studies=True):
     spec = item.get("spec", item)
     t0 = time.time()
     ctx = Context(spec)
-    eq = Finder(ctx.eqs, ctx.nominal, ctx.window, ctx.bounds).find()
+    eq = find_equilibria(ctx.eqs, ctx.nominal, ctx.window, ctx.bounds, ctx.region)
     judge = Judge(ctx.eqs, ctx.nominal, ctx.window, ctx.bounds, eq)
     scenarios = []
     for sc in ctx.scenarios:
@@ -106,6 +110,7 @@ def analyse(item, studies=True):
         "states": ctx.states,
         "window": ctx.window,
         "bounds": ctx.bounds,
+        "region": ctx.region,
         "equilibria": [e for e in eq],
         "scenarios": scenarios,
         "cycles": cycles,

@@ -16,7 +16,7 @@ range near zero), and the search goes on to the right of it for further changes 
 
 import numpy as np
 
-from xc_equilibria import Finder
+from xc_equilibria import find_equilibria
 from xc_flow import Judge
 
 SAMPLES = 64
@@ -42,7 +42,7 @@ class Study:
         if self.near:
             nearest = min(self.near, key=lambda e: abs(e[0] - v))
             extra = nearest[1]
-        eq = Finder(c.eqs, values, c.window, c.bounds).find(extra)
+        eq = find_equilibria(c.eqs, values, c.window, c.bounds, c.region, extra)
         self.near.append((v, [e["point"] for e in eq]))
         judge = Judge(c.eqs, values, c.window, c.bounds, eq, precise=False)
         inside = judge.eq

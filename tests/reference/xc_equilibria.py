@@ -265,3 +265,13 @@ class Finder:
             "jacobian": self.J(z).tolist(),
             **c,
         }
+
+
+def find_equilibria(eqs, values, window, bounds, region, extra=()):
+    """Every equilibrium in the window and in the feasible region beyond it (the region both span):
+    the window searched on its own grid, then the whole region with the window's roots as extra
+    starts; "inside" then means inside the region."""
+    in_window = Finder(eqs, values, window, bounds).find(extra)
+    if region == window:
+        return in_window
+    return Finder(eqs, values, region, bounds).find(list(extra) + [e["point"] for e in in_window])

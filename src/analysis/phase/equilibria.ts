@@ -1,7 +1,7 @@
 import type { Model } from "../../model/types.js";
 import type { Diagnostic } from "../../diagnostics/issue.js";
 import { classifyEquilibrium, type StabilityResult } from "./stability.js";
-import { componentScales, windowOf, type Box } from "../numeric/window.js";
+import { boundsOf, componentScales, windowOf, type Box } from "../numeric/window.js";
 import { bisect } from "../numeric/roots.js";
 import { solve2 } from "../numeric/linear.js";
 import {
@@ -27,6 +27,7 @@ import {
   ROOT_RESIDUAL_TOL,
   SNAP_REL_TOL,
   WINDOW_SLACK,
+  FEASIBLE_GRID_FRACTION,
 } from "../constants.js";
 
 export interface EquilibriumResult extends StabilityResult {
@@ -277,7 +278,22 @@ export function findEquilibria(
 }
 
 /**
- * Every equilibrium in the window: damped Newton from a deterministic multistart set (interior
+ * The boxes the equilibrium search covers: the window, and the feasible region (the states'
+ * min/max) where it reaches beyond the window. Trajectories are followed in the feasible region,
+ * so an attractor outside the drawing window must be known too.
+ */
+const insideBox = (b: Box, p: readonly number[]) =>
+  p[0] >= b.lo[0] && p[0] <= b.hi[0] && p[1] >= b.lo[1] && p[1] <= b.hi[1];
+
+function searchBoxes(model: Model): Box[] {
+  const window = windowOf(model),
+    bounds = boundsOf(model);
+  const beyond = [0, 1].some((k) => bounds.lo[k] < window.lo[k] || bounds.hi[k] > window.hi[k]);
+  return beyond ? [window, bounds] : [window];
+}
+
+/**
+ * Every equilibrium in the window and in the feasible region beyond it: damped Newton from a deterministic multistart set (interior
  * grid, window corners, points on each edge and axis, and the roots of each component along each
  * edge), deduplicated in window-scaled coordinates, polished, snapped to bounds.
  * Sorted by the first state ascending, then the second (each compared to DEDUP_REL_TOL of the
@@ -289,36 +305,41 @@ export function findEquilibriumCandidates(
   diagnostics: Diagnostic[] = [],
 ): EquilibriumCandidates {
   const box = windowOf(model);
-  const fScale = componentScales(model, box);
   const ws: Workspace = { f: new Float64Array(2), j: new Float64Array(4), y: new Float64Array(2) };
-  const starts = [...gridStarts(box, options.gridSize), ...boundaryStarts(model, box, fScale, options)];
-
   const found: { x: [number, number]; residual: number }[] = [];
-  for (const start of starts) {
-    const root = dampedNewton(model, start, box, fScale, ws);
-    if (!root) continue;
-    const inside = [0, 1].every(
-      (k) =>
-        root[k] >= box.lo[k] - WINDOW_SLACK * box.width[k] &&
-        root[k] <= box.hi[k] + WINDOW_SLACK * box.width[k],
-    );
-    if (!inside) continue;
-    const x = snapToBounds(model, root, box, fScale, ws);
-    const residual = scaledResidual(model, x, fScale, ws);
-    if (!(residual < ROOT_RESIDUAL_TOL)) continue;
-    const same = found.find(
-      (e) =>
-        Math.abs(e.x[0] - x[0]) <= DEDUP_REL_TOL * box.width[0] &&
-        Math.abs(e.x[1] - x[1]) <= DEDUP_REL_TOL * box.width[1],
-    );
-    if (same) {
-      if (residual < same.residual) {
-        same.x = x;
-        same.residual = residual;
+  for (const [pass, search] of searchBoxes(model).entries()) {
+    const fScale = componentScales(model, search);
+    const beyond = pass > 0;
+    const grid = beyond ? Math.ceil(options.gridSize * FEASIBLE_GRID_FRACTION) : options.gridSize;
+    const all = [...gridStarts(search, grid), ...boundaryStarts(model, search, fScale, options)];
+    // the window has had its own, finer search: the second pass starts only beyond it
+    const starts = beyond ? all.filter((p) => !insideBox(box, p)) : all;
+    for (const start of starts) {
+      const root = dampedNewton(model, start, search, fScale, ws);
+      if (!root) continue;
+      const inside = [0, 1].every(
+        (k) =>
+          root[k] >= search.lo[k] - WINDOW_SLACK * search.width[k] &&
+          root[k] <= search.hi[k] + WINDOW_SLACK * search.width[k],
+      );
+      if (!inside) continue;
+      const x = snapToBounds(model, root, search, fScale, ws);
+      const residual = scaledResidual(model, x, fScale, ws);
+      if (!(residual < ROOT_RESIDUAL_TOL)) continue;
+      const same = found.find(
+        (e) =>
+          Math.abs(e.x[0] - x[0]) <= DEDUP_REL_TOL * box.width[0] &&
+          Math.abs(e.x[1] - x[1]) <= DEDUP_REL_TOL * box.width[1],
+      );
+      if (same) {
+        if (residual < same.residual) {
+          same.x = x;
+          same.residual = residual;
+        }
+        continue;
       }
-      continue;
+      found.push({ x, residual });
     }
-    found.push({ x, residual });
   }
 
   const { regular, singular } = splitSingular(model, box, found);

@@ -11,8 +11,12 @@ import { m, matrixTex, numberTex, type ViewInput } from "./common.js";
 
 /** The equilibria table, each Jacobian typeset, and the trace–determinant figure. */
 export function buildEquilibriaView({ spec, results, figure }: ViewInput) {
+  const window = results.model.window;
+  const outsideWindow = (point: Record<string, number>) =>
+    spec.states.some((s) => point[s.name] < window[s.name][0] || point[s.name] > window[s.name][1]);
   const rows = results.equilibria.map((e) => ({
     id: e.id,
+    outsideWindow: outsideWindow(e.point),
     coordinates: spec.states.map((s) => formatNumberHtml(e.point[s.name])),
     trace: formatNumberHtml(e.trace),
     determinant: formatNumberHtml(e.determinant),

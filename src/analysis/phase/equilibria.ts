@@ -292,21 +292,11 @@ function searchBoxes(model: Model): Box[] {
   return beyond ? [window, bounds] : [window];
 }
 
-/**
- * Every equilibrium in the window and in the feasible region beyond it: damped Newton from a deterministic multistart set (interior
- * grid, window corners, points on each edge and axis, and the roots of each component along each
- * edge), deduplicated in window-scaled coordinates, polished, snapped to bounds.
- * Sorted by the first state ascending, then the second (each compared to DEDUP_REL_TOL of the
- * window), and numbered E1, E2, ... in that order.
- */
-export function findEquilibriumCandidates(
-  model: Model,
-  options: EquilibriumOptions = DEFAULT_EQUILIBRIUM_OPTIONS,
-  diagnostics: Diagnostic[] = [],
-): EquilibriumCandidates {
-  const box = windowOf(model);
-  const ws: Workspace = { f: new Float64Array(2), j: new Float64Array(4), y: new Float64Array(2) };
-  const found: { x: [number, number]; residual: number }[] = [];
+type Root = { x: [number, number]; residual: number };
+
+/** Damped Newton from every start of each search box, roots deduplicated in window-scaled coordinates. */
+function collectRoots(model: Model, box: Box, options: EquilibriumOptions, ws: Workspace): Root[] {
+  const found: Root[] = [];
   for (const [pass, search] of searchBoxes(model).entries()) {
     const fScale = componentScales(model, search);
     const beyond = pass > 0;
@@ -341,6 +331,25 @@ export function findEquilibriumCandidates(
       found.push({ x, residual });
     }
   }
+  return found;
+}
+
+/**
+ * Every equilibrium in the window and in the feasible region beyond it: damped Newton from a
+ * deterministic multistart set (interior grid, corners, points on each edge and axis, and the
+ * roots of each component along each edge), deduplicated in window-scaled coordinates, polished,
+ * snapped to bounds.
+ * Sorted by the first state ascending, then the second (each compared to DEDUP_REL_TOL of the
+ * window), and numbered E1, E2, ... in that order.
+ */
+export function findEquilibriumCandidates(
+  model: Model,
+  options: EquilibriumOptions = DEFAULT_EQUILIBRIUM_OPTIONS,
+  diagnostics: Diagnostic[] = [],
+): EquilibriumCandidates {
+  const box = windowOf(model);
+  const ws: Workspace = { f: new Float64Array(2), j: new Float64Array(4), y: new Float64Array(2) };
+  const found = collectRoots(model, box, options, ws);
 
   const { regular, singular } = splitSingular(model, box, found);
   found.length = 0;

@@ -53,7 +53,19 @@ export interface BasinPlan {
   box: Box;
 }
 
-/** Which attractors a basin map can label, and the kernel that labels them. */
+/** One neutral cycle per family (the first, by id order) whose capture band was verified. */
+function familyTargets(cycles: CycleResult[]): CycleResult[] {
+  const seen = new Set<string>();
+  return cycles.filter((c) => {
+    if (c.stability !== "neutral" || c.capture?.kind !== "family") return false;
+    const key = JSON.stringify([c.around, c.section.sense, c.capture.radii]);
+    if (seen.has(key)) return false;
+    seen.add(key);
+    return true;
+  });
+}
+
+/** Which attractors (and neutral families) a basin map can label, and the kernel that labels them. */
 export function planBasins(
   model: Model,
   equilibria: EquilibriumResult[],
@@ -82,22 +94,25 @@ export function planBasins(
     targets.sinks.push({ label: attractors.length, region });
     attractors.push(e.id);
   }
+  // a neutral family of closed orbits is recognised once (its capture band, probed when the first of
+  // its cycles was solved): a cell whose trajectory crosses the band lies on the family
+  const families = familyTargets(cycles);
   for (const e of equilibria) {
-    if (e.hyperbolic) continue;
+    // a centre inside a family attracts nothing: the family's band labels its cells
+    if (e.hyperbolic || families.some((c) => c.around === e.id)) continue;
     targets.slowSinks.push({
       label: attractors.length,
       center: [e.point[model.stateNames[0]], e.point[model.stateNames[1]]],
     });
     attractors.push(e.id);
   }
-  for (const c of cycles) {
-    if (c.stability !== "stable") continue;
+  for (const c of [...cycles.filter((q) => q.stability === "stable"), ...families]) {
     const around = equilibria.find((e) => e.id === c.around)!;
     const center: [number, number] = [around.point[model.stateNames[0]], around.point[model.stateNames[1]]];
     const radius = (c.section.point[model.stateNames[0]] - center[0]) / box.width[0];
     // the capture probed when the cycle was solved; else a neighbourhood its multiplier (< 1) makes attracting
     const radii: [number, number] =
-      c.capture?.kind === "attracting"
+      c.capture?.kind === "attracting" || c.capture?.kind === "family"
         ? c.capture.radii
         : [radius - Math.min(CYCLE_CAPTURE_RADIUS, radius / 2), radius + CYCLE_CAPTURE_RADIUS];
     targets.cycles.push({ label: attractors.length, center, sense: c.section.sense, radii });

@@ -2,7 +2,7 @@ import { decodeRuns } from "../../analysis/basins/refine.js";
 import type { BasinResult, Results } from "../../analysis/types.js";
 import type { NormalizedSpec } from "../../spec/types.js";
 import { formatPercent } from "../format.js";
-import { attractorIdWords, basinAttractors } from "../words/index.js";
+import { basinAttractors, basinKeyWords } from "../words/index.js";
 import { markerBox, portraitFrame } from "./geometry.js";
 import { buildKey, type KeyEntry } from "./key.js";
 import { keyedFigure, labelLayers, pathLayer, symbolLayer, type VegaLiteSpec } from "./layers.js";
@@ -92,9 +92,7 @@ export function buildBasinFigure(results: Results, spec: NormalizedSpec): VegaLi
     .filter(({ name, k, fraction }) => (k < basins.attractors.length ? listed.includes(name) : fraction > 0))
     .map(({ name, k, fraction }): KeyEntry => {
       const what =
-        k < basins.attractors.length
-          ? attractorIdWords(results, name, "cycle")
-          : (SPECIAL_WORDS[name] ?? name);
+        k < basins.attractors.length ? basinKeyWords(results, name) : (SPECIAL_WORDS[name] ?? name);
       return { kind: "symbol", marker: swatch(fills[k], `${what}: ${formatPercent(fraction)}`) };
     });
 

@@ -8,7 +8,8 @@ import type { NormalizedSpec } from "../../spec/types.js";
 import { formatNumber, formatPercent } from "../format.js";
 import {
   THRESHOLD_KIND_WORDS,
-  attractorIdWords,
+  BASIN_OTHER_WORDS,
+  basinLabelWords,
   fateWords,
   outcomeWords,
   stateTerms,
@@ -117,7 +118,7 @@ function basinCaption(results: Results, spec: NormalizedSpec): string {
   const shares = Object.entries(b.fractions)
     .map(
       ([k, v]) =>
-        `${b.attractors.includes(k) ? attractorIdWords(results, k, "cycle") : k} ${formatPercent(v)}`,
+        `${b.attractors.includes(k) ? basinLabelWords(results, k) : (BASIN_OTHER_WORDS[k] ?? k)} ${formatPercent(v)}`,
     )
     .join(", ");
   const saddles = [

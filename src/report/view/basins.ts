@@ -1,5 +1,5 @@
 import { formatNumber } from "../format.js";
-import { BASIN_OTHER_WORDS, attractorIdWords, basinAttractors } from "../words/index.js";
+import { BASIN_OTHER_WORDS, basinAttractors, basinLabelWords } from "../words/index.js";
 import { gridSize, type ViewInput } from "./common.js";
 
 const percent = (fraction: number) => formatNumber(100 * fraction, 4) + "%";
@@ -12,7 +12,7 @@ export function buildBasinsView({ results, figure }: ViewInput) {
   return {
     show: b.attractors.length > 0,
     rows: attractors.map((id) => ({
-      outcome: attractorIdWords(results, id, "periodic orbit"),
+      outcome: basinLabelWords(results, id),
       fraction: percent(b.fractions[id] ?? 0),
     })),
     // labels that are no attractor, and only where the map found them

@@ -1,4 +1,5 @@
 import type { Results } from "../../analysis/types.js";
+import { attractorIdWords } from "./fates.js";
 
 /**
  * The basin map's labels that are no attractor, in words. A trajectory labelled so reached no
@@ -24,4 +25,19 @@ export function basinAttractors(results: Results): string[] {
     if (results.cycles.find((c) => c.id === id)?.stability === "stable") return true;
     return (b.fractions[id] ?? 0) > 0;
   });
+}
+
+/** A row of the basin table: an attractor, or the neutral family of closed orbits the map labelled. */
+export function basinLabelWords(results: Results, id: string): string {
+  const c = results.cycles.find((q) => q.id === id);
+  if (c?.stability === "neutral")
+    return `on a closed orbit of the family around ${c.around} (${id} is one of them): neutral, no attractor`;
+  return attractorIdWords(results, id, "periodic orbit");
+}
+
+/** An attractor's (or neutral family's) entry in the basin figure's key: short. */
+export function basinKeyWords(results: Results, id: string): string {
+  const c = results.cycles.find((q) => q.id === id);
+  if (c?.stability === "neutral") return `closed orbits around ${c.around} (neutral, ${id} among them)`;
+  return attractorIdWords(results, id, "cycle");
 }

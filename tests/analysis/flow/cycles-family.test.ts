@@ -66,6 +66,38 @@ describe("the Lotka–Volterra centre: a family of closed orbits, recognised onc
     });
   });
 
+  /**
+   * The share of the window whose orbit stays inside it, from H alone: H is convex with its
+   * minimum at the centre, so the orbit through (x, y) stays inside the window (here also the
+   * feasible region) exactly when H(x, y) is below H's minimum over the window's edges. The share
+   * is H's sublevel set measured on a 2000 × 2000 midpoint grid, sharing nothing with the map.
+   */
+  function familyShare(): number {
+    const [x1, y1] = [window.x[1], window.y[1]];
+    let level = Infinity;
+    for (let k = 1; k <= 100_000; k++) {
+      const t = k / 100_000;
+      level = Math.min(level, H(x1 * t, y1), H(x1, y1 * t));
+    }
+    // towards the axes H grows without bound: the lower edges never set the level
+    const n = 2000;
+    let inside = 0;
+    for (let i = 0; i < n; i++)
+      for (let j = 0; j < n; j++) if (H(((i + 0.5) / n) * x1, ((j + 0.5) / n) * y1) < level) inside++;
+    return inside / (n * n);
+  }
+
+  it("analyze(Lotka–Volterra).basins labels every cell of the family with the family, within errorBound of H's sublevel area", () => {
+    const b = results.basins;
+    const family = results.cycles[0].id;
+    expect(b.attractors).toEqual([family]);
+    expect(b.fractions.undecided ?? 0).toBeLessThanOrEqual(b.errorBound);
+    expect(Math.abs(b.fractions[family] - familyShare())).toBeLessThanOrEqual(b.errorBound);
+    expect(Math.abs(b.fractions[family] + (b.fractions["left-window"] ?? 0) - 1)).toBeLessThanOrEqual(
+      b.errorBound,
+    );
+  });
+
   it("classifyOutcome(Lotka–Volterra) has no attractor: a neutral family is none", () => {
     expect(classifyOutcome(buildModel(lotkaVolterra), false).attractors).toEqual([]);
   });

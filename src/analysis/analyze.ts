@@ -3,6 +3,8 @@ import type { Diagnostic } from "../diagnostics/issue.js";
 import { KEEL_VERSION, RESULTS_FORMAT } from "../version.js";
 import { findEquilibriumCandidates, type EquilibriumOptions } from "./phase/equilibria.js";
 import { findSingularities } from "./phase/singularities.js";
+import type { EquilibriumResult } from "./phase/equilibria.js";
+import type { SingularityResult } from "./phase/singularities/types.js";
 import { evaluateAssumptions } from "./checks/assumptions.js";
 import type { Results } from "./types.js";
 import { windowOf } from "./numeric/window.js";
@@ -155,26 +157,22 @@ function analyzeEquilibria(
   return { equilibria, singularities };
 }
 
-/** Steps 1–8 of the analysis: everything but the basin map, plus the basin map's plan. */
-function analyzeCore(
+/**
+ * Steps 3–5: scenario trajectories, separatrices, portrait trajectories. Periodic orbits are found
+ * first by the section scan around each focus, and solved as trajectories meet others.
+ */
+function analyzeFlows(
   model: Model,
+  equilibria: EquilibriumResult[],
+  singularities: SingularityResult[],
   options: AnalysisOptions,
+  diagnostics: Diagnostic[],
   progress?: ProgressReporter,
-): { results: Omit<Results, "basins">; plan: BasinPlan } {
-  const diagnostics: Diagnostic[] = [];
-  // 1. equilibria and their stability; singular points and lines (never classified)
-  const { equilibria, singularities } = analyzeEquilibria(model, options, diagnostics, progress);
-
-  // 2. geometry of the portrait: nullclines, the regions they cut out, the direction field
-  const nullclines = findNullclines(model, equilibria, options.nullclines, diagnostics);
-  const regions = findRegions(model, nullclines, options.regions, diagnostics);
-  const field = computeDirectionField(model, options.field);
-
-  // 3. scenario trajectories, 4. separatrices, 5. portrait trajectories (periodic orbits are found first by
-  // the section scan around each focus, and solved as trajectories meet others)
+) {
   const box = windowOf(model);
-  const forward = buildFlowContext(model, equilibria, box, 1);
-  const backward = buildFlowContext(model, equilibria, box, -1);
+  const singularPoints = singularities.filter((s) => s.shape === "point");
+  const forward = buildFlowContext(model, equilibria, box, 1, singularPoints);
+  const backward = buildFlowContext(model, equilibria, box, -1, singularPoints);
   const registry = new CycleRegistry(model, box);
   registry.scanSections(equilibria);
   progress?.("trajectories", 0, 3);
@@ -202,8 +200,31 @@ function analyzeCore(
     options.trajectories,
     portraitHorizon,
     diagnostics,
+    singularPoints,
   );
   progress?.("trajectories", 3, 3);
+  return { box, registry, scenarios, separatrices, trajectories, portraitHorizon, timeScale, singularPoints };
+}
+
+/** Steps 1–8 of the analysis: everything but the basin map, plus the basin map's plan. */
+function analyzeCore(
+  model: Model,
+  options: AnalysisOptions,
+  progress?: ProgressReporter,
+): { results: Omit<Results, "basins">; plan: BasinPlan } {
+  const diagnostics: Diagnostic[] = [];
+  // 1. equilibria and their stability; singular points and lines (never classified)
+  const { equilibria, singularities } = analyzeEquilibria(model, options, diagnostics, progress);
+
+  // 2. geometry of the portrait: nullclines, the regions they cut out, the direction field
+  const nullclines = findNullclines(model, equilibria, options.nullclines, diagnostics);
+  const regions = findRegions(model, nullclines, options.regions, diagnostics);
+  const field = computeDirectionField(model, options.field);
+
+  // 3. scenario trajectories, 4. separatrices, 5. portrait trajectories
+  const flows = analyzeFlows(model, equilibria, singularities, options, diagnostics, progress);
+  const { box, registry, scenarios, separatrices, trajectories, portraitHorizon, timeScale, singularPoints } =
+    flows;
 
   // 6. deciding conditions: symbolic invasion rates, thresholds by continuation, outcome intervals, maps
   const { invasion, studies, maps } = analyzeParameters(model, equilibria, diagnostics, progress);
@@ -223,6 +244,7 @@ function analyzeCore(
     timeScale,
     options.basins,
     diagnostics,
+    singularPoints,
   );
   const results: Omit<Results, "basins"> = {
     keel: KEEL_VERSION,

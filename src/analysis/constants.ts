@@ -255,6 +255,13 @@ export const ALGEBRAIC_STEPS = 40;
 export const ALGEBRAIC_HEADING = 0.9;
 /** Closer than this (scaled) to a saddle or a non-hyperbolic equilibrium, a trajectory has arrived whatever its heading. */
 export const ARRIVAL_DISTANCE = 1e-12;
+/**
+ * Closer than this (scaled) to a singular point, a step has run into it. Looser than arrival at an
+ * equilibrium: near a singular point the field is not smooth, steps do not shrink as they do near
+ * a root, and the next step may cross the singular set; 1e-6 of the window is still far below
+ * anything a figure or a fate can resolve.
+ */
+export const SINGULAR_ARRIVAL_DISTANCE = 1e-6;
 /** Recurrence: consecutive ray crossings closer than this (scaled) ... */
 export const RECURRENCE_TOL = 1e-6;
 /** ... and farther than this from the equilibrium (else it is spiralling in or out). */

@@ -75,10 +75,11 @@ export function planBasins(
   timeScale: number,
   options: BasinOptions,
   diagnostics: Diagnostic[],
+  singularPoints: { id: string; point: Record<string, number> }[] = [],
 ): BasinPlan {
   const regions = findCaptureRegions(model, equilibria, box, 1);
   const attractors: string[] = [];
-  const targets: BasinTargets = { attractors, sinks: [], slowSinks: [], cycles: [] };
+  const targets: BasinTargets = { attractors, sinks: [], slowSinks: [], cycles: [], singular: [] };
   for (const e of equilibria) {
     if (e.stable !== true) continue;
     const region = regions.find((r) => r.equilibrium === e.id);
@@ -117,6 +118,14 @@ export function planBasins(
         : [radius - Math.min(CYCLE_CAPTURE_RADIUS, radius / 2), radius + CYCLE_CAPTURE_RADIUS];
     targets.cycles.push({ label: attractors.length, center, sense: c.section.sense, radii });
     attractors.push(c.id);
+  }
+  // not attractors: a trajectory that runs into one cannot be followed on, and is labelled so
+  for (const s of singularPoints) {
+    targets.singular.push({
+      label: attractors.length,
+      center: [s.point[model.stateNames[0]], s.point[model.stateNames[1]]],
+    });
+    attractors.push(s.id);
   }
   const settings: KernelSettings = {
     horizon,

@@ -7,6 +7,7 @@ import {
   KERNEL_MIN_STEP,
   MAX_STEP_OF_HORIZON,
   NAN_STEP_SHRINK,
+  SINGULAR_ARRIVAL_DISTANCE,
   STEP_ERROR_EXPONENT,
   STEP_MAX_GROWTH,
   STEP_MIN_SHRINK,
@@ -40,6 +41,8 @@ export interface BasinTargets {
   sinks: { label: number; region: CaptureRegion }[];
   slowSinks: { label: number; center: [number, number] }[];
   cycles: CycleTarget[];
+  /** Singular points: a step that passes within SINGULAR_ARRIVAL_DISTANCE ends there (rule 0, as the follower). */
+  singular: { label: number; center: [number, number] }[];
 }
 
 export interface KernelSettings {
@@ -93,6 +96,22 @@ function emitAttractorTests(
     .map((_, i) => `let slowCount${i} = 0, slowLast${i} = Infinity;`)
     .join(" ");
   return { sinkTests, slowTests, cycleTests, perStart };
+}
+
+/** Kernel code for rule 0: the accepted step's chord passes within SINGULAR_ARRIVAL_DISTANCE (scaled) of a singular point. */
+function emitSingularTests(points: BasinTargets["singular"], width: number[]): string {
+  const L = literal;
+  const [i0, i1] = [1 / width[0], 1 / width[1]];
+  return points
+    .map(
+      ({ label, center }) => `if (outside === 0) {
+        const ax = (xPrev - ${L(center[0])}) * ${L(i0)}, ay = (yPrev - ${L(center[1])}) * ${L(i1)};
+        const dx = (x - xPrev) * ${L(i0)}, dy = (y - yPrev) * ${L(i1)}, len = dx * dx + dy * dy;
+        let s = len > 0 ? -(ax * dx + ay * dy) / len : 0; s = s < 0 ? 0 : s > 1 ? 1 : s;
+        const ex = ax + s * dx, ey = ay + s * dy;
+        if (ex * ex + ey * ey <= ${L(SINGULAR_ARRIVAL_DISTANCE * SINGULAR_ARRIVAL_DISTANCE)}) { label = ${label}; break; } }`,
+    )
+    .join("\n      ");
 }
 
 /** Σ c_j k_j of one component ("a": first state, "b": second), zero coefficients left out. */
@@ -169,6 +188,7 @@ return function basinKernel(starts, out) {
       const tPrev = t, hs = h, f0a = k1a, f0b = k1b;
       t += h; x = xn; y = yn; k1a = k7a; k1b = k7b; steps++;
       h = Math.min(h * factor, ${L(maxStep)});
+      ${emitSingularTests(targets.singular, box.width)}
       ${emitStepOutside(bounds, box.width)}
       if (${emitHasLeftWindow("off")} && outside === 0) tExit = tPrev;
       if (${emitIsFarOutside("offEnd")}) {

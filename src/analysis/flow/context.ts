@@ -23,6 +23,8 @@ export interface FlowContext {
    * solved so far; empty until the cycle registry supplies them, see flow/registry.ts).
    */
   cycleCaptures: { id: string; around: string; sense: 1 | -1; radii: [number, number] }[];
+  /** Singular points (the field undefined, as 0/0): a trajectory that runs into one cannot be followed on. */
+  singularPoints: { id: string; center: [number, number] }[];
   tolerances: IntegrationTolerances;
 }
 
@@ -31,6 +33,7 @@ export function buildFlowContext(
   equilibria: EquilibriumResult[],
   box: Box,
   direction: 1 | -1,
+  singularPoints: { id: string; point: Record<string, number> }[] = [],
 ): FlowContext {
   const pointOf = (e: EquilibriumResult): [number, number] => [
     e.point[model.stateNames[0]],
@@ -60,6 +63,10 @@ export function buildFlowContext(
     nonHyperbolic: equilibria.filter((e) => !e.hyperbolic).map((e) => ({ id: e.id, center: pointOf(e) })),
     rays: equilibria.filter((e) => e.type !== "saddle").map((e) => ({ id: e.id, center: pointOf(e) })),
     cycleCaptures: [],
+    singularPoints: singularPoints.map((s) => ({
+      id: s.id,
+      center: [s.point[model.stateNames[0]], s.point[model.stateNames[1]]],
+    })),
     tolerances: tolerancesFor(box.width),
   };
 }

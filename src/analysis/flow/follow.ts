@@ -4,7 +4,7 @@ import { integrateFlow, type IntegrationResult, type StepInfo } from "../numeric
 import type { WindowEdge } from "../numeric/window.js";
 import { firstExit, type ExitSide } from "../numeric/excursion.js";
 import { bisectPredicate } from "../numeric/roots.js";
-import { scaledDistance } from "../numeric/distance.js";
+import { scaledDistance, segmentDistance } from "../numeric/distance.js";
 import { solve2 } from "../numeric/linear.js";
 import {
   continueAlgebraicRun,
@@ -25,6 +25,7 @@ import {
   SLOW_RECURRENCE_CROSSINGS,
   TRAJECTORY_MAX_STEPS,
   WINDOW_EXIT_SLACK,
+  SINGULAR_ARRIVAL_DISTANCE,
 } from "../constants.js";
 
 export { buildFlowContext, type FlowContext } from "./context.js";
@@ -47,11 +48,17 @@ export type Fate =
   | { kind: "cycle"; target: string; t: number }
   | { kind: "left-window"; t: number; point: Record<string, number>; edge: WindowEdge; bound: "min" | "max" }
   | { kind: "blow-up"; t: number; point: Record<string, number> }
-  | { kind: "undecided"; t: number; reason: UndecidedReason };
+  | { kind: "undecided"; t: number; reason: UndecidedReason; singularity?: string };
 
 /** Why a trajectory's fate stayed undecided; report/words/fates.ts words each code. */
 export type UndecidedReason =
-  "non-finite-rhs" | "step-limit" | "horizon" | "recurrent-candidate" | "no-periodic-orbit";
+  | "non-finite-rhs"
+  | "step-limit"
+  | "horizon"
+  | "recurrent-candidate"
+  | "no-periodic-orbit"
+  /** It ran into a singular point, where the field is not defined: the equations do not say what follows. */
+  | "singular-point";
 
 export interface Recurrence {
   /** Equilibrium whose ray the trajectory keeps crossing. */
@@ -167,6 +174,7 @@ class TrajectoryFollower {
     this.path.t.push(t1);
     this.path.x.push(y[0]);
     this.path.y.push(y[1]);
+    if (!this.exit && this.reachesSingularPoint(t1, y)) return false;
     if (!this.exit) this.exit = this.findExit(info);
     if (isFarOutside(outsideBy(bounds, y, box.width))) {
       this.testBlowUp(t1, y);
@@ -244,6 +252,20 @@ class TrajectoryFollower {
         this.fate = { kind: "equilibrium", target: s.id, t: t1, approach: "stable-manifold" };
         return true;
       }
+    }
+    return false;
+  }
+
+  /**
+   * Rule 0: the step passes within SINGULAR_ARRIVAL_DISTANCE (scaled) of a singular point: the
+   * field has no value there, so the trajectory cannot be followed through it (integrating on
+   * would cross the singular set and report what the formula does beyond it, such as a blow-up).
+   */
+  private reachesSingularPoint(t1: number, y: number[]): boolean {
+    for (const s of this.ctx.singularPoints) {
+      if (segmentDistance(s.center, this.prev, y, this.ctx.box.width).d > SINGULAR_ARRIVAL_DISTANCE) continue;
+      this.fate = { kind: "undecided", t: t1, reason: "singular-point", singularity: s.id };
+      return true;
     }
     return false;
   }

@@ -21,6 +21,8 @@ import {
  * trajectory may leave the window and come back. Both test, at every accepted step and in this
  * order:
  *
+ *  0. the step passes within SINGULAR_ARRIVAL_DISTANCE of a singular point (the field not defined
+ *     there, as 0/0) → undecided, reason "singular-point": the equations do not say what follows;
  *  1. non-finite right-hand side → left-window when the feasible region was left before, else
  *     undecided;
  *  2. farther than BLOWUP_WINDOWS window widths outside the feasible region at the step's end →

@@ -199,9 +199,10 @@ export function integratePortrait(
   options: TrajectoryOptions,
   horizon: number,
   diagnostics: Diagnostic[],
+  singularPoints: { id: string; point: Record<string, number> }[] = [],
 ): PortraitTrajectory[] {
-  const forward = buildFlowContext(model, equilibria, box, 1);
-  const backward = buildFlowContext(model, equilibria, box, -1);
+  const forward = buildFlowContext(model, equilibria, box, 1, singularPoints);
+  const backward = buildFlowContext(model, equilibria, box, -1, singularPoints);
   const seeds: { seed: string; ctx: FlowContext; x: [number, number] }[] = [];
   const n = options.seedsPerEdge;
   for (let k = 0; k < n; k++) {

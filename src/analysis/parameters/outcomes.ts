@@ -2,7 +2,7 @@ import type { Model } from "../../model/types.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
 import type { EquilibriumType } from "../phase/stability.js";
 import type { CycleResult } from "../flow/cycles.js";
-import { findEquilibria } from "../phase/equilibria.js";
+import { findEquilibriumCandidates } from "../phase/equilibria.js";
 import { buildFlowContext, type FollowResult, type Fate, type UndecidedReason } from "../flow/follow.js";
 import { CycleRegistry, followToFate } from "../flow/trajectories.js";
 import { windowOf, type Box } from "../numeric/window.js";
@@ -194,7 +194,9 @@ function distinctAttractors(list: AttractorResult[]): AttractorResult[] {
  * horizons, so an outcome anywhere in a range means what the nominal one means.
  */
 export function classifyOutcome(model: Model, withScenarios: boolean): OutcomeResult {
-  const equilibria = findEquilibria(model, DEFAULT_EQUILIBRIUM_OPTIONS);
+  const { equilibria, singular } = findEquilibriumCandidates(model, DEFAULT_EQUILIBRIUM_OPTIONS);
+  // the singular points the search met (ids only tell them apart here)
+  const singularPoints = singular.map((s, k) => ({ id: `X${k + 1}`, point: s.point }));
   const stable = equilibria.filter((e) => e.stable === true);
   const named = equilibriumAttractors(model, stable);
   const attractors: AttractorResult[] = stable.map((e) => named.get(e.id)!);
@@ -206,7 +208,7 @@ export function classifyOutcome(model: Model, withScenarios: boolean): OutcomeRe
   registry.scanSections(equilibria);
   if (withScenarios && model.spec.scenarios.length) {
     const context: FateContext = { model, box, equilibria, stable, named, registry };
-    const flow = buildFlowContext(model, equilibria, box, 1);
+    const flow = buildFlowContext(model, equilibria, box, 1, singularPoints);
     for (const sc of model.spec.scenarios) {
       const start: [number, number] = [sc.initial[model.stateNames[0]], sc.initial[model.stateNames[1]]];
       const follow = followToFate(

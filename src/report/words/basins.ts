@@ -29,6 +29,8 @@ export function basinAttractors(results: Results): string[] {
 
 /** A row of the basin table: an attractor, or the neutral family of closed orbits the map labelled. */
 export function basinLabelWords(results: Results, id: string): string {
+  if (results.singularities.some((s) => s.id === id))
+    return `runs into the singular point ${id}, where the field is not defined: no attractor, the fate there is not decided`;
   const c = results.cycles.find((q) => q.id === id);
   if (c?.stability === "neutral")
     return `on a closed orbit of the family around ${c.around} (${id} is one of them): neutral, no attractor`;
@@ -37,6 +39,7 @@ export function basinLabelWords(results: Results, id: string): string {
 
 /** An attractor's (or neutral family's) entry in the basin figure's key: short. */
 export function basinKeyWords(results: Results, id: string): string {
+  if (results.singularities.some((s) => s.id === id)) return `runs into the singular point ${id}`;
   const c = results.cycles.find((q) => q.id === id);
   if (c?.stability === "neutral") return `closed orbits around ${c.around} (neutral, ${id} among them)`;
   return attractorIdWords(results, id, "cycle");

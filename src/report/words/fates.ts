@@ -102,6 +102,8 @@ const UNDECIDED_REASON_WORDS: Record<UndecidedReason | "blow-up", string> = {
   horizon: "no equilibrium or periodic orbit was reached by the horizon",
   "recurrent-candidate": "recurrent: periodic-orbit candidate",
   "no-periodic-orbit": "recurrent, but no periodic orbit could be solved for",
+  "singular-point":
+    "it runs into a singular point, where the field is not defined; the equations do not say what happens there",
   "blow-up": "blow-up",
 };
 

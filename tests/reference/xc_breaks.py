@@ -170,5 +170,7 @@ def fate_key(ctx, fate, eq, names):
     if kind == "cycle":
         return "cycle"  # reached, so attracting from the start's side (or one of a family)
     if kind in ("left-window", "blow-up"):
-        return f"{kind} {ctx.states[fate['state']]}"
+        # a blow-up here always follows an exit (xc_flow.py): whether it comes before the horizon
+        # is the horizon's doing, so the outcome is the exit, as the design's outcome counts it
+        return f"left-window {ctx.states[fate['state']]}"
     return None

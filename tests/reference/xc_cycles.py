@@ -165,6 +165,9 @@ def solve(sec, period, s0=0.0):
     }
 
 
+NEAR_FOCUS = 0.05  # scaled: an end this near a stable equilibrium is no cycle of the quick test
+
+
 def from_path(judge, path):
     """A cycle ({"kind": "cycle"...}) or a spiral onto a stable equilibrium ({"kind": "spiral", index}) or None."""
     if path.status != "horizon" or len(path.t) < 8:
@@ -188,6 +191,10 @@ def from_path(judge, path):
     if spiral is not None:
         return {"kind": "spiral", "index": spiral}
     if not judge.precise:
+        # a slow spiral into a stable focus also gives shrinking gaps: near one, leave it to a longer
+        # horizon (the caller doubles it) to reach the focus
+        if any(e["stable"] is True and judge._dist(end, e["point"]) < NEAR_FOCUS for e in judge.eq):
+            return None
         # told apart only: gaps shrinking by a steady ratio towards a limit away from every equilibrium
         q = [gaps[0] / gaps[1], gaps[1] / gaps[2]]
         if max(q) < 1 and abs(q[0] - q[1]) < 0.5 * (1 - max(q)):
@@ -212,8 +219,11 @@ def _spiral(judge, sec, xs):
         if not (r[0] < r[1] < r[2] < r[3]):
             continue
         q = [r[0] / r[1], r[1] / r[2], r[2] / r[3]]
-        # a steady contraction ratio: the distances tend to 0, not to a cycle's radius
-        if max(q) < 1 and max(q) - min(q) < 0.5 * (1 - max(q)):
+        # a steady contraction ratio, and towards 0: Aitken's extrapolation of the distances (exact
+        # for a geometric sequence) must vanish, not settle at another point's distance from e
+        den = r[0] - 2 * r[1] + r[2]
+        limit = r[0] - (r[0] - r[1]) ** 2 / den if den != 0 else r[0]
+        if max(q) < 1 and max(q) - min(q) < 0.5 * (1 - max(q)) and abs(limit) <= 0.25 * r[0]:
             return i
     return None
 

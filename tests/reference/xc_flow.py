@@ -25,7 +25,7 @@ A fate, from the recorded steps:
                section returns closing in geometrically on a stable focus (a slow spiral).
   cycle        section returns converging to a fixed point away from every equilibrium, or all
                equal to integration accuracy (a closed orbit); see xc_cycles.py.
-  undecided    none of these by the horizon.
+  undecided    none of these by the horizon, doubled up to HORIZON_DOUBLINGS times.
 The same trajectory is also judged against the feasible region (the states' min/max) instead of
 the window: keel's window is a drawing region inside it, so the two definitions can differ.
 """
@@ -43,6 +43,7 @@ import xc_cycles
 RTOL = 1e-10
 ATOL_OF_WIDTH = 1e-12
 MAX_STEPS = 400_000
+HORIZON_DOUBLINGS = 4  # keel's stated budget (16 horizons), the same rule: not its code
 EXIT_SLACK = 1e-9  # scaled overshoot that counts as having left
 EXIT_MARGIN = 1e-3  # scaled: a step whose Hermite extremum comes this near an edge is re-integrated densely
 FAR = 1e6  # window widths
@@ -272,9 +273,15 @@ class Judge:
                     return True
             return abs((y0 - l0) / w0) > huge or abs((y1 - l1) / w1) > huge
 
-        path = integrate(self.f, start, horizon, self.atol, arrived)
-        window = self._judge(path, self.lo, self.hi)
-        feasible = self._judge(path, self.flo, self.fhi) if np.all(np.isfinite(self.fhi - self.flo)) else window
+        # as keel documents for its fates: a trajectory still undecided at its horizon is followed
+        # on, the horizon doubled up to HORIZON_DOUBLINGS times (a slow spiral or a slow passage
+        # past a saddle is decided in the end)
+        for doubling in range(HORIZON_DOUBLINGS + 1):
+            path = integrate(self.f, start, horizon * 2**doubling, self.atol, arrived)
+            window = self._judge(path, self.lo, self.hi)
+            feasible = self._judge(path, self.flo, self.fhi) if np.all(np.isfinite(self.fhi - self.flo)) else window
+            if feasible.get("reason") != "horizon":
+                break
         return window, feasible, path
 
     def _judge(self, path, lo, hi):

@@ -245,6 +245,7 @@ function analyzeCore(
     options.basins,
     diagnostics,
     singularPoints,
+    separatrices.filter((s) => s.manifold === "stable").map((s) => s.path),
   );
   const results: Omit<Results, "basins"> = {
     keel: KEEL_VERSION,

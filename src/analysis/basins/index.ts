@@ -19,6 +19,7 @@ import {
   labelFractions,
   type BasinGrid,
   type BasinGridOptions,
+  type BoundaryCurve,
 } from "./refine.js";
 import { labelName, LABEL_BLOW_UP, LABEL_LEFT_WINDOW, LABEL_UNDECIDED } from "./labels.js";
 
@@ -51,6 +52,8 @@ export interface BasinPlan {
   targets: BasinTargets;
   options: BasinOptions;
   box: Box;
+  /** Known basin boundaries (the saddles' stable manifolds): cells they cross are always refined. */
+  boundaries: BoundaryCurve[];
 }
 
 /** One neutral cycle per family (the first, by id order) whose capture band was verified. */
@@ -76,6 +79,7 @@ export function planBasins(
   options: BasinOptions,
   diagnostics: Diagnostic[],
   singularPoints: { id: string; point: Record<string, number> }[] = [],
+  boundaries: BoundaryCurve[] = [],
 ): BasinPlan {
   const regions = findCaptureRegions(model, equilibria, box, 1);
   const attractors: string[] = [];
@@ -136,11 +140,17 @@ export function planBasins(
     maxStepsOutside: BASIN_MAX_STEPS_OUTSIDE,
   };
   const bounds = boundsOf(model);
-  return { kernelSource: generateBasinKernel(model, box, bounds, targets, settings), targets, options, box };
+  return {
+    kernelSource: generateBasinKernel(model, box, bounds, targets, settings),
+    targets,
+    options,
+    box,
+    boundaries,
+  };
 }
 
 export function startRefinement(plan: BasinPlan) {
-  return basinRefinement(plan.box, plan.options);
+  return basinRefinement(plan.box, plan.options, plan.boundaries);
 }
 
 const SPECIAL_ORDER = [LABEL_LEFT_WINDOW, LABEL_BLOW_UP, LABEL_UNDECIDED];

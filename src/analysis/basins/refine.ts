@@ -26,9 +26,10 @@ export interface BasinGrid {
 /**
  * Adaptive refinement: label a coarse uniform grid by its cell centres, then split into four
  * only the cells that touch a differently labelled cell, level by level, down to the effective
- * resolution. Cost grows with the length of the basin boundaries rather than the area. A
- * feature narrower than a coarse cell that no coarse centre samples can be missed: the coarse
- * grid sets the smallest basin guaranteed to be seen.
+ * resolution. Cost grows with the length of the basin boundaries rather than the area. Cells
+ * that a known boundary curve (a saddle's stable manifold) crosses are split too, and count as
+ * uncertain at the finest level. Otherwise a feature narrower than a coarse cell that no coarse
+ * centre samples can be missed: the coarse grid sets the smallest such basin guaranteed to be seen.
  *
  * A generator, so one implementation serves both drivers: it yields each level's starts and
  * receives their labels (from the kernel in this thread, or from a worker pool).
@@ -36,12 +37,14 @@ export interface BasinGrid {
 export function* basinRefinement(
   box: Box,
   options: BasinGridOptions,
+  boundaries: readonly BoundaryCurve[] = [],
 ): Generator<Float64Array, BasinGrid, Int32Array> {
   const n = options.resolution;
   const levels = Math.round(Math.log2(n / options.coarse));
   if (options.coarse * 2 ** levels !== n)
     throw new Error(`basin resolution ${n} is not coarse ${options.coarse} times a power of two`);
   const labels = new Int32Array(n * n);
+  const onBoundary = rasterizeCurves(box, n, boundaries);
   let trajectories = 0;
   // cells of the current level, as (i, j) of their lower-left fine cell, and their size in fine cells
   let cells: number[] = [];
@@ -69,7 +72,7 @@ export function* basinRefinement(
     for (let k = 0; k < count; k++) {
       const i0 = cells[2 * k],
         j0 = cells[2 * k + 1];
-      if (!touchesOtherLabel(labels, n, i0, j0, size)) continue;
+      if (!touchesOtherLabel(labels, n, i0, j0, size) && !blockTouches(onBoundary, n, i0, j0, size)) continue;
       next.push(i0, j0, i0 + half, j0, i0, j0 + half, i0 + half, j0 + half);
     }
     cells = next;
@@ -82,9 +85,49 @@ export function* basinRefinement(
     for (let i = 0; i < n; i++) {
       const boundary = touchesOtherLabel(labels, n, i, j, 1);
       if (boundary) boundaryCells++;
-      if (boundary || labels[j * n + i] === LABEL_UNDECIDED) uncertainCells++;
+      // a known boundary curve through a cell leaves its label open even where no neighbour differs
+      if (boundary || onBoundary[j * n + i] === 1 || labels[j * n + i] === LABEL_UNDECIDED) uncertainCells++;
     }
   return { resolution: n, labels, trajectories, boundaryCells, uncertainCells };
+}
+
+/** A known basin boundary (a saddle's stable manifold), as a polyline in state coordinates. */
+export interface BoundaryCurve {
+  x: readonly number[];
+  y: readonly number[];
+}
+
+/**
+ * The fine cells the curves pass through (1) as a mask. Each chord is walked in steps of a
+ * quarter cell, so no cell it crosses is skipped; a basin thinner than a coarse cell that hugs
+ * such a curve (as one along an invariant axis, bounded by a separatrix) is then refined too.
+ */
+function rasterizeCurves(box: Box, n: number, curves: readonly BoundaryCurve[]): Uint8Array {
+  const mask = new Uint8Array(n * n);
+  for (const c of curves)
+    for (let p = 0; p + 1 < c.x.length; p++) {
+      const u0 = ((c.x[p] - box.lo[0]) / box.width[0]) * n,
+        v0 = ((c.y[p] - box.lo[1]) / box.width[1]) * n;
+      const u1 = ((c.x[p + 1] - box.lo[0]) / box.width[0]) * n,
+        v1 = ((c.y[p + 1] - box.lo[1]) / box.width[1]) * n;
+      const steps = Math.min(4 * n, Math.ceil(4 * Math.max(Math.abs(u1 - u0), Math.abs(v1 - v0))) + 1);
+      for (let s = 0; s <= steps; s++) {
+        const i = Math.floor(u0 + ((u1 - u0) * s) / steps),
+          j = Math.floor(v0 + ((v1 - v0) * s) / steps);
+        if (i >= 0 && i < n && j >= 0 && j < n) mask[j * n + i] = 1;
+      }
+    }
+  return mask;
+}
+
+/** Whether a boundary curve passes through the block [i0, i0+size) × [j0, j0+size) or its 8-neighbourhood ring. */
+function blockTouches(mask: Uint8Array, n: number, i0: number, j0: number, size: number): boolean {
+  const iLo = Math.max(0, i0 - 1),
+    iHi = Math.min(n - 1, i0 + size);
+  const jLo = Math.max(0, j0 - 1),
+    jHi = Math.min(n - 1, j0 + size);
+  for (let j = jLo; j <= jHi; j++) for (let i = iLo; i <= iHi; i++) if (mask[j * n + i] === 1) return true;
+  return false;
 }
 
 /** Whether the block [i0, i0+size) × [j0, j0+size) borders (8-neighbourhood) a cell with another label. */

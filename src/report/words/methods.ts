@@ -16,6 +16,8 @@ import {
   MAP_RESOLUTION,
   OUTCOME_SAMPLES,
   ROOT_RESIDUAL_TOL,
+  FEASIBLE_GRID_FRACTION,
+  SINGULAR_ARRIVAL_DISTANCE,
   SHOOT_RELATIVE_TOL,
   SHOOT_RESIDUAL_TOL,
   SHOOT_ACCEPT_TOL,
@@ -57,7 +59,8 @@ function equilibriumMethod(s: RecordedSettings): string {
   return (
     `Equilibria: damped Newton from a deterministic multistart set (${grid}, window edges and axes, roots of each component along each edge${edges}); ` +
     `a root is accepted when every residual is below ${formatNumber(ROOT_RESIDUAL_TOL)} of that component's scale over the window; ` +
-    `roots closer than ${formatNumber(DEDUP_REL_TOL)} of the window are merged.`
+    `roots closer than ${formatNumber(DEDUP_REL_TOL)} of the window are merged. ` +
+    `Where the feasible region (the states' bounds) reaches beyond the window, it is searched as well, on a grid ${formatNumber(FEASIBLE_GRID_FRACTION)} as fine, from starts beyond the window.`
   );
 }
 
@@ -88,7 +91,8 @@ function trajectoryMethod(s: RecordedSettings): string {
     "A trajectory counts as converged once it enters a neighbourhood of a stable equilibrium on which the linearisation's quadratic Lyapunov function " +
     `was checked by sampling to decrease (only ${percent(CAPTURE_SAFETY)} of the checked level is used, as sampling is not a proof). ` +
     "Trajectories are followed inside the feasible region (the states' bounds), out of the window and back where they go so; " +
-    "leaving that region, also between two integration steps (read from each step's cubic Hermite interpolant), is the fate 'leaves the feasible region'."
+    "leaving that region, also between two integration steps (read from each step's cubic Hermite interpolant), is the fate 'leaves the feasible region'. " +
+    `A trajectory that passes within ${formatNumber(SINGULAR_ARRIVAL_DISTANCE)} of the window of a singular point (where the field is not defined) stops there, its fate undecided: the equations do not say what follows.`
   );
 }
 
@@ -124,7 +128,9 @@ function basinMethod(s: RecordedSettings, timeUnit: string): string[] {
         ? `, absolute tolerance ${formatNumber(b.absoluteToleranceOfWindow)} of the window`
         : "") +
       (b.horizon !== undefined ? `, for at most t = ${formatNumber(b.horizon, 4)} ${timeUnit}` : "") +
-      ", by the trajectories' fate rules; a cell whose trajectory crosses a stable cycle's section within the stretch checked to return towards the cycle is that cycle's.",
+      ", by the trajectories' fate rules; a cell whose trajectory crosses a stable cycle's section within the stretch checked to return towards the cycle is that cycle's, " +
+      "one that crosses a neutral family's section within the radii checked to close is on that family (no attractor), " +
+      `and one that passes within ${formatNumber(SINGULAR_ARRIVAL_DISTANCE)} of the window of a singular point is labelled with that point.`,
   ];
 }
 

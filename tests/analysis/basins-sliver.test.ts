@@ -9,32 +9,16 @@
 import { describe, expect, it } from "vitest";
 import { runPipeline } from "../../src/pipeline.js";
 import { findScipyPython, runReference } from "../fixtures/scipy.js";
+import { MUTUALISM_PARAMETERS, mutualismSpec } from "../fixtures/mutualism.js";
 
-const P = { bP: 1.0, dP: 0.2, cP: 0.1, bA: 0.8, dA: 0.3, cA: 0.05 };
+const P = MUTUALISM_PARAMETERS;
 
 describe.skipIf(findScipyPython() === null)(
   "basin map of a sliver along the axes (obligate mutualism)",
   () => {
     it("analyze(mutualism).basins gives the origin's sliver its Green's-theorem share within errorBound", () => {
       const out = runPipeline(
-        JSON.stringify({
-          keel: 1,
-          id: "orchard-mutualism",
-          title: "An orchard crop and its wild pollinator (invented values)",
-          time: { unit: "year" },
-          states: [
-            { name: "P", min: 0, max: 20, population: true },
-            { name: "A", min: 0, max: 20, population: true },
-          ],
-          parameters: Object.entries(P).map(([name, value]) => ({
-            name,
-            value,
-            source: "invented for the test",
-          })),
-          equations: { P: "P*(bP*A/(1 + A) - dP - cP*P)", A: "A*(bA*P/(1 + P) - dA - cA*A)" },
-          window: { P: [0, 8], A: [0, 10] },
-          analysis: { basins: { resolution: 256, coarse: 16 }, parameters: [] },
-        }),
+        mutualismSpec({ analysis: { basins: { resolution: 256, coarse: 16 }, parameters: [] } }),
       );
       if (!out.ok) throw new Error(JSON.stringify(out.issues));
       const r = out.value.results;

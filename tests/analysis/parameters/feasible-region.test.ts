@@ -14,27 +14,14 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { runPipeline } from "../../../src/pipeline.js";
 import type { Results } from "../../../src/analysis/types.js";
+import { MUTUALISM_PARAMETERS, mutualismSpec } from "../../fixtures/mutualism.js";
 
-const P = { bP: 1.0, dP: 0.2, cP: 0.1, bA: 0.8, dA: 0.3, cA: 0.05 };
+const P = MUTUALISM_PARAMETERS;
 
-function spec(studied: string[]) {
-  return JSON.stringify({
-    keel: 1,
-    id: "orchard-mutualism",
-    title: "An orchard crop and its wild pollinator (invented values)",
-    time: { unit: "year" },
-    states: [
-      { name: "P", min: 0, max: 20, population: true },
-      { name: "A", min: 0, max: 20, population: true },
-    ],
-    parameters: Object.entries(P).map(([name, value]) => ({
-      name,
-      value,
-      source: "invented for the test",
-      ...(name === "bA" ? { range: [0.4, 1.6] } : name === "dA" ? { range: [0.1, 0.7] } : {}),
-    })),
-    equations: { P: "P*(bP*A/(1 + A) - dP - cP*P)", A: "A*(bA*P/(1 + P) - dA - cA*A)" },
-    window: { P: [0, 8], A: [0, 10] },
+function spec(studied: string[], values: Partial<typeof P> = {}) {
+  return mutualismSpec({
+    values,
+    ranges: { bA: [0.4, 1.6], dA: [0.1, 0.7] },
     scenarios: [
       { name: "established", initial: { P: 3, A: 4 }, horizon: 200 },
       { name: "sparse", initial: { P: 0.6, A: 0.5 }, horizon: 200 },
@@ -75,7 +62,7 @@ describe("outcome studies in the feasible region, not the window", () => {
   }, 120_000);
 
   it("analyze(mutualism) finds the coexistence equilibrium even where it lies outside the window", () => {
-    const outside = runPipeline(spec([]).replace('"value":0.8,', '"value":1.2,'));
+    const outside = runPipeline(spec([], { bA: 1.2 }));
     if (!outside.ok) throw new Error("refused");
     const coexistence = outside.value.results.equilibria.filter((e) => e.point.P > 5);
     expect(coexistence).toHaveLength(1);

@@ -376,6 +376,12 @@ export const FATE_EXTENSION_MAX_STEPS = TRAJECTORY_MAX_STEPS;
  * parameter studies and maps, hundreds of times.
  */
 export const CYCLE_SCAN_RATIO = 2;
+/**
+ * Returns spent looking for a band of inward returns between the last outward one and the first
+ * radius that does not return (flow/scan.ts): 12 halvings of a factor-2 gap resolve a band of
+ * 1/4096 of the radius, about 1e-5 of the window for a cycle of a tenth of it.
+ */
+export const CYCLE_EDGE_BISECTIONS = 12;
 /** Two solved orbits are one when their periods agree to this, relatively ... */
 export const SAME_CYCLE_PERIOD_TOL = 1e-6;
 /** ... and their extents to this fraction of the window. */

@@ -220,13 +220,25 @@ function compareCycles(t: Tally, k: KeelSummary, r: ReferenceModel): void {
 
 /**
  * Breaks closer than the tolerance are one: where an equilibrium's type is borderline for a moment
- * (the reference leaves it undecided), one change of outcome shows as two a hair apart.
+ * (the reference leaves it undecided), one change of outcome shows as two a hair apart. So is a
+ * break whose bracket starts where the previous one's ends: the reference could not resolve it
+ * (undecided values inside, as where a spiral near a Hopf point or a passage past a ghost outlasts
+ * every horizon), so it may sit right at the previous break, and nothing it decided says otherwise.
  */
-function merged<T extends { value: number }>(list: T[], tol: (a: number, b: number) => number): T[] {
+function merged<T extends { value: number; bracket?: [number, number] }>(
+  list: T[],
+  tol: (a: number, b: number) => number,
+): T[] {
   const out: T[] = [];
   for (const b of [...list].sort((p, q) => p.value - q.value)) {
     const last = out[out.length - 1];
-    if (!last || b.value - last.value > tol(b.value, last.value)) out.push(b);
+    const reach = last?.bracket?.[1] ?? last?.value ?? -Infinity;
+    const from = b.bracket?.[0] ?? b.value;
+    const adjoins = from - reach <= tol(from, reach);
+    if (!last || (b.value - last.value > tol(b.value, last.value) && !adjoins)) out.push({ ...b });
+    // one cluster: its bracket spans its members' (a break of keel's anywhere in it matches)
+    else if (last.bracket && b.bracket)
+      last.bracket = [last.bracket[0], Math.max(last.bracket[1], b.bracket[1])];
   }
   return out;
 }

@@ -4,7 +4,8 @@ The outcome at a parameter value is the set of attractors plus every scenario's 
 design defines it (DESIGN.md, "outcome" and "break"): a stable equilibrium is named by the states
 it keeps away from their lower bound and, among stable equilibria of the same pattern, by its place
 in the order of the first state (only, lowest, highest, or k-th of n); a stable cycle counts as an
-attractor when some scenario reaches it. Two outcomes differ by a break when their equilibrium
+attractor when some scenario reaches it, or when a trajectory started next to an unstable focus or
+node inside the region ends on it (a cycle around a source, found without any scenario). Two outcomes differ by a break when their equilibrium
 attractors differ, when a scenario decided on both sides has different fates, or, with every
 scenario decided on both sides, when one has a stable cycle and the other not. A fate undecided by
 the horizon on one side is a limit of what was decided, never a break.
@@ -49,12 +50,15 @@ class Study:
         names = attractor_names(c, inside)
         fates = [judge.follow(sc["start"], sc["horizon"])[1] for sc in c.scenarios]
         keys = [fate_key(c, f, inside, names) for f in fates]
+        searched = source_cycles(c, judge, inside)
         o = {
             "attractors": sorted(set(names.values())),
             "fates": keys,
-            "cycle": any(f["kind"] == "cycle" and f["stability"] == "stable" for f in fates),
+            "cycle": any(f["kind"] == "cycle" and f["stability"] == "stable" for f in fates + searched),
             # a cycle whose multiplier is within NEUTRAL of 1 leaves the cycle's presence as an attractor open
-            "decided": all(k is not None for k in keys) and not any(f["kind"] == "cycle" and f["stability"] != "stable" for f in fates),
+            "decided": all(k is not None for k in keys)
+            and not any(f["kind"] == "cycle" and f["stability"] != "stable" for f in fates + searched)
+            and not any(f["kind"] == "undecided" for f in searched),
         }
         self.cache[v] = o
         return o
@@ -115,6 +119,26 @@ class Study:
                 break
             a, oa = hi, ohi
         return found, []
+
+
+SOURCE_OFFSET = 1e-3  # of the window width: the start next to a source
+
+
+def source_cycles(ctx, judge, inside):
+    """Fates of trajectories started next to each unstable focus or node off the state bounds: a
+    bounded one that ends on no equilibrium ends on a cycle around the source (Poincare-Bendixson;
+    Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., 7.3)."""
+    horizon = max([sc["horizon"] for sc in ctx.scenarios] or [100.0])
+    out = []
+    for e in inside:
+        if e["type"] not in ("unstable-focus", "unstable-node") or e["borderline"]:
+            continue
+        p = np.asarray(e["point"], float)
+        if len(present(ctx, p)) < 2:
+            continue
+        start = [float(p[0] + SOURCE_OFFSET * ctx.width[0]), float(p[1])]
+        out.append(judge.follow(start, horizon)[1])
+    return out
 
 
 def describe(o):

@@ -4,6 +4,7 @@ import type { Box } from "../numeric/window.js";
 import { acceptOrbit, type OrbitSolution } from "./cycles.js";
 import { returnMap, type Section } from "./section.js";
 import {
+  CYCLE_EDGE_BISECTIONS,
   CYCLE_MIN_EXTENT,
   CYCLE_SCAN_RATIO,
   SHOOT_ACCEPT_TOL,
@@ -18,8 +19,9 @@ import {
  * exist), and every sign change of g = P(r) − r is solved for its fixed point. It needs no
  * trajectory to be followed to a cycle, so it costs the same near a Hopf point, where orbits
  * approach a cycle slowly, as anywhere. Around a centre whose return map is the identity at
- * every sample, one orbit of the family is solved. A cycle around a node only, or nested with
- * another within one ratio, is left to the trajectories.
+ * every sample, one orbit of the family is solved. Where returns stop after an outward one, the
+ * gap is bisected for a thin band of inward returns (sampleBeforeEdge). A cycle around a node
+ * only, or nested with another within one ratio, is left to the trajectories.
  */
 
 interface Sample {
@@ -58,13 +60,43 @@ function solveBracket(section: Section, a: Sample, b: Sample): { r: number; peri
   return null;
 }
 
+/**
+ * Where returns stop after an outward one (g > 0 at `last`, none at `rFail`), a band of inward
+ * returns may lie in between, thinner than one scan ratio: orbits between a stable cycle and the
+ * separatrix beyond it, as the cycle nears a homoclinic or heteroclinic loop. Bisection on
+ * "returns, and outward" finds one inward sample there (the bracket of that stable cycle, an
+ * attractor an outcome must not miss), or gives up after CYCLE_EDGE_BISECTIONS returns. Inward
+ * returns followed by none (an unstable cycle next to the separatrix) are not searched: such a
+ * cycle is no attractor.
+ */
+function sampleBeforeEdge(section: Section, last: Sample, rFail: number): Sample | null {
+  let lo = last.r,
+    hi = rFail,
+    period = last.period;
+  for (let k = 0; k < CYCLE_EDGE_BISECTIONS; k++) {
+    const r = 0.5 * (lo + hi);
+    const ret = returnMap(section, r, period, "sample");
+    if (!ret) hi = r;
+    else if (ret.r - r > 0) {
+      lo = r;
+      period = ret.period;
+    } else return { r, g: ret.r - r, period: ret.period };
+  }
+  return null;
+}
+
 /** The samples of g outward from CYCLE_MIN_EXTENT, until a return fails or the window's edge. */
 function sampleReturns(section: Section, rEdge: number, period0: number): Sample[] {
   const samples: Sample[] = [];
   let period = period0;
   for (let r = CYCLE_MIN_EXTENT * CYCLE_SCAN_RATIO; r < rEdge; r *= CYCLE_SCAN_RATIO) {
     const ret = returnMap(section, r, period, "sample");
-    if (!ret) break;
+    if (!ret) {
+      const last = samples[samples.length - 1];
+      const inward = last && last.g > SHOOT_RESIDUAL_TOL ? sampleBeforeEdge(section, last, r) : null;
+      if (inward) samples.push(inward);
+      break;
+    }
     samples.push({ r, g: ret.r - r, period: ret.period });
     period = ret.period;
   }

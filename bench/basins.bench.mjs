@@ -28,7 +28,7 @@ import {
 import { tolerancesFor } from "../dist/analysis/numeric/integrate.js";
 import { flowTimeScale } from "../dist/analysis/flow/trajectories.js";
 import { windowOf } from "../dist/analysis/numeric/window.js";
-import { createBasinPool } from "../dist/cli/pool.js";
+import { createAnalysisPool } from "../dist/cli/pool.js";
 
 const TARGET_KERNEL_SPEEDUP = 1.2;
 const TARGET_PARALLEL_EFFICIENCY = 0.85;
@@ -429,8 +429,8 @@ async function timePool(pool, source, starts) {
 async function benchParallel(name) {
   const { plan } = planFor(name);
   const starts = gridStarts(plan.box, PARALLEL_GRID);
-  const single = createBasinPool(1),
-    several = createBasinPool(WORKERS);
+  const single = createAnalysisPool(1),
+    several = createAnalysisPool(WORKERS);
   try {
     // warm-up: threads started, kernel compiled and optimised in every worker
     await timePool(single, plan.kernelSource, starts);

@@ -22,6 +22,7 @@ import {
   type ProgressReporter,
 } from "./analysis/analyze.js";
 import type { BatchEvaluator } from "./analysis/basins/refine.js";
+import type { ParameterTaskRunner } from "./analysis/parameters/tasks.js";
 import type { Results } from "./analysis/types.js";
 
 export interface PipelineOutput {
@@ -55,16 +56,20 @@ export function runPipeline(
   return { ok: true, value: { ...prepared.value, results } };
 }
 
-/** Steps 1–3 with the basin map fanned out through `evaluate` (a worker pool); same Results. */
+/**
+ * Steps 1–3 with the basin map fanned out through `evaluate` and the parameter studies and maps
+ * through `runTasks` (a worker pool); same Results.
+ */
 export async function runPipelineAsync(
   specText: string,
   evaluate: (kernelSource: string) => BatchEvaluator,
   options?: AnalysisOptions,
   progress?: ProgressReporter,
+  runTasks?: ParameterTaskRunner,
 ): Promise<Parsed<PipelineOutput>> {
   const prepared = prepareModel(specText);
   if (!prepared.ok) return prepared;
   const model = prepared.value.model;
-  const results = await analyzeAsync(model, evaluate, options ?? optionsForModel(model), progress);
+  const results = await analyzeAsync(model, evaluate, options ?? optionsForModel(model), progress, runTasks);
   return { ok: true, value: { ...prepared.value, results } };
 }

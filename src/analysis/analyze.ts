@@ -29,8 +29,14 @@ import { runRefinementAsync, runRefinementSync, type BatchEvaluator } from "./ba
 import { findNullclines, type NullclineOptions } from "./phase/nullclines.js";
 import { findRegions, type RegionOptions } from "./phase/regions.js";
 import { findInvasionConditions } from "./parameters/invasion.js";
-import { studyParameter } from "./parameters/study.js";
-import { buildOutcomeMap } from "./parameters/maps.js";
+import {
+  assembleParameterWork,
+  planParameterTasks,
+  runParameterTask,
+  type ParameterTask,
+  type ParameterTaskResult,
+  type ParameterTaskRunner,
+} from "./parameters/tasks.js";
 import { findAssumptionFlips } from "./checks/assumptions.js";
 import { checkClaims } from "./checks/claims.js";
 import { computeDirectionField, type DirectionFieldOptions } from "./phase/field.js";
@@ -122,27 +128,6 @@ function settingsOf(options: AnalysisOptions, portraitHorizon: number): Results[
   };
 }
 
-/** Step 6: symbolic invasion rates, thresholds by continuation, outcome intervals, outcome maps. */
-function analyzeParameters(
-  model: Model,
-  equilibria: Results["equilibria"],
-  diagnostics: Diagnostic[],
-  progress?: ProgressReporter,
-): Results["conditions"] {
-  progress?.("thresholds", 0, 1);
-  const invasion = findInvasionConditions(model, equilibria);
-  const studied = model.spec.analysis.parameters;
-  const studies = studied.map((name, k) => {
-    const p = model.spec.parameters.find((q) => q.name === name)!;
-    const study = studyParameter(model, name, p.range!, invasion, diagnostics);
-    progress?.("thresholds", k + 1, studied.length + model.spec.analysis.parameterPairs.length);
-    return study;
-  });
-  const maps = model.spec.analysis.parameterPairs.map((pair) => buildOutcomeMap(model, pair, studies));
-  progress?.("thresholds", 1, 1);
-  return { invasion, studies, maps };
-}
-
 /** Step 1: the equilibria, classified, and the singular points and lines, which the equilibrium search leaves out. */
 function analyzeEquilibria(
   model: Model,
@@ -174,7 +159,9 @@ function analyzeFlows(
   const forward = buildFlowContext(model, equilibria, box, 1, singularPoints);
   const backward = buildFlowContext(model, equilibria, box, -1, singularPoints);
   const registry = new CycleRegistry(model, box);
+  progress?.("cycles", 0, 1);
   registry.scanSections(equilibria);
+  progress?.("cycles", 1, 1);
   progress?.("trajectories", 0, 3);
   const scenarios = integrateScenarios(model, forward, registry, options.trajectories);
   progress?.("trajectories", 1, 3);
@@ -206,17 +193,28 @@ function analyzeFlows(
   return { box, registry, scenarios, separatrices, trajectories, portraitHorizon, timeScale, singularPoints };
 }
 
-/** Steps 1–8 of the analysis: everything but the basin map, plus the basin map's plan. */
-function analyzeCore(
+/** What steps 1–8 give: everything but the basin map, plus the basin map's plan. */
+interface CoreOutput {
+  results: Omit<Results, "basins">;
+  plan: BasinPlan;
+}
+
+/**
+ * Steps 1–8 of the analysis, as a generator: it yields the parameter tasks of step 6 once and
+ * takes their answers, in task order, from whichever driver runs them (this thread, or a worker
+ * pool), so both drivers give the same Results.
+ */
+function* analyzeCore(
   model: Model,
   options: AnalysisOptions,
   progress?: ProgressReporter,
-): { results: Omit<Results, "basins">; plan: BasinPlan } {
+): Generator<ParameterTask[], CoreOutput, ParameterTaskResult[]> {
   const diagnostics: Diagnostic[] = [];
   // 1. equilibria and their stability; singular points and lines (never classified)
   const { equilibria, singularities } = analyzeEquilibria(model, options, diagnostics, progress);
 
   // 2. geometry of the portrait: nullclines, the regions they cut out, the direction field
+  progress?.("geometry", 0, 1);
   const nullclines = findNullclines(model, equilibria, options.nullclines, diagnostics);
   const regions = findRegions(model, nullclines, options.regions, diagnostics);
   const field = computeDirectionField(model, options.field);
@@ -226,15 +224,21 @@ function analyzeCore(
   const { box, registry, scenarios, separatrices, trajectories, portraitHorizon, timeScale, singularPoints } =
     flows;
 
-  // 6. deciding conditions: symbolic invasion rates, thresholds by continuation, outcome intervals, maps
-  const { invasion, studies, maps } = analyzeParameters(model, equilibria, diagnostics, progress);
+  // 6. deciding conditions: symbolic invasion rates, then thresholds by continuation, outcome
+  // intervals and maps, as tasks the driver runs
+  const invasion = findInvasionConditions(model, equilibria);
+  const tasks = planParameterTasks(model, invasion);
+  const answers = tasks.length ? yield tasks : [];
+  const { studies, maps } = assembleParameterWork(model, tasks, answers, diagnostics);
   const flips = findAssumptionFlips(model, studies);
   const assumptions = evaluateAssumptions(model).map((a, k) => ({ ...a, flips: flips[k] }));
 
   // 7. the spec's claims, one by one
+  progress?.("claims", 0, 1);
   const claims = checkClaims({ model, equilibria, scenarios, studies });
 
   // 8. the basin map's kernel, for the attractors now known
+  progress?.("basins", 0, 1);
   const plan = planBasins(
     model,
     equilibria,
@@ -277,13 +281,30 @@ function withBasins(core: Omit<Results, "basins">, basins: Results["basins"]): R
   return { ...head, basins, assumptions, diagnostics, settings };
 }
 
+/** Each task in this thread, in order, with progress by task. */
+function runTasksHere(
+  model: Model,
+  tasks: ParameterTask[],
+  progress?: ProgressReporter,
+): ParameterTaskResult[] {
+  progress?.("thresholds", 0, tasks.length);
+  return tasks.map((task, k) => {
+    const answer = runParameterTask(model, task);
+    progress?.("thresholds", k + 1, tasks.length);
+    return answer;
+  });
+}
+
 /** Model → Results, every pass in this thread. Pure and deterministic. */
 export function analyze(
   model: Model,
   options: AnalysisOptions = optionsForModel(model),
   progress?: ProgressReporter,
 ): Results {
-  const { results, plan } = analyzeCore(model, options, progress);
+  const core = analyzeCore(model, options, progress);
+  let step = core.next(undefined as unknown as ParameterTaskResult[]);
+  while (!step.done) step = core.next(runTasksHere(model, step.value, progress));
+  const { results, plan } = step.value;
   const kernel = instantiateBasinKernel(plan.kernelSource);
   progress?.("basins", 0, 1);
   const grid = runRefinementSync(startRefinement(plan), (starts) => {
@@ -296,16 +317,24 @@ export function analyze(
 }
 
 /**
- * The same Results, with the basin map's batches sent to `evaluate` (a worker pool). Labels
- * depend only on each start, so the answer does not depend on the number of workers.
+ * The same Results, with the basin map's batches sent to `evaluate` and the parameter tasks to
+ * `runTasks` (a worker pool; in this thread when absent). Labels depend only on each start and
+ * answers come back in task order, so the answer does not depend on the number of workers.
  */
 export async function analyzeAsync(
   model: Model,
   evaluate: (kernelSource: string) => BatchEvaluator,
   options: AnalysisOptions = optionsForModel(model),
   progress?: ProgressReporter,
+  runTasks?: ParameterTaskRunner,
 ): Promise<Results> {
-  const { results, plan } = analyzeCore(model, options, progress);
+  const core = analyzeCore(model, options, progress);
+  let step = core.next(undefined as unknown as ParameterTaskResult[]);
+  while (!step.done)
+    step = core.next(
+      runTasks ? await runTasks(model, step.value) : runTasksHere(model, step.value, progress),
+    );
+  const { results, plan } = step.value;
   const batch = evaluate(plan.kernelSource);
   progress?.("basins", 0, 1);
   const grid = await runRefinementAsync(startRefinement(plan), batch);

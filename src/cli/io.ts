@@ -1,3 +1,5 @@
+import type { ProgressReporter } from "../analysis/analyze.js";
+import type { StageClock } from "./profile.js";
 import { mkdirSync, readFileSync, renameSync, writeFileSync, rmSync } from "node:fs";
 import { dirname, join, basename } from "node:path";
 import { formatIssues } from "../diagnostics/format.js";
@@ -68,9 +70,20 @@ export function writeFileAtomic(path: string, content: string | Uint8Array): voi
 }
 
 /** Progress on stderr, only when it is a terminal and not silenced. */
-export function makeProgress(
-  quiet: boolean,
-): ((stage: string, done: number, total: number) => void) | undefined {
+/** The options every command takes from the program: --quiet, --jobs, and --profile's clock. */
+export interface CommonOptions {
+  quiet: boolean;
+  jobs?: number;
+  clock?: StageClock;
+}
+
+/** The progress bar on a terminal (unless quiet), and the profile's stage clock when given. */
+export function makeProgress(quiet: boolean, clock?: StageClock): ProgressReporter | undefined {
+  const bar = progressBar(quiet);
+  return clock ? clock.observe(bar) : bar;
+}
+
+function progressBar(quiet: boolean): ProgressReporter | undefined {
   if (quiet || !process.stderr.isTTY) return undefined;
   let last = "";
   return (stage, done, total) => {

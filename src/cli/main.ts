@@ -2,7 +2,8 @@ import { Command, CommanderError, InvalidArgumentError } from "commander";
 import { KEEL_VERSION } from "../version.js";
 import { buildSpecJsonSchema } from "../spec/schema.js";
 import { messages } from "../diagnostics/messages.js";
-import { CliExit, EXIT, inputError, readSpecFile } from "./io.js";
+import { CliExit, EXIT, inputError, readSpecFile, type CommonOptions } from "./io.js";
+import { StageClock } from "./profile.js";
 import { parseSpecText } from "../spec/parse.js";
 import { availableParallelism } from "node:os";
 import { readFileSync } from "node:fs";
@@ -23,9 +24,18 @@ function prevalidate(file: string): void {
   if (!parsed.ok) throw inputError(parsed.issues, file);
 }
 
+/** --profile's clock, one per run of the program. */
+const clocks = new WeakMap<Command, StageClock>();
+
+function clockOf(program: Command): StageClock | undefined {
+  if (!program.opts().profile) return undefined;
+  if (!clocks.has(program)) clocks.set(program, new StageClock());
+  return clocks.get(program);
+}
+
 /** The program-level options every command passes on. */
-function commonOptions(program: Command): { quiet: boolean; jobs?: number } {
-  return { quiet: Boolean(program.opts().quiet), jobs: program.opts().jobs };
+function commonOptions(program: Command): CommonOptions {
+  return { quiet: Boolean(program.opts().quiet), jobs: program.opts().jobs, clock: clockOf(program) };
 }
 
 function addCheckCommand(program: Command): void {
@@ -136,6 +146,10 @@ function buildProgram(): Command {
     .version(KEEL_VERSION, "-V, --version", "print keel's version")
     .option("-q, --quiet", "no progress output on stderr")
     .option(
+      "--profile",
+      "print the wall time of every stage on stderr at the end (analyze, build, check --claims, verify)",
+    )
+    .option(
       "-j, --jobs <n>",
       `worker threads for heavy passes (default: available cores, here ${availableParallelism()})`,
       parseJobs,
@@ -154,19 +168,27 @@ export async function main(argv: string[]): Promise<number> {
     await program.parseAsync(argv, { from: "user" });
     return EXIT.ok;
   } catch (err) {
-    if (err instanceof CliExit) {
-      if (err.message) process.stderr.write(err.message + "\n");
-      return err.code;
-    }
-    if (err instanceof CommanderError) {
-      // help and version are successful exits; commander already printed them. Help shown because
-      // no command was given ("commander.help" with exit code 1) is a usage error.
-      if (err.code === "commander.helpDisplayed" || err.code === "commander.version") return EXIT.ok;
-      if (err.code === "commander.help" && err.exitCode === 0) return EXIT.ok;
-      return EXIT.input;
-    }
-    process.stderr.write(messages.internal((err as Error)?.message ?? String(err)) + "\n");
-    if (process.env.KEEL_DEBUG) process.stderr.write(String((err as Error)?.stack) + "\n");
-    return EXIT.internal;
+    return exitCodeOf(err);
+  } finally {
+    const clock = clocks.get(program);
+    if (clock) process.stderr.write(clock.report() + "\n");
   }
+}
+
+/** The exit code for what the command threw, with its message on stderr. */
+function exitCodeOf(err: unknown): number {
+  if (err instanceof CliExit) {
+    if (err.message) process.stderr.write(err.message + "\n");
+    return err.code;
+  }
+  if (err instanceof CommanderError) {
+    // help and version are successful exits; commander already printed them. Help shown because
+    // no command was given ("commander.help" with exit code 1) is a usage error.
+    if (err.code === "commander.helpDisplayed" || err.code === "commander.version") return EXIT.ok;
+    if (err.code === "commander.help" && err.exitCode === 0) return EXIT.ok;
+    return EXIT.input;
+  }
+  process.stderr.write(messages.internal((err as Error)?.message ?? String(err)) + "\n");
+  if (process.env.KEEL_DEBUG) process.stderr.write(String((err as Error)?.stack) + "\n");
+  return EXIT.internal;
 }

@@ -1,21 +1,36 @@
 import { Piscina } from "piscina";
 import type { BatchEvaluator } from "../analysis/basins/refine.js";
+import type {
+  ParameterTask,
+  ParameterTaskResult,
+  ParameterTaskRunner,
+} from "../analysis/parameters/tasks.js";
 
 /** Starts per task: large enough to amortise messaging, small enough to balance two cores. */
 const STARTS_PER_TASK = 512;
 
-export interface BasinPool {
+export interface AnalysisPool {
+  /** The basin map's batches, split into fixed-size tasks. */
   evaluator: (kernelSource: string) => BatchEvaluator;
+  /** The parameter studies and map rows, one task each. */
+  parameters: ParameterTaskRunner;
   close: () => Promise<void>;
 }
 
+export type PoolProgress = (stage: "basin cells" | "thresholds", done: number, total: number) => void;
+
 /**
- * A worker-thread pool for the basin map. Batches are split into fixed-size tasks and the
- * answers put back in start order, so the labels do not depend on the number of workers.
+ * A worker-thread pool for the analysis's heavy passes: the basin map and the parameter work.
+ * Answers are put back in start or task order, so results do not depend on the number of
+ * workers.
  */
-export function createBasinPool(jobs: number, onProgress?: (done: number, total: number) => void): BasinPool {
+export function createAnalysisPool(
+  jobs: number,
+  onProgress?: PoolProgress,
+  onTask?: (task: ParameterTask, ms: number) => void,
+): AnalysisPool {
   const pool = new Piscina({
-    filename: new URL("./basin-worker.js", import.meta.url).href,
+    filename: new URL("./analysis-worker.js", import.meta.url).href,
     minThreads: jobs,
     maxThreads: jobs,
     idleTimeout: 1000,
@@ -33,15 +48,33 @@ export function createBasinPool(jobs: number, onProgress?: (done: number, total:
         const last = Math.min(count, first + STARTS_PER_TASK);
         const slice = starts.slice(2 * first, 2 * last);
         tasks.push(
-          pool.run({ source, starts: slice }, { transferList: [slice.buffer] }).then((labels: Int32Array) => {
-            out.set(labels, first);
-            done += last - first;
-            onProgress?.(done, total);
-          }),
+          pool
+            .run({ source, starts: slice }, { name: "labelBatch", transferList: [slice.buffer] })
+            .then((labels: Int32Array) => {
+              out.set(labels, first);
+              done += last - first;
+              onProgress?.("basin cells", done, total);
+            }),
         );
       }
       await Promise.all(tasks);
       return out;
     };
-  return { evaluator, close: () => pool.destroy() };
+  const parameters: ParameterTaskRunner = async (model, tasks) => {
+    let finished = 0;
+    onProgress?.("thresholds", 0, tasks.length);
+    const payload = { spec: model.spec, parameterValues: Array.from(model.parameterValues) };
+    return Promise.all(
+      tasks.map((task) =>
+        pool
+          .run({ ...payload, task }, { name: "runTask" })
+          .then(({ answer, ms }: { answer: ParameterTaskResult; ms: number }) => {
+            onTask?.(task, ms);
+            onProgress?.("thresholds", ++finished, tasks.length);
+            return answer;
+          }),
+      ),
+    );
+  };
+  return { evaluator, parameters, close: () => pool.destroy() };
 }

@@ -5,6 +5,12 @@ import { analyze, analyzeAsync } from "../../src/analysis/analyze.js";
 import { instantiateBasinKernel } from "../../src/analysis/basins/kernel.js";
 import type { BatchEvaluator } from "../../src/analysis/basins/refine.js";
 import { prepareModel } from "../../src/pipeline.js";
+import {
+  runParameterTask,
+  type ParameterTaskResult,
+  type ParameterTaskRunner,
+} from "../../src/analysis/parameters/tasks.js";
+import { compileModel } from "../../src/model/compile.js";
 import { CLI_ENTRY, removeWorkDirs, runKeel } from "../fixtures/cli.js";
 import { EXAMPLE_IDS, examplePath, exampleSpec } from "../fixtures/examples.js";
 
@@ -81,4 +87,42 @@ describe("analyzeAsync with an evaluator that splits batches oddly", () => {
       expect(JSON.stringify(oddly)).toBe(JSON.stringify(direct));
     });
   }
+});
+
+describe("analyzeAsync with parameter tasks run out of order on a second compilation", () => {
+  /**
+   * Runs the tasks last first, each on a model compiled again from a structured clone of the
+   * spec (as a worker thread sees it), its answer cloned back: a stand-in for the worker pool.
+   */
+  const lastFirstElsewhere: ParameterTaskRunner = async (model, tasks) => {
+    const compiled = compileModel(structuredClone(model.spec));
+    if (!compiled.ok) throw new Error("the spec did not compile again");
+    const answers: ParameterTaskResult[] = new Array(tasks.length);
+    for (let k = tasks.length - 1; k >= 0; k--) {
+      await new Promise((resolve) => setImmediate(resolve));
+      answers[k] = structuredClone(runParameterTask(compiled.value, structuredClone(tasks[k])));
+    }
+    return answers;
+  };
+
+  it("analyzeAsync(competition-map, tasks last first) deep-equals analyze(competition-map), map and studies included", async () => {
+    // two studies and one map, with a small basin grid (64/16)
+    const text = readFileSync(join("tests", "fixtures", "specs", "competition-map-a4409dc54a.json"), "utf8");
+    const prepared = prepareModel(text);
+    if (!prepared.ok) throw new Error(JSON.stringify(prepared.issues));
+    const model = prepared.value.model;
+    const label = (source: string): BatchEvaluator => {
+      const kernel = instantiateBasinKernel(source);
+      return async (starts) => {
+        const out = new Int32Array(starts.length / 2);
+        kernel(starts, out);
+        return out;
+      };
+    };
+    const elsewhere = await analyzeAsync(model, label, undefined, undefined, lastFirstElsewhere);
+    const direct = analyze(model);
+    expect(direct.conditions.studies.length).toBeGreaterThan(0);
+    expect(direct.conditions.maps.length).toBe(1);
+    expect(JSON.stringify(elsewhere)).toBe(JSON.stringify(direct));
+  });
 });

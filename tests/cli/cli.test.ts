@@ -221,6 +221,36 @@ describe("keel options and input encodings", () => {
     expect(listFiles(run.cwd)).toEqual(["o/results.json", "spec.json"]);
   });
 
+  it("keel --profile --jobs 1 analyze MAP-SPEC prints each stage's and task's time, and the same results.json as --jobs 2 without it", () => {
+    const map = readFileSync(
+      join(PROJECT_ROOT, "tests/fixtures/specs/competition-map-a4409dc54a.json"),
+      "utf8",
+    );
+    const dir = makeWorkDir();
+    const profiled = runKeel(["--quiet", "--profile", "--jobs", "1", "analyze", "spec.json", "--out", "p"], {
+      cwd: dir,
+      files: { "spec.json": map },
+    });
+    expect(profiled.status, profiled.stderr).toBe(0);
+    const seconds = (name: string) => {
+      const m = new RegExp(`^  ${name} +(\\d+\\.\\d\\d) s`, "m").exec(profiled.stderr);
+      expect(m, `no line for ${name} in\n${profiled.stderr}`).not.toBeNull();
+      return Number(m![1]);
+    };
+    const stages = ["equilibria", "geometry", "cycles", "trajectories", "thresholds", "claims", "basins"];
+    const staged = stages.map(seconds).reduce((a, b) => a + b, 0);
+    // each stage is a share of the run, not more (rounding to 0.01 s each aside)
+    expect(staged).toBeLessThanOrEqual(seconds("total") + 0.01 * stages.length);
+    for (const task of ["study of a12", "study of a21", "map of a12 and a21"])
+      expect(seconds(task)).toBeGreaterThan(0);
+    const plain = runKeel(["--quiet", "--jobs", "2", "analyze", "spec.json", "--out", "q"], { cwd: dir });
+    expect(plain.status, plain.stderr).toBe(0);
+    expect(plain.stderr).toBe("");
+    expect(readFileSync(join(dir, "q/results.json"), "utf8")).toBe(
+      readFileSync(join(dir, "p/results.json"), "utf8"),
+    );
+  });
+
   it("keel check accepts a spec saved with a byte-order mark, with the same sha256", () => {
     // RFC 8259 section 8.1: a parser may ignore a leading byte-order mark; some editors write one
     const dir = makeWorkDir();

@@ -25,30 +25,44 @@ export interface OutcomeMapResult {
   curves: { kind: string; origin: { parameter: string; value: number }; points: [number, number][] }[];
 }
 
-function outcomeGrid(
+/** The ranges of a map's two parameters, in pair order. */
+export function mapRanges(model: Model, pair: [string, string]): [[number, number], [number, number]] {
+  const [a, b] = pair.map((name) => model.spec.parameters.find((p) => p.name === name)!.range!);
+  return [a, b];
+}
+
+/** The outcomes (attractors only) at the cell centres of row `b` of the map, by increasing first parameter. */
+export function outcomeRow(
   model: Model,
   pair: [string, string],
   ranges: [[number, number], [number, number]],
-  n: number,
-) {
+  b: number,
+  n = MAP_RESOLUTION,
+): OutcomeResult[] {
   const [i, j] = pair.map((name) => model.parameterNames.indexOf(name));
+  const row: OutcomeResult[] = [];
+  for (let a = 0; a < n; a++) {
+    const p = Float64Array.from(model.parameterValues);
+    p[i] = ranges[0][0] + ((ranges[0][1] - ranges[0][0]) * (a + 0.5)) / n;
+    p[j] = ranges[1][0] + ((ranges[1][1] - ranges[1][0]) * (b + 0.5)) / n;
+    row.push(classifyOutcome(withParameters(model, p), false));
+  }
+  return row;
+}
+
+/** The legend (outcomes in the order first met, row by row) and the cells indexing into it. */
+function assembleOutcomeGrid(rows: OutcomeResult[][]): { legend: OutcomeResult[]; cells: number[] } {
   const legend: OutcomeResult[] = [];
   const keys: string[] = [];
   const cells: number[] = [];
-  for (let b = 0; b < n; b++) {
-    for (let a = 0; a < n; a++) {
-      const p = Float64Array.from(model.parameterValues);
-      p[i] = ranges[0][0] + ((ranges[0][1] - ranges[0][0]) * (a + 0.5)) / n;
-      p[j] = ranges[1][0] + ((ranges[1][1] - ranges[1][0]) * (b + 0.5)) / n;
-      const outcome = classifyOutcome(withParameters(model, p), false);
-      let k = keys.indexOf(outcomeKey(outcome));
-      if (k < 0) {
-        k = legend.length;
-        keys.push(outcomeKey(outcome));
-        legend.push(outcome);
-      }
-      cells.push(k);
+  for (const outcome of rows.flat()) {
+    let k = keys.indexOf(outcomeKey(outcome));
+    if (k < 0) {
+      k = legend.length;
+      keys.push(outcomeKey(outcome));
+      legend.push(outcome);
     }
+    cells.push(k);
   }
   return { legend, cells };
 }
@@ -57,11 +71,13 @@ export function buildOutcomeMap(
   model: Model,
   pair: [string, string],
   studies: ParameterStudyResult[],
+  rows: OutcomeResult[][] = Array.from({ length: MAP_RESOLUTION }, (_, b) =>
+    outcomeRow(model, pair, mapRanges(model, pair), b),
+  ),
 ): OutcomeMapResult {
   const idx = pair.map((n) => model.parameterNames.indexOf(n)) as [number, number];
-  const spec = model.spec.parameters;
-  const ranges = [spec[idx[0]].range!, spec[idx[1]].range!] as [[number, number], [number, number]];
-  const { legend, cells } = outcomeGrid(model, pair, ranges, MAP_RESOLUTION);
+  const ranges = mapRanges(model, pair);
+  const { legend, cells } = assembleOutcomeGrid(rows);
   const curves: OutcomeMapResult["curves"] = [];
   for (const [which, study] of [
     [0, studies.find((s) => s.parameter === pair[0])],

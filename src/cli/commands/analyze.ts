@@ -1,17 +1,20 @@
 import { join } from "node:path";
 import { runAnalysis } from "./run.js";
 import { serializeResults } from "../../report/archive/serialize.js";
-import { inputError, makeProgress, readSpecFile, writeFileAtomic } from "../io.js";
+import { inputError, makeProgress, readSpecFile, writeFileAtomic, type CommonOptions } from "../io.js";
 
-export interface AnalyzeOptions {
+export interface AnalyzeOptions extends CommonOptions {
   out?: string;
-  quiet: boolean;
-  jobs?: number;
 }
 
 /** `keel analyze SPEC [--out DIR]`: write DIR/results.json atomically. Returns the path written. */
 export async function runAnalyze(file: string, options: AnalyzeOptions): Promise<string> {
-  const output = await runAnalysis(readSpecFile(file), options.jobs, makeProgress(options.quiet));
+  const output = await runAnalysis(
+    readSpecFile(file),
+    options.jobs,
+    makeProgress(options.quiet, options.clock),
+    options.clock,
+  );
   if (!output.ok) throw inputError(output.issues, file);
   const dir = options.out ?? join("out", output.value.spec.id);
   const path = join(dir, "results.json");

@@ -12,15 +12,21 @@ import { embedArchive, manifestText, sha256, type Manifest } from "../../report/
 import { existsSync, readFileSync } from "node:fs";
 import { dirname } from "node:path";
 import { fileURLToPath } from "node:url";
-import { CliExit, EXIT, inputError, makeProgress, readSpecFile, writeFileAtomic } from "../io.js";
+import {
+  CliExit,
+  EXIT,
+  inputError,
+  makeProgress,
+  readSpecFile,
+  writeFileAtomic,
+  type CommonOptions,
+} from "../io.js";
 
-export interface BuildOptions {
+export interface BuildOptions extends CommonOptions {
   out?: string;
-  quiet: boolean;
   paper: "a4" | "letter";
   /** true: PDF required; false: skipped; undefined: written when Chromium is available. */
   pdf?: boolean;
-  jobs?: number;
 }
 
 const REPORTED_LIBRARIES = [
@@ -165,15 +171,15 @@ function chromiumFor(options: BuildOptions): string | null {
 /** `keel build SPEC`: results.json, figures, dossier.html and (when possible) dossier.pdf. */
 export async function runBuild(file: string, options: BuildOptions): Promise<string[]> {
   const { epoch, reproducible } = buildEpoch(process.env);
-  const progress = makeProgress(options.quiet);
+  const progress = makeProgress(options.quiet, options.clock);
   const chromium = chromiumFor(options);
   const started = performance.now();
   const specText = readSpecFile(file);
-  const output = await runAnalysis(specText, options.jobs, progress);
+  const output = await runAnalysis(specText, options.jobs, progress, options.clock);
   if (!output.ok) throw inputError(output.issues, file);
   const { spec, results } = output.value;
   const runSeconds = reproducible ? null : (performance.now() - started) / 1000;
-  progress?.("dossier", 0, chromium ? 2 : 1);
+  progress?.("render", 0, 1);
   const dossier = await buildDossier(spec, results, {
     paper: options.paper,
     dateEpoch: epoch,
@@ -185,7 +191,8 @@ export async function runBuild(file: string, options: BuildOptions): Promise<str
   const manifest = buildManifest(spec, results, files, options.paper, Boolean(chromium));
   const notes: string[] = [];
   if (chromium) {
-    progress?.("dossier", 1, 2);
+    progress?.("render", 1, 1);
+    progress?.("pdf", 0, 1);
     await addPdf(chromium, spec, specText, files, manifest, { paper: options.paper, epoch, notes });
   } else if (options.pdf !== false) {
     notes.push(
@@ -193,7 +200,8 @@ export async function runBuild(file: string, options: BuildOptions): Promise<str
     );
   }
   files.set("manifest.json", manifestText(manifest));
-  progress?.("dossier", 2, 2);
+  progress?.(chromium ? "pdf" : "render", 1, 1);
+  options.clock?.enter("write files");
 
   // everything is computed; only now does anything reach the disk
   const dir = options.out ?? join("out", spec.id);

@@ -1,5 +1,5 @@
 import { prepareModel } from "../../pipeline.js";
-import { CliExit, EXIT, inputError, makeProgress, readSpecFile } from "../io.js";
+import { CliExit, EXIT, inputError, makeProgress, readSpecFile, type CommonOptions } from "../io.js";
 import { runAnalysis } from "./run.js";
 import { claimEvidenceWords, claimReferenceWords, stateTerms } from "../../report/words/index.js";
 
@@ -34,7 +34,7 @@ export function runCheck(file: string): string {
 /** `keel check --claims SPEC`: run the analysis and print each claim's verdict; exit 3 when any is contradicted. */
 export async function runCheckClaims(
   file: string,
-  options: { quiet: boolean; jobs?: number },
+  options: CommonOptions,
 ): Promise<{ text: string; code: number }> {
   const text = readSpecFile(file);
   // refuse a spec without claims before the analysis runs, not after
@@ -42,7 +42,12 @@ export async function runCheckClaims(
   if (!prepared.ok) throw inputError(prepared.issues, file);
   if (prepared.value.spec.claims.length === 0)
     throw new CliExit(EXIT.input, `error: ${file} states no claims (add a "claims" list to the spec)`);
-  const output = await runAnalysis(text, options.jobs, makeProgress(options.quiet));
+  const output = await runAnalysis(
+    text,
+    options.jobs,
+    makeProgress(options.quiet, options.clock),
+    options.clock,
+  );
   if (!output.ok) throw inputError(output.issues, file);
   const claims = output.value.results.claims;
   const states = stateTerms(prepared.value.spec.states);

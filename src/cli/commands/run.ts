@@ -1,23 +1,54 @@
 import { availableParallelism } from "node:os";
-import { runPipeline, runPipelineAsync, type PipelineOutput } from "../../pipeline.js";
+import { runPipelineAsync, type PipelineOutput } from "../../pipeline.js";
 import type { Parsed } from "../../diagnostics/issue.js";
 import type { ProgressReporter } from "../../analysis/analyze.js";
-import { createBasinPool } from "../pool.js";
+import { instantiateBasinKernel } from "../../analysis/basins/kernel.js";
+import type { BatchEvaluator } from "../../analysis/basins/refine.js";
+import { runParameterTask, type ParameterTaskRunner } from "../../analysis/parameters/tasks.js";
+import { createAnalysisPool } from "../pool.js";
+import { taskName, type StageClock } from "../profile.js";
 
-/** Runs the pipeline, fanning the basin map out to `jobs` worker threads when jobs > 1. */
+/** The basin map's batches, labelled in this thread. */
+function labelHere(source: string): BatchEvaluator {
+  const kernel = instantiateBasinKernel(source);
+  return async (starts) => {
+    const out = new Int32Array(starts.length / 2);
+    kernel(starts, out);
+    return out;
+  };
+}
+
+/** The parameter tasks in this thread, in order, each timed for --profile. */
+function tasksHere(progress?: ProgressReporter, clock?: StageClock): ParameterTaskRunner {
+  return async (model, tasks) => {
+    progress?.("thresholds", 0, tasks.length);
+    return tasks.map((task, k) => {
+      const started = performance.now();
+      const answer = runParameterTask(model, task);
+      clock?.task(taskName(task), performance.now() - started);
+      progress?.("thresholds", k + 1, tasks.length);
+      return answer;
+    });
+  };
+}
+
+/**
+ * Runs the pipeline, fanning the parameter work and the basin map out to `jobs` worker threads
+ * when jobs > 1; with one job, both run in this thread. Either way the same generator drives
+ * the analysis, so the results are the same.
+ */
 export async function runAnalysis(
   specText: string,
   jobs: number | undefined,
   progress?: ProgressReporter,
+  clock?: StageClock,
 ): Promise<Parsed<PipelineOutput>> {
   const workers = jobs ?? availableParallelism();
-  if (workers <= 1) return runPipeline(specText, undefined, progress);
-  const pool = createBasinPool(
-    workers,
-    progress ? (done, total) => progress("basin cells", done, total) : undefined,
-  );
+  if (workers <= 1)
+    return runPipelineAsync(specText, labelHere, undefined, progress, tasksHere(progress, clock));
+  const pool = createAnalysisPool(workers, progress, (task, ms) => clock?.task(taskName(task), ms));
   try {
-    return await runPipelineAsync(specText, pool.evaluator, undefined, progress);
+    return await runPipelineAsync(specText, pool.evaluator, undefined, progress, pool.parameters);
   } finally {
     await pool.close();
   }

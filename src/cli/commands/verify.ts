@@ -10,7 +10,7 @@ import {
 import { compareResults, VERIFY_ABS_TOL, VERIFY_REL_TOL } from "../../report/archive/compare.js";
 import { serializeResults } from "../../report/archive/serialize.js";
 import { hashSpec } from "../../spec/hash.js";
-import { CliExit, EXIT, makeProgress } from "../io.js";
+import { CliExit, EXIT, makeProgress, type CommonOptions } from "../io.js";
 import { runAnalysis } from "./run.js";
 
 export interface VerifyReport {
@@ -46,10 +46,7 @@ function parseJson(text: string, what: string): unknown {
 const readIfPresent = (path: string) => (existsSync(path) ? readFileSync(path, "utf8") : null);
 
 /** `keel verify DIR|PDF`: every hash, every embedded copy, then a re-run compared with the archived results. */
-export async function runVerify(
-  target: string,
-  options: { quiet: boolean; jobs?: number },
-): Promise<VerifyReport> {
+export async function runVerify(target: string, options: CommonOptions): Promise<VerifyReport> {
   if (!existsSync(target)) throw new CliExit(EXIT.input, `error: ${target} does not exist`);
   const found: Findings = { lines: [], problems: [] };
   const archived = statSync(target).isDirectory()
@@ -164,12 +161,17 @@ async function checkPdf(pdfPath: string, found: Findings): Promise<ArchivedRun> 
 async function checkRerun(
   specText: string,
   resultsText: string,
-  options: { quiet: boolean; jobs?: number },
+  options: CommonOptions,
   found: Findings,
 ): Promise<void> {
   const { lines, problems } = found;
   const archived = parseJson(resultsText, "results.json");
-  const output = await runAnalysis(specText, options.jobs, makeProgress(options.quiet));
+  const output = await runAnalysis(
+    specText,
+    options.jobs,
+    makeProgress(options.quiet, options.clock),
+    options.clock,
+  );
   if (!output.ok) {
     problems.push("the archived spec no longer validates: " + output.issues.map((i) => i.message).join("; "));
     return;

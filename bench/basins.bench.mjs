@@ -8,26 +8,31 @@
  */
 import { spawn } from "node:child_process";
 import { readFileSync } from "node:fs";
-import { COMPETITION_SPEC, specPath } from "./common.mjs";
-import { analyze, prepareModel } from "../dist/index.js";
-import { planBasins } from "../dist/analysis/basins/index.js";
+import {
+  COMPETITION_SPEC,
+  gridStarts,
+  median,
+  planFor,
+  prepare,
+  seconds,
+  specPath,
+  timeOnce,
+} from "./common.mjs";
+import { analyze } from "../dist/index.js";
+import { instantiateBasinKernel } from "../dist/analysis/basins/kernel.js";
 import {
   BASIN_ABSOLUTE_TOL_OF_WIDTH,
-  BASIN_MAX_STEP_OF_HORIZON,
+  BASIN_MAX_STEPS,
+  BASIN_MAX_STEPS_OUTSIDE,
   BASIN_RELATIVE_TOL,
-  instantiateBasinKernel,
-} from "../dist/analysis/basins/kernel.js";
-import { labelName } from "../dist/analysis/basins/labels.js";
-import {
   BLOWUP_EFOLDING_FRACTION,
   BLOWUP_WINDOWS,
+  MAX_STEP_OF_HORIZON as BASIN_MAX_STEP_OF_HORIZON,
   WINDOW_EXIT_SLACK,
-  buildFlowContext,
-  followTrajectory,
-} from "../dist/analysis/flow/follow.js";
+} from "../dist/analysis/constants.js";
+import { labelName } from "../dist/analysis/basins/labels.js";
+import { buildFlowContext, followTrajectory } from "../dist/analysis/flow/follow.js";
 import { tolerancesFor } from "../dist/analysis/numeric/integrate.js";
-import { flowTimeScale } from "../dist/analysis/flow/trajectories.js";
-import { windowOf } from "../dist/analysis/numeric/window.js";
 import { createAnalysisPool } from "../dist/cli/pool.js";
 
 const TARGET_KERNEL_SPEEDUP = 1.2;
@@ -45,13 +50,6 @@ const PARALLEL_GRID = 400;
 const WORKERS = 2;
 /** Iterations of the busy processes' first loop; then scaled so one busy process runs as long as the 1-worker pool. */
 const BUSY_FIRST_ITERATIONS = 1e8;
-/**
- * The kernel's settings that planBasins does not expose, restated for the reference (planBasins:
- * initial step 1e-3 of the shorter of horizon and time scale, 200 000 steps, 2 000 steps outside).
- * A drift would show as label disagreements below.
- */
-const MAX_STEPS = 200_000;
-const MAX_STEPS_OUTSIDE = 2_000;
 const LABEL_LEFT_WINDOW = -1,
   LABEL_BLOW_UP = -2,
   LABEL_UNDECIDED = -3,
@@ -227,7 +225,7 @@ function makeStopRules(plan) {
           ? LABEL_BLOW_UP
           : LABEL_LEFT_WINDOW;
       if (off > WINDOW_EXIT_SLACK || outside > 0)
-        return ++outside > MAX_STEPS_OUTSIDE ? LABEL_LEFT_WINDOW : CONTINUE;
+        return ++outside > BASIN_MAX_STEPS_OUTSIDE ? LABEL_LEFT_WINDOW : CONTINUE;
       for (const s of sinks) {
         const z0 = (y[0] - s.center[0]) / width[0],
           z1 = (y[1] - s.center[1]) / width[1];
@@ -260,62 +258,11 @@ function referenceLabeller(plan, rhs, settings) {
         settings.horizon,
         Math.min(settings.initialStep, maxStep),
         maxStep,
-        MAX_STEPS,
+        BASIN_MAX_STEPS,
         rules,
       );
     }
   };
-}
-
-// ---------------------------------------------------------------- set-up
-
-function prepare(name, specText) {
-  const prepared = prepareModel(specText);
-  if (!prepared.ok) throw new Error(`${name}: ${JSON.stringify(prepared.issues)}`);
-  return prepared.value.model;
-}
-
-/** The model's basin plan, exactly as analyze() makes it (the plan does not depend on the map's resolution). */
-function planFor(name) {
-  const spec = JSON.parse(readFileSync(specPath(name), "utf8"));
-  spec.analysis = { basins: { resolution: 64, coarse: 64 } };
-  const model = prepare(name, JSON.stringify(spec));
-  const results = analyze(model);
-  const box = windowOf(model);
-  const horizon = results.settings.basins.horizon;
-  const timeScale = flowTimeScale(results.equilibria);
-  const plan = planBasins(
-    model,
-    results.equilibria,
-    results.cycles,
-    box,
-    horizon,
-    timeScale,
-    results.basins,
-    [],
-  );
-  if (plan.targets.slowSinks.length || plan.targets.cycles.length)
-    throw new Error(`${name}: the reference implements capture ellipses only`);
-  return { model, results, plan, settings: { horizon, initialStep: Math.min(horizon, timeScale) * 1e-3 } };
-}
-
-function gridStarts(box, n) {
-  const starts = new Float64Array(2 * n * n);
-  for (let j = 0; j < n; j++)
-    for (let i = 0; i < n; i++) {
-      starts[2 * (j * n + i)] = box.lo[0] + ((i + 0.5) / n) * box.width[0];
-      starts[2 * (j * n + i) + 1] = box.lo[1] + ((j + 0.5) / n) * box.width[1];
-    }
-  return starts;
-}
-
-const median = (values) => [...values].sort((a, b) => a - b)[(values.length - 1) >> 1];
-const seconds = (start) => Number(process.hrtime.bigint() - start) / 1e9;
-
-function timeOnce(fn) {
-  const start = process.hrtime.bigint();
-  fn();
-  return seconds(start);
 }
 
 // ---------------------------------------------------------------- a. one thread

@@ -334,8 +334,8 @@ export const SHOOT_MAX_STEP_OF_PERIOD = 1 / 16;
  */
 export const SHOOT_SAMPLE_MAX_STEP_OF_PERIOD = 1 / 4;
 export const SHOOT_MAX_STEPS = 100_000;
-/** ... and given up when the orbit strays more than this many window widths outside the window. */
-export const SHOOT_ESCAPE_WINDOWS = 1;
+/** The cycle capture probes the section ray this many window widths past the window (inside the feasible region). */
+export const CAPTURE_PROBE_WINDOWS = 1;
 /** Halvings locating the section crossing on the interpolant before the final secant step. */
 export const SECTION_BISECTION_STEPS = 80;
 /**

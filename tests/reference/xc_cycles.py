@@ -234,6 +234,9 @@ def _closed(judge, sec, period):
         r = sec.ret(SLOPE_STEP, period)
         if r is None:
             return None
+        # returns all equal because the trajectory sits on an equilibrium are no orbit
+        if max((e[1] - e[0]) / w for e, w in zip(r[2], judge.w)) < MIN_EXTENT:
+            return None
         slope = r[0] / SLOPE_STEP
         stability = "stable" if slope < 1 - NEUTRAL else "unstable" if slope > 1 + NEUTRAL else "weak"
         return {"kind": "cycle", "stability": stability, "period": r[1]}

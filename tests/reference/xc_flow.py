@@ -21,7 +21,8 @@ A fate, from the recorded steps:
                quadratic Lyapunov function falling steadily over the last quarter of the steps; within NEAR_SADDLE of a saddle with the
                unstable component below SADDLE_UNSTABLE of the distance (a start on its stable
                manifold); within NEAR_SLOW of a non-hyperbolic or borderline equilibrium with the
-               distance falling at every step of the last quarter (an algebraic approach); or
+               distance falling at every step of the last quarter (an algebraic approach) or already
+               within AT_EQUILIBRIUM of it (on it to rounding); or
                section returns closing in geometrically on a stable focus (a slow spiral).
   cycle        section returns converging to a fixed point away from every equilibrium, or all
                equal to integration accuracy (a closed orbit); see xc_cycles.py.
@@ -55,6 +56,7 @@ NEAR_CONTRACTING = 0.05  # within this (scaled) a steady fall of the Lyapunov fu
 NEAR_SADDLE = 1e-3
 SADDLE_UNSTABLE = 1e-6
 NEAR_SLOW = 1e-2
+AT_EQUILIBRIUM = 1e-12  # scaled: an end this near an equilibrium sits on it to rounding (no distance left to fall)
 
 
 class Path:
@@ -305,7 +307,7 @@ class Judge:
             if e["type"] == "saddle" and d < NEAR_SADDLE:
                 if d < 1e-12 or _unstable_component(e, z, self.lo, self.w) < SADDLE_UNSTABLE:
                     return {"kind": "equilibrium", "index": i, "point": e["point"], "approach": "stable-manifold"}
-            if (e["stable"] is None or e["borderline"]) and d < NEAR_SLOW and self._closing_in(path, e["point"]):
+            if (e["stable"] is None or e["borderline"]) and d < NEAR_SLOW and (d < AT_EQUILIBRIUM or self._closing_in(path, e["point"])):
                 return {"kind": "equilibrium", "index": i, "point": e["point"], "approach": "algebraic"}
         cyc = xc_cycles.from_path(self, path)
         if cyc is not None:

@@ -7,7 +7,7 @@ import {
   CYCLE_MIN_EXTENT,
   FAMILY_EDGE_BISECTIONS,
   SHOOT_ACCEPT_TOL,
-  SHOOT_ESCAPE_WINDOWS,
+  CAPTURE_PROBE_WINDOWS,
   WINDOW_EXIT_SLACK,
 } from "../constants.js";
 
@@ -94,7 +94,7 @@ export function findCycleCapture(
   };
   // the ray runs to the feasible region's edge, or as far as a return may stray past the window
   const rEdge =
-    (Math.min(region.hi[0], box.hi[0] + SHOOT_ESCAPE_WINDOWS * box.width[0]) - center[0]) / box.width[0];
+    (Math.min(region.hi[0], box.hi[0] + CAPTURE_PROBE_WINDOWS * box.width[0]) - center[0]) / box.width[0];
   const bisections = kind === "family" ? FAMILY_EDGE_BISECTIONS : 0;
   const lo = farthestPassing(rStar, probeRadii(rStar, -1, rEdge), cycle.period, pass, bisections);
   const hi = farthestPassing(rStar, probeRadii(rStar, 1, rEdge), cycle.period, pass, bisections);

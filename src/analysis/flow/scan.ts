@@ -1,6 +1,6 @@
 import type { Model } from "../../model/types.js";
 import type { EquilibriumResult } from "../phase/equilibria.js";
-import type { Box } from "../numeric/window.js";
+import { boundsOf, type Box } from "../numeric/window.js";
 import { acceptOrbit, type OrbitSolution } from "./cycles.js";
 import { returnMap, type Section } from "./section.js";
 import {
@@ -16,7 +16,7 @@ import {
  * The cycle search on Poincaré sections, shared by the nominal analysis and the outcome at any
  * other parameter point: around every focus or centre, the return map P of its ray is sampled at
  * radii growing by CYCLE_SCAN_RATIO from CYCLE_MIN_EXTENT to the window's edge (while returns
- * exist), and every sign change of g = P(r) − r is solved for its fixed point. It needs no
+ * exist; beyond it to the feasible region's edge while they still move outward), and every sign change of g = P(r) − r is solved for its fixed point. It needs no
  * trajectory to be followed to a cycle, so it costs the same near a Hopf point, where orbits
  * approach a cycle slowly, as anywhere. Around a centre whose return map is the identity at
  * every sample, one orbit of the family is solved. Where returns stop after an outward one, the
@@ -85,11 +85,17 @@ function sampleBeforeEdge(section: Section, last: Sample, rFail: number): Sample
   return null;
 }
 
-/** The samples of g outward from CYCLE_MIN_EXTENT, until a return fails or the window's edge. */
-function sampleReturns(section: Section, rEdge: number, period0: number): Sample[] {
+/**
+ * The samples of g outward from CYCLE_MIN_EXTENT, until a return fails or the window's edge
+ * (rEdge); past it, on to the feasible region's edge (rLimit) while returns still move outward:
+ * the orbits there tend to something beyond the window that trajectories reach all the same.
+ */
+function sampleReturns(section: Section, rEdge: number, rLimit: number, period0: number): Sample[] {
   const samples: Sample[] = [];
   let period = period0;
-  for (let r = CYCLE_MIN_EXTENT * CYCLE_SCAN_RATIO; r < rEdge; r *= CYCLE_SCAN_RATIO) {
+  for (let r = CYCLE_MIN_EXTENT * CYCLE_SCAN_RATIO; r < Math.max(rEdge, rLimit); r *= CYCLE_SCAN_RATIO) {
+    const last = samples[samples.length - 1];
+    if (r >= rEdge && !(last && last.g > SHOOT_RESIDUAL_TOL)) break;
     const ret = returnMap(section, r, period, "sample");
     if (!ret) {
       const last = samples[samples.length - 1];
@@ -112,7 +118,8 @@ export function scanSection(model: Model, box: Box, e: EquilibriumResult): Orbit
   const center: [number, number] = [e.point[model.stateNames[0]], e.point[model.stateNames[1]]];
   const section: Section = { model, box, center, sense: turn as 1 | -1, direction: 1 };
   const rEdge = (box.hi[0] - center[0]) / box.width[0];
-  const samples = sampleReturns(section, rEdge, (2 * Math.PI) / omega);
+  const rLimit = (boundsOf(model).hi[0] - center[0]) / box.width[0];
+  const samples = sampleReturns(section, rEdge, rLimit, (2 * Math.PI) / omega);
   const out: OrbitSolution[] = [];
   // a sample within SHOOT_RESIDUAL_TOL of a fixed point has no sign: the bracket is its neighbours
   const signed = samples.filter((s) => Math.abs(s.g) > SHOOT_RESIDUAL_TOL);

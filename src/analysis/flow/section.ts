@@ -1,19 +1,19 @@
 import type { Model } from "../../model/types.js";
 import type { TrajectoryPath } from "./follow.js";
 import { integrateFlow, tolerancesFor, type StepInfo } from "../numeric/integrate.js";
-import type { Box } from "../numeric/window.js";
+import { boundsOf, type Box } from "../numeric/window.js";
 import { bisectPredicate } from "../numeric/roots.js";
 import {
   MIN_RETURN_FRACTION,
   ORBIT_SAMPLES,
   SECTION_BISECTION_STEPS,
   SHOOT_ABSOLUTE_TOL_OF_WIDTH,
-  SHOOT_ESCAPE_WINDOWS,
   SHOOT_MAX_STEP_OF_PERIOD,
   SHOOT_SAMPLE_MAX_STEP_OF_PERIOD,
   SHOOT_MAX_STEPS,
   SHOOT_PERIODS,
   SHOOT_RELATIVE_TOL,
+  WINDOW_EXIT_SLACK,
 } from "../constants.js";
 
 /**
@@ -57,14 +57,16 @@ function sectionCrossing(
   return x0 > center[0] ? { t: tc, x0 } : null;
 }
 
-/** The orbit has strayed more than SHOOT_ESCAPE_WINDOWS window widths outside the window. */
-function strayed(box: Box, y: ArrayLike<number>): boolean {
-  for (let k = 0; k < box.lo.length; k++) {
-    if (
-      y[k] < box.lo[k] - SHOOT_ESCAPE_WINDOWS * box.width[k] ||
-      y[k] > box.hi[k] + SHOOT_ESCAPE_WINDOWS * box.width[k]
-    )
-      return true;
+/**
+ * The orbit has left the feasible region (the states' min/max, to WINDOW_EXIT_SLACK of the
+ * window's width): trajectories end there, so no cycle they reach lies beyond it. A limit tied
+ * to the window instead would cut through cycles that trajectories do reach, and a cycle grazing
+ * it would be found at one parameter value and lost at the next.
+ */
+function strayed(region: Box, box: Box, y: ArrayLike<number>): boolean {
+  for (let k = 0; k < region.lo.length; k++) {
+    const slack = WINDOW_EXIT_SLACK * box.width[k];
+    if (y[k] < region.lo[k] - slack || y[k] > region.hi[k] + slack) return true;
   }
   return false;
 }
@@ -87,12 +89,13 @@ export type ReturnMode = "sample" | "solve" | "orbit";
 
 /**
  * The first return from radius r, integrated tightly (SHOOT_RELATIVE_TOL) for at most
- * SHOOT_PERIODS guessed periods; null when there is none (the orbit strayed, stalled or never
+ * SHOOT_PERIODS guessed periods; null when there is none (the orbit left the feasible region, stalled or never
  * came back). traceIntegral is NaN and orbit null unless mode is "orbit".
  */
 export function returnMap(section: Section, r: number, guessPeriod: number, mode: ReturnMode): Return | null {
   const keepOrbit = mode === "orbit";
   const { model, box, center, sense, direction } = section;
+  const region = boundsOf(model);
   const start: [number, number] = [center[0] + r * box.width[0], center[1]];
   const jac = new Float64Array(4);
   const y = new Float64Array(2);
@@ -159,7 +162,7 @@ export function returnMap(section: Section, r: number, guessPeriod: number, mode
         };
         return false;
       }
-      return !strayed(box, end);
+      return !strayed(region, box, end);
     },
   });
   return result;

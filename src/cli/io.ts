@@ -1,6 +1,15 @@
 import type { ProgressReporter } from "../analysis/analyze.js";
 import type { StageClock } from "./profile.js";
-import { mkdirSync, readFileSync, renameSync, writeFileSync, rmSync } from "node:fs";
+import {
+  accessSync,
+  constants,
+  mkdirSync,
+  readFileSync,
+  renameSync,
+  statSync,
+  writeFileSync,
+  rmSync,
+} from "node:fs";
 import { dirname, join, basename } from "node:path";
 import { formatIssues } from "../diagnostics/format.js";
 import type { SpecIssue } from "../diagnostics/issue.js";
@@ -50,6 +59,34 @@ const OUTPUT_PATH_REASONS: Record<string, string> = {
 function outputError(path: string, err: unknown): unknown {
   const reason = OUTPUT_PATH_REASONS[(err as NodeJS.ErrnoException).code ?? ""];
   return reason ? new CliExit(EXIT.input, `error: ${messages.outputUnwritable(path, reason)}`) : err;
+}
+
+/**
+ * Refuses, before any analysis runs, an output folder that cannot be written: a file standing
+ * where it or a folder above it should be, or a nearest existing folder the user may not write
+ * to. Nothing is created here; a long run then fails at the end only for reasons no check
+ * beforehand can see (a full disk).
+ */
+export function checkOutputFolder(dir: string): void {
+  const probe = join(dir, "results.json");
+  let existing = dir;
+  for (;;) {
+    try {
+      if (!statSync(existing).isDirectory()) throw outputError(probe, { code: "ENOTDIR" });
+      break;
+    } catch (err) {
+      if (err instanceof CliExit) throw err;
+      if ((err as NodeJS.ErrnoException).code !== "ENOENT") throw outputError(probe, err);
+      const up = dirname(existing);
+      if (up === existing) return;
+      existing = up;
+    }
+  }
+  try {
+    accessSync(existing, constants.W_OK);
+  } catch (err) {
+    throw outputError(probe, err);
+  }
 }
 
 /** Writes a file atomically: a temporary file beside it, then a rename. */

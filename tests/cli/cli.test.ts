@@ -152,6 +152,13 @@ describe("keel check and analyze on a spec file that cannot be read or written",
     );
     expect(readFileSync(join(run.cwd, "taken"), "utf8")).toBe("mine");
     expect(listFiles(run.cwd)).toEqual(["spec.json", "taken"]);
+    // refused before the analysis, also where the file is further up the path
+    const deeper = runKeel(["build", "spec.json", "--no-pdf", "--out", "taken/sub"], { cwd: run.cwd });
+    expectUsageError(
+      deeper,
+      /^error: cannot write taken[/\\]sub[/\\]results\.json: a file stands where a folder is needed$/m,
+    );
+    expect(listFiles(run.cwd)).toEqual(["spec.json", "taken"]);
   });
 });
 
@@ -212,8 +219,14 @@ describe.each(examples)("keel check and analyze on specs/$file", (example) => {
 
 describe("keel options and input encodings", () => {
   it("keel --quiet analyze SPEC --out DIR prints nothing and writes DIR/results.json", () => {
+    // an example made quick (small basin map, no studies): the output, not the analysis, is under test
+    const quick: Record<string, unknown> = {
+      ...examples[0].spec,
+      analysis: { basins: { resolution: 64, coarse: 16 }, parameters: [] },
+    };
+    delete quick.$schema;
     const run = runKeel(["--quiet", "analyze", "spec.json", "--out", "o"], {
-      files: { "spec.json": examples[0].text },
+      files: { "spec.json": JSON.stringify(quick) },
     });
     expect(run.status, run.stderr).toBe(0);
     expect(run.stderr).toBe("");

@@ -1,7 +1,14 @@
 import { join } from "node:path";
 import { runAnalysis } from "./run.js";
 import { serializeResults } from "../../report/archive/serialize.js";
-import { inputError, makeProgress, readSpecFile, writeFileAtomic, type CommonOptions } from "../io.js";
+import {
+  checkOutputFolder,
+  inputError,
+  makeProgress,
+  readSpecFile,
+  writeFileAtomic,
+  type CommonOptions,
+} from "../io.js";
 
 export interface AnalyzeOptions extends CommonOptions {
   out?: string;
@@ -9,8 +16,11 @@ export interface AnalyzeOptions extends CommonOptions {
 
 /** `keel analyze SPEC [--out DIR]`: write DIR/results.json atomically. Returns the path written. */
 export async function runAnalyze(file: string, options: AnalyzeOptions): Promise<string> {
+  const specText = readSpecFile(file);
+  // the default folder out/<id> needs the id; "out" itself is checked now
+  checkOutputFolder(options.out ?? "out");
   const output = await runAnalysis(
-    readSpecFile(file),
+    specText,
     options.jobs,
     makeProgress(options.quiet, options.clock),
     options.clock,

@@ -13,6 +13,7 @@ import { existsSync, readFileSync } from "node:fs";
 import { dirname } from "node:path";
 import { fileURLToPath } from "node:url";
 import {
+  checkOutputFolder,
   CliExit,
   EXIT,
   inputError,
@@ -175,6 +176,7 @@ export async function runBuild(file: string, options: BuildOptions): Promise<str
   const chromium = chromiumFor(options);
   const started = performance.now();
   const specText = readSpecFile(file);
+  checkOutputFolder(options.out ?? "out");
   const output = await runAnalysis(specText, options.jobs, progress, options.clock);
   if (!output.ok) throw inputError(output.issues, file);
   const { spec, results } = output.value;

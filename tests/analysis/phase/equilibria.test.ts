@@ -284,10 +284,17 @@ describe("example specs run end to end", () => {
     expect(files).toEqual(expect.arrayContaining(["grazer-forage.json", "reservoir-competition.json"]));
   });
 
+  // one full run per example, shared by the tests below (the same spec text gives the same results)
+  const runs = new Map<string, ReturnType<typeof runPipeline>>();
+  const pipelineOn = (file: string, text: string) => {
+    if (!runs.has(file)) runs.set(file, runPipeline(text));
+    return runs.get(file)!;
+  };
+
   for (const file of files) {
     // tier-two invariants, common practice: each reported equilibrium is a root inside the window
     it(`runPipeline(${file}) succeeds with no warning and every equilibrium is a root`, () => {
-      const out = runPipeline(readFileSync(join(dir, file), "utf8"));
+      const out = pipelineOn(file, readFileSync(join(dir, file), "utf8"));
       if (!out.ok) throw new Error(out.issues.map((i) => i.message).join("; "));
       const { model, results } = out.value;
       expect(results.diagnostics.filter((d) => d.severity === "warning")).toEqual([]);
@@ -314,7 +321,7 @@ describe("example specs run end to end", () => {
     const text = readFileSync(join(dir, "reservoir-competition.json"), "utf8");
     const raw = JSON.parse(text) as { parameters: { name: string; value: number }[] };
     const q = Object.fromEntries(raw.parameters.map((p) => [p.name, p.value]));
-    const out = runPipeline(text);
+    const out = pipelineOn("reservoir-competition.json", text);
     if (!out.ok) throw new Error("reservoir-competition did not parse");
     const equilibria = out.value.results.equilibria;
     const stable = equilibria.filter((e) => e.stable === true);
@@ -369,7 +376,7 @@ describe("example specs run end to end", () => {
       .map((V) => ({ V, G: grazersAt(V) }))
       .filter((p) => p.G > glo && p.G < ghi);
 
-    const out = runPipeline(text);
+    const out = pipelineOn("grazer-forage.json", text);
     if (!out.ok) throw new Error("grazer-forage did not parse");
     const equilibria = out.value.results.equilibria;
     const found = equilibria.filter((e) => !e.onBoundary);

@@ -1,4 +1,4 @@
-import { Command, CommanderError, InvalidArgumentError } from "commander";
+import { Command, CommanderError, InvalidArgumentError, Option } from "commander";
 import { KEEL_VERSION } from "../version.js";
 import { buildSpecJsonSchema } from "../spec/schema.js";
 import { messages } from "../diagnostics/messages.js";
@@ -149,10 +149,13 @@ function buildProgram(): Command {
       "--profile",
       "print the wall time of every stage on stderr at the end (analyze, build, check --claims, verify)",
     )
-    .option(
-      "-j, --jobs <n>",
-      `worker threads for heavy passes (default: available cores, here ${availableParallelism()})`,
-      parseJobs,
+    .addOption(
+      new Option(
+        "-j, --jobs <n>",
+        `worker threads for heavy passes (default: available cores, here ${availableParallelism()})`,
+      )
+        .env("KEEL_JOBS")
+        .argParser(parseJobs),
     )
     .exitOverride()
     .showHelpAfterError(false);

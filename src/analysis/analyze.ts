@@ -30,8 +30,7 @@ import { findNullclines, type NullclineOptions } from "./phase/nullclines.js";
 import { findRegions, type RegionOptions } from "./phase/regions.js";
 import { findInvasionConditions } from "./parameters/invasion.js";
 import {
-  assembleParameterWork,
-  planParameterTasks,
+  runParameterWork,
   runParameterTask,
   type ParameterTask,
   type ParameterTaskResult,
@@ -224,12 +223,10 @@ function* analyzeCore(
   const { box, registry, scenarios, separatrices, trajectories, portraitHorizon, timeScale, singularPoints } =
     flows;
 
-  // 6. deciding conditions: symbolic invasion rates, then thresholds by continuation, outcome
-  // intervals and maps, as tasks the driver runs
+  // 6. deciding conditions: symbolic invasion rates, then thresholds by continuation and outcome
+  // intervals (one task per study), then the outcome maps level by level, as tasks the driver runs
   const invasion = findInvasionConditions(model, equilibria);
-  const tasks = planParameterTasks(model, invasion);
-  const answers = tasks.length ? yield tasks : [];
-  const { studies, maps } = assembleParameterWork(model, tasks, answers, diagnostics);
+  const { studies, maps } = yield* runParameterWork(model, invasion, diagnostics);
   const flips = findAssumptionFlips(model, studies);
   const assumptions = evaluateAssumptions(model).map((a, k) => ({ ...a, flips: flips[k] }));
 
@@ -281,16 +278,20 @@ function withBasins(core: Omit<Results, "basins">, basins: Results["basins"]): R
   return { ...head, basins, assumptions, diagnostics, settings };
 }
 
+/** The progress stage of a batch of parameter tasks: the studies, or a level of the outcome maps. */
+export const taskStage = (tasks: ParameterTask[]) => (tasks[0]?.kind === "study" ? "thresholds" : "maps");
+
 /** Each task in this thread, in order, with progress by task. */
 function runTasksHere(
   model: Model,
   tasks: ParameterTask[],
   progress?: ProgressReporter,
 ): ParameterTaskResult[] {
-  progress?.("thresholds", 0, tasks.length);
+  const stage = taskStage(tasks);
+  progress?.(stage, 0, tasks.length);
   return tasks.map((task, k) => {
     const answer = runParameterTask(model, task);
-    progress?.("thresholds", k + 1, tasks.length);
+    progress?.(stage, k + 1, tasks.length);
     return answer;
   });
 }

@@ -617,8 +617,19 @@ export const CLAIM_ZERO_SCALE_OF_RANGE = 1;
 export const SYMBOLIC_MATCH_TOL = 1e-6;
 /** ... or, for a symbolic threshold at zero, to this fraction of the range (ZERO_VALUE_TOL). */
 export const SYMBOLIC_MATCH_ZERO_TOL = ZERO_VALUE_TOL;
-/** Outcome-map grid points per parameter axis: enough to show the shape of each outcome region at a few seconds' cost. */
-export const MAP_RESOLUTION = 24;
+/**
+ * Outcome-map cells per parameter axis at the finest level of the refinement: fine enough to show
+ * the shape of each outcome region and where its edge runs.
+ */
+export const MAP_RESOLUTION = 48;
+/**
+ * Cells per axis of the map's first, uniform pass: an outcome region narrower than a coarse cell
+ * that no coarse centre samples and no threshold curve crosses can be missed (a region that a
+ * local bifurcation bounds is refined along its traced curve).
+ */
+export const MAP_COARSE = 6;
+/** Map points per worker task: a few tenths of a second of work, against a millisecond of messaging. */
+export const MAP_POINTS_PER_TASK = 16;
 /** condition-decides: sample points whose condition sides agree to this, relatively, are too close to call and skipped. */
 export const CONDITION_MARGIN_TOL = 1e-3;
 /** Bases of the Halton sequence that samples the parameter ranges, one prime per ranged parameter (reused beyond 16). */

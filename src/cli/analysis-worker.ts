@@ -7,6 +7,7 @@ import {
 import { withParameters } from "../model/parameters.js";
 import type { Model } from "../model/types.js";
 import type { NormalizedSpec } from "../spec/types.js";
+import { workerData } from "node:worker_threads";
 
 /**
  * Worker side of the analysis pool (pool.ts): labels basin batches with a kernel compiled once
@@ -28,22 +29,42 @@ export function labelBatch({ source, starts }: { source: string; starts: Float64
 }
 
 let cachedSpec = "";
-let cachedModel: Model | null = null;
+let cachedModel: Promise<Model> | null = null;
 
-async function modelFor(spec: NormalizedSpec, parameterValues: number[]): Promise<Model> {
+/** The model of `spec`, compiled once per spec (the first caller starts it, later ones wait for it). */
+function compiledFor(spec: NormalizedSpec): Promise<Model> {
   const key = JSON.stringify(spec);
   if (key !== cachedSpec || !cachedModel) {
-    // loaded on the first task: a pool that labels basin batches only never needs the compiler
-    const { compileModel } = await import("../model/compile.js");
-    const compiled = compileModel(spec);
-    // the main thread compiled this very spec before sending it: a failure here is a bug
-    if (!compiled.ok) throw new Error(`worker: the spec ${spec.id} did not compile again`);
-    cachedModel = compiled.value;
     cachedSpec = key;
+    // loaded on first use: a pool that labels basin batches only never needs the compiler
+    cachedModel = import("../model/compile.js").then(({ compileModel }) => {
+      const compiled = compileModel(spec);
+      // the main thread compiles this very spec too: a failure here is a bug
+      if (!compiled.ok) throw new Error(`worker: the spec ${spec.id} did not compile`);
+      return compiled.value;
+    });
   }
-  const same = parameterValues.every((v, k) => Object.is(v, cachedModel!.parameterValues[k]));
-  return same ? cachedModel : withParameters(cachedModel, parameterValues);
+  return cachedModel;
 }
+
+async function modelFor(spec: NormalizedSpec, parameterValues: number[]): Promise<Model> {
+  const model = await compiledFor(spec);
+  const same = parameterValues.every((v, k) => Object.is(v, model.parameterValues[k]));
+  return same ? model : withParameters(model, parameterValues);
+}
+
+/**
+ * Started with the spec's text (pool.ts), the worker compiles its model at once, while the main
+ * thread runs the nominal analysis. A spec that does not parse is left alone: the main thread
+ * reports it, and no task will come.
+ */
+async function warmUp(specText: unknown): Promise<void> {
+  if (typeof specText !== "string") return;
+  const { parseSpecText } = await import("../spec/parse.js");
+  const parsed = parseSpecText(specText);
+  if (parsed.ok) await compiledFor(parsed.value).catch(() => undefined);
+}
+void warmUp((workerData as { specText?: unknown } | null)?.specText);
 
 export async function runTask({
   spec,

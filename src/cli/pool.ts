@@ -1,5 +1,6 @@
 import { Piscina } from "piscina";
 import type { BatchEvaluator } from "../analysis/basins/refine.js";
+import { taskStage } from "../analysis/analyze.js";
 import type {
   ParameterTask,
   ParameterTaskResult,
@@ -17,15 +18,21 @@ export interface AnalysisPool {
   close: () => Promise<void>;
 }
 
-export type PoolProgress = (stage: "basin cells" | "thresholds", done: number, total: number) => void;
+export type PoolProgress = (
+  stage: "basin cells" | "thresholds" | "maps",
+  done: number,
+  total: number,
+) => void;
 
 /**
  * A worker-thread pool for the analysis's heavy passes: the basin map and the parameter work.
  * Answers are put back in start or task order, so results do not depend on the number of
- * workers.
+ * workers. Each worker is handed the spec's text when it starts and compiles the model at once,
+ * while this thread runs the nominal analysis, so the parameter tasks do not wait for it.
  */
 export function createAnalysisPool(
   jobs: number,
+  specText?: string,
   onProgress?: PoolProgress,
   onTask?: (task: ParameterTask, ms: number) => void,
 ): AnalysisPool {
@@ -34,6 +41,7 @@ export function createAnalysisPool(
     minThreads: jobs,
     maxThreads: jobs,
     idleTimeout: 1000,
+    workerData: { specText },
   });
   let done = 0;
   let total = 0;
@@ -62,7 +70,8 @@ export function createAnalysisPool(
     };
   const parameters: ParameterTaskRunner = async (model, tasks) => {
     let finished = 0;
-    onProgress?.("thresholds", 0, tasks.length);
+    const stage = taskStage(tasks);
+    onProgress?.(stage, 0, tasks.length);
     const payload = { spec: model.spec, parameterValues: Array.from(model.parameterValues) };
     return Promise.all(
       tasks.map((task) =>
@@ -70,7 +79,7 @@ export function createAnalysisPool(
           .run({ ...payload, task }, { name: "runTask" })
           .then(({ answer, ms }: { answer: ParameterTaskResult; ms: number }) => {
             onTask?.(task, ms);
-            onProgress?.("thresholds", ++finished, tasks.length);
+            onProgress?.(stage, ++finished, tasks.length);
             return answer;
           }),
       ),

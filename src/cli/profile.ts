@@ -30,7 +30,7 @@ export class StageClock {
     }
   }
 
-  /** A parameter task's time, as measured where it ran; tasks of one name (a map's rows) add up. */
+  /** A parameter task's time, as measured where it ran; tasks of one name (a map's points) add up. */
   task(name: string, ms: number): void {
     const known = this.tasks.find((t) => t.name === name);
     if (known) known.ms += ms;
@@ -71,7 +71,7 @@ export class StageClock {
   }
 }
 
-/** The profile's name for a parameter task: one per study, one per map (its rows add up). */
+/** The profile's name for a parameter task: one per study, one per map (its chunks of points add up). */
 export function taskName(task: ParameterTask): string {
   return task.kind === "study" ? `study of ${task.parameter}` : `map of ${task.pair.join(" and ")}`;
 }

@@ -3,39 +3,27 @@ import type { Diagnostic } from "../../diagnostics/issue.js";
 import type { InvasionConditionResult } from "./invasion.js";
 import type { OutcomeResult } from "./outcomes.js";
 import { studyParameter, type ParameterStudyResult } from "./study.js";
-import { buildOutcomeMap, mapRanges, outcomeRow, type OutcomeMapResult } from "./maps.js";
-import { MAP_RESOLUTION } from "../constants.js";
+import { outcomesAt, refineOutcomeMaps, type MapRequest, type OutcomeMapResult } from "./maps.js";
+import { MAP_POINTS_PER_TASK } from "../constants.js";
 
 /**
  * The parameter work of one analysis, cut into independent tasks of plain data: each parameter's
- * study, and each row of each outcome map. A task names no function and holds no compiled code,
- * so a worker thread can run it on its own compilation of the same spec; the answers are put
- * together in task order, so they do not depend on where or in which order the tasks ran.
+ * study, then each level of each outcome map's refinement in chunks of points. A task names no
+ * function and holds no compiled code, so a worker thread can run it on its own compilation of
+ * the same spec; the answers are put together in task order, so they do not depend on where or
+ * in which order the tasks ran.
  */
 export type ParameterTask =
   | { kind: "study"; parameter: string; invasion: InvasionConditionResult[] }
-  /** map: the pair's index in the spec's analysis.parameterPairs; row: from the lowest value of its second parameter. */
-  | { kind: "map-row"; map: number; pair: [string, string]; row: number };
+  /** map: the pair's index in the spec's analysis.parameterPairs; points: (first, second) values, flat. */
+  | { kind: "map-points"; map: number; pair: [string, string]; points: number[] };
 
 export type ParameterTaskResult =
   | { kind: "study"; study: ParameterStudyResult; diagnostics: Diagnostic[] }
-  | { kind: "map-row"; outcomes: OutcomeResult[] };
+  | { kind: "map-points"; outcomes: OutcomeResult[] };
 
 /** Runs tasks somewhere (in this thread, or on a worker pool) and answers in task order. */
 export type ParameterTaskRunner = (model: Model, tasks: ParameterTask[]) => Promise<ParameterTaskResult[]>;
-
-/** Every study the spec asks for, then every row of every map. */
-export function planParameterTasks(model: Model, invasion: InvasionConditionResult[]): ParameterTask[] {
-  const studies = model.spec.analysis.parameters.map((parameter): ParameterTask => ({
-    kind: "study",
-    parameter,
-    invasion,
-  }));
-  const rows = model.spec.analysis.parameterPairs.flatMap((pair, map) =>
-    Array.from({ length: MAP_RESOLUTION }, (_, row): ParameterTask => ({ kind: "map-row", map, pair, row })),
-  );
-  return [...studies, ...rows];
-}
 
 /** One task, on `model` (the spec's model at its nominal values). Pure and deterministic. */
 export function runParameterTask(model: Model, task: ParameterTask): ParameterTaskResult {
@@ -45,29 +33,73 @@ export function runParameterTask(model: Model, task: ParameterTask): ParameterTa
     const study = studyParameter(model, task.parameter, range, task.invasion, diagnostics);
     return { kind: "study", study, diagnostics };
   }
-  return { kind: "map-row", outcomes: outcomeRow(model, task.pair, mapRanges(model, task.pair), task.row) };
+  return { kind: "map-points", outcomes: outcomesAt(model, task.pair, task.points) };
+}
+
+/** Each request's points cut into tasks of at most MAP_POINTS_PER_TASK points, in request order. */
+function mapTasks(model: Model, requests: MapRequest[]): ParameterTask[] {
+  const pairs = model.spec.analysis.parameterPairs;
+  return requests.flatMap(({ map, points }) => {
+    const tasks: ParameterTask[] = [];
+    for (let k = 0; k < points.length; k += 2 * MAP_POINTS_PER_TASK)
+      tasks.push({
+        kind: "map-points",
+        map,
+        pair: pairs[map],
+        points: Array.from(points.subarray(k, k + 2 * MAP_POINTS_PER_TASK)),
+      });
+    return tasks;
+  });
+}
+
+/** The outcomes of each request, joined again from its tasks' answers. */
+function joinMapAnswers(
+  requests: MapRequest[],
+  tasks: ParameterTask[],
+  answers: ParameterTaskResult[],
+): OutcomeResult[][] {
+  const joined: OutcomeResult[][] = requests.map(() => []);
+  answers.forEach((answer, k) => {
+    const task = tasks[k];
+    if (answer.kind !== "map-points" || task.kind !== "map-points")
+      throw new Error("map task answered out of kind");
+    joined[requests.findIndex((r) => r.map === task.map)].push(...answer.outcomes);
+  });
+  return joined;
 }
 
 /**
- * The studies and maps from the tasks' answers (in task order); each study's diagnostics join
- * `diagnostics` in study order, as if the studies had run one after another here.
+ * The parameter work as a generator of task batches: every study the spec asks for at once, then
+ * the outcome maps level by level (their refinement follows the threshold curves the studies
+ * located). Each study's diagnostics join `diagnostics` in study order, as if the studies had run
+ * one after another here.
  */
-export function assembleParameterWork(
+export function* runParameterWork(
   model: Model,
-  tasks: ParameterTask[],
-  answers: ParameterTaskResult[],
+  invasion: InvasionConditionResult[],
   diagnostics: Diagnostic[],
-): { studies: ParameterStudyResult[]; maps: OutcomeMapResult[] } {
+): Generator<
+  ParameterTask[],
+  { studies: ParameterStudyResult[]; maps: OutcomeMapResult[] },
+  ParameterTaskResult[]
+> {
+  const studyTasks = model.spec.analysis.parameters.map((parameter): ParameterTask => ({
+    kind: "study",
+    parameter,
+    invasion,
+  }));
   const studies: ParameterStudyResult[] = [];
-  const pairs = model.spec.analysis.parameterPairs;
-  const rows: OutcomeResult[][][] = pairs.map(() => []);
-  answers.forEach((answer, k) => {
-    const task = tasks[k];
-    if (answer.kind === "study") {
+  if (studyTasks.length)
+    for (const answer of yield studyTasks) {
+      if (answer.kind !== "study") throw new Error("study task answered out of kind");
       studies.push(answer.study);
       diagnostics.push(...answer.diagnostics);
-    } else if (task.kind === "map-row") rows[task.map][task.row] = answer.outcomes;
-  });
-  const maps = pairs.map((pair, k) => buildOutcomeMap(model, pair, studies, rows[k]));
-  return { studies, maps };
+    }
+  const maps = refineOutcomeMaps(model, studies);
+  let step = maps.next(undefined as unknown as OutcomeResult[][]);
+  while (!step.done) {
+    const tasks = mapTasks(model, step.value);
+    step = maps.next(joinMapAnswers(step.value, tasks, yield tasks));
+  }
+  return { studies, maps: step.value };
 }

@@ -1,7 +1,7 @@
 import { availableParallelism } from "node:os";
 import { runPipelineAsync, type PipelineOutput } from "../../pipeline.js";
 import type { Parsed } from "../../diagnostics/issue.js";
-import type { ProgressReporter } from "../../analysis/analyze.js";
+import { taskStage, type ProgressReporter } from "../../analysis/analyze.js";
 import { instantiateBasinKernel } from "../../analysis/basins/kernel.js";
 import type { BatchEvaluator } from "../../analysis/basins/refine.js";
 import { runParameterTask, type ParameterTaskRunner } from "../../analysis/parameters/tasks.js";
@@ -21,12 +21,13 @@ function labelHere(source: string): BatchEvaluator {
 /** The parameter tasks in this thread, in order, each timed for --profile. */
 function tasksHere(progress?: ProgressReporter, clock?: StageClock): ParameterTaskRunner {
   return async (model, tasks) => {
-    progress?.("thresholds", 0, tasks.length);
+    const stage = taskStage(tasks);
+    progress?.(stage, 0, tasks.length);
     return tasks.map((task, k) => {
       const started = performance.now();
       const answer = runParameterTask(model, task);
       clock?.task(taskName(task), performance.now() - started);
-      progress?.("thresholds", k + 1, tasks.length);
+      progress?.(stage, k + 1, tasks.length);
       return answer;
     });
   };
@@ -46,7 +47,7 @@ export async function runAnalysis(
   const workers = jobs ?? availableParallelism();
   if (workers <= 1)
     return runPipelineAsync(specText, labelHere, undefined, progress, tasksHere(progress, clock));
-  const pool = createAnalysisPool(workers, progress, (task, ms) => clock?.task(taskName(task), ms));
+  const pool = createAnalysisPool(workers, specText, progress, (task, ms) => clock?.task(taskName(task), ms));
   try {
     return await runPipelineAsync(specText, pool.evaluator, undefined, progress, pool.parameters);
   } finally {

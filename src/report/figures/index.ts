@@ -181,7 +181,7 @@ function outcomeMapCaption(results: Results, spec: NormalizedSpec, map: OutcomeM
   );
   return (
     `Outcome across ${p1.name} in ${range(map.ranges[0], p1.unit)} and ${p2.name} in ${range(map.ranges[1], p2.unit)}, the other parameters at their current values: ` +
-    `each of the ${map.nx} × ${map.ny} cells is filled by the outcome (the set of attractors) at its centre, and lettered in the key and in the largest clear part of each region. Outcomes: ${outcomes}. ` +
+    `each of the ${map.nx} × ${map.ny} cells is filled by the outcome (the set of attractors) at its centre, refined from ${map.coarse} × ${map.coarse} along the edges of the regions (${map.evaluations} outcomes evaluated), and lettered in the key and in the largest clear part of each region. Outcomes: ${outcomes}. ` +
     (curves.length
       ? `Lines: the threshold curves continued in the second parameter from the thresholds located one parameter at a time (${curves.join("; ")}), dashed by kind. `
       : "No threshold curve was traced. ") +

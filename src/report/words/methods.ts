@@ -13,6 +13,7 @@ import {
   DEFAULT_CLAIM_NEAR,
   LOCATE_TOL,
   MANIFOLD_OFFSET,
+  MAP_COARSE,
   MAP_RESOLUTION,
   OUTCOME_SAMPLES,
   ROOT_RESIDUAL_TOL,
@@ -147,7 +148,9 @@ function conditionMethods(studied: boolean, mapped: boolean): string[] {
       `A threshold matches a symbolic invasion condition when they agree to ${formatNumber(SYMBOLIC_MATCH_TOL)}, relatively.`,
     ...(mapped
       ? [
-          `Outcome maps: the attractors at the centre of each of ${gridSize(MAP_RESOLUTION)} cells over the two ranges.`,
+          `Outcome maps: the attractors at the centre of each of ${gridSize(MAP_RESOLUTION)} cells over the two ranges, by adaptive refinement from a uniform ${gridSize(MAP_COARSE)} grid: ` +
+            "a cell is split into four, level by level, only where a neighbouring cell has another outcome or a threshold curve passes; elsewhere it keeps the outcome at its centre. " +
+            `An outcome region narrower than 1/${MAP_COARSE} of a range that no threshold curve bounds can be missed.`,
         ]
       : []),
   ];

@@ -4,8 +4,14 @@ import { runPipeline } from "../../../src/pipeline.js";
 
 /** Traced threshold curves against the textbook's lines, relatively: the tracer's Newton stops at 1e-12 scaled steps. */
 const CURVE_REL_TOL = 1e-6;
-/** Cells this far (relatively) from both threshold lines are in a quadrant beyond doubt: a grid cell is 1/24 of a range. */
-const CLEAR_OF_LINE = 0.08;
+/**
+ * Cells whose centre is at least this many cell widths from both threshold lines lie wholly in
+ * one quadrant: the adaptive map must have them right, the cells beside a line included (the
+ * refinement reaches the finest level there).
+ */
+const CLEAR_OF_LINE_CELLS = 1;
+/** The adaptive map evaluates far fewer points than the uniform grid (two straight boundaries: about a quarter, common practice for quadtree refinement). */
+const MAX_EVALUATION_SHARE = 0.4;
 
 // Two-species Lotka–Volterra competition (Murray, Mathematical Biology I, 3rd ed., section 3.5;
 // Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., section 6.4; from memory):
@@ -90,9 +96,11 @@ describe("buildOutcomeMap(competition, a12 × a21)", () => {
         // cells are row-major from the lowest a21, sampled at their centres
         const a12 = A12_RANGE[0] + ((A12_RANGE[1] - A12_RANGE[0]) * (a + 0.5)) / map.nx;
         const a21 = A21_RANGE[0] + ((A21_RANGE[1] - A21_RANGE[0]) * (b + 0.5)) / map.ny;
+        const cellA12 = (A12_RANGE[1] - A12_RANGE[0]) / map.nx,
+          cellA21 = (A21_RANGE[1] - A21_RANGE[0]) / map.ny;
         if (
-          Math.abs(a12 - A12_LINE) / A12_LINE < CLEAR_OF_LINE ||
-          Math.abs(a21 - A21_LINE) / A21_LINE < CLEAR_OF_LINE
+          Math.abs(a12 - A12_LINE) < CLEAR_OF_LINE_CELLS * cellA12 ||
+          Math.abs(a21 - A21_LINE) < CLEAR_OF_LINE_CELLS * cellA21
         )
           continue;
         const want = textbookOutcome(a12, a21);
@@ -106,6 +114,17 @@ describe("buildOutcomeMap(competition, a12 × a21)", () => {
     // every quadrant was checked on many cells, not a handful
     expect(counts.size).toBe(4);
     for (const n of counts.values()) expect(n).toBeGreaterThan(20);
+  });
+
+  it("buildOutcomeMap(competition) refines from the coarse pass only along the two boundaries", () => {
+    console.info(
+      `competition map: ${map.evaluations} outcomes evaluated for ${map.nx} x ${map.ny} cells (share ${(map.evaluations / (map.nx * map.ny)).toFixed(3)}), ${map.uncertainCells} uncertain cells`,
+    );
+    expect(map.evaluations).toBeGreaterThanOrEqual(map.coarse * map.coarse);
+    expect(map.evaluations).toBeLessThan(MAX_EVALUATION_SHARE * map.nx * map.ny);
+    // the uncertain cells are those beside a boundary: two lines across the map, a few cells wide
+    expect(map.uncertainCells).toBeGreaterThan(map.nx + map.ny);
+    expect(map.uncertainCells).toBeLessThan(8 * (map.nx + map.ny));
   });
 
   it("buildOutcomeMap(competition) traces the two transcriticals along the lines a12 = K1/K2 and a21 = K2/K1 across the other range", () => {

@@ -62,7 +62,13 @@ async function warmUp(specText: unknown): Promise<void> {
   if (typeof specText !== "string") return;
   const { parseSpecText } = await import("../spec/parse.js");
   const parsed = parseSpecText(specText);
-  if (parsed.ok) await compiledFor(parsed.value).catch(() => undefined);
+  if (!parsed.ok) return;
+  const model = await compiledFor(parsed.value).catch(() => null);
+  if (!model) return;
+  // one outcome at the nominal values, thrown away: the integrator's and the fate rules' code is
+  // then optimised before the first task, as in the main thread after its nominal analysis
+  const { classifyOutcome } = await import("../analysis/parameters/outcomes.js");
+  classifyOutcome(model, true);
 }
 void warmUp((workerData as { specText?: unknown } | null)?.specText);
 

@@ -34,9 +34,9 @@ function tasksHere(progress?: ProgressReporter, clock?: StageClock): ParameterTa
 }
 
 /**
- * Runs the pipeline, fanning the parameter work and the basin map out to `jobs` worker threads
- * when jobs > 1; with one job, both run in this thread. Either way the same generator drives
- * the analysis, so the results are the same.
+ * Runs the pipeline with `jobs` threads for the parameter work and the basin map: this one and
+ * jobs − 1 workers when jobs > 1; with one job, all in this thread. Either way the same
+ * generator drives the analysis, so the results are the same.
  */
 export async function runAnalysis(
   specText: string,
@@ -47,7 +47,14 @@ export async function runAnalysis(
   const workers = jobs ?? availableParallelism();
   if (workers <= 1)
     return runPipelineAsync(specText, labelHere, undefined, progress, tasksHere(progress, clock));
-  const pool = createAnalysisPool(workers, specText, progress, (task, ms) => clock?.task(taskName(task), ms));
+  // this thread takes tasks too: it is warm from the nominal analysis, and a worker's start-up
+  // (compiling the spec, a cold JIT) is then paid once fewer
+  const pool = createAnalysisPool(workers - 1, {
+    specText,
+    shareThisThread: true,
+    onProgress: progress,
+    onTask: (task, ms) => clock?.task(taskName(task), ms),
+  });
   try {
     return await runPipelineAsync(specText, pool.evaluator, undefined, progress, pool.parameters);
   } finally {

@@ -2,9 +2,12 @@ import type { ProgressReporter } from "../analysis/analyze.js";
 import type { StageClock } from "./profile.js";
 import {
   accessSync,
+  closeSync,
   constants,
+  fstatSync,
+  openSync,
+  readSync,
   mkdirSync,
-  readFileSync,
   renameSync,
   statSync,
   writeFileSync,
@@ -14,6 +17,7 @@ import { dirname, join, basename } from "node:path";
 import { formatIssues } from "../diagnostics/format.js";
 import type { SpecIssue } from "../diagnostics/issue.js";
 import { messages } from "../diagnostics/messages.js";
+import { SPEC_MAX_BYTES } from "../spec/limits.js";
 
 export const EXIT = { ok: 0, internal: 1, input: 2, contradicted: 3 } as const;
 
@@ -27,9 +31,15 @@ export class CliExit extends Error {
   }
 }
 
+/**
+ * The spec file's text: read with a cap (a device such as /dev/zero, or a huge file, is never read
+ * whole), its encoding checked (UTF-8 only, as RFC 8259 §8.1 asks of JSON shared between systems),
+ * with a message that says what is wrong with the bytes.
+ */
 export function readSpecFile(file: string): string {
+  let bytes: Buffer;
   try {
-    return readFileSync(file, "utf8");
+    bytes = readCapped(file, SPEC_MAX_BYTES + 1);
   } catch (err) {
     const code = (err as NodeJS.ErrnoException).code;
     const reason =
@@ -40,6 +50,86 @@ export function readSpecFile(file: string): string {
           : (err as Error).message;
     throw new CliExit(EXIT.input, `error: ${messages.fileUnreadable(file, reason)}`);
   }
+  const refuse = (reason: string) => new CliExit(EXIT.input, `error: ${file}: ${reason}`);
+  if (bytes.length > SPEC_MAX_BYTES) throw refuse(messages.fileTooLarge(SPEC_MAX_BYTES));
+  const encoding = foreignEncoding(bytes);
+  if (encoding) throw refuse(messages.wrongEncoding(encoding));
+  const bad = firstInvalidUtf8(bytes);
+  if (bad >= 0) {
+    let line = 1;
+    for (let k = 0; k < bad; k++) if (bytes[k] === 0x0a) line++;
+    throw refuse(messages.notUtf8(bad, line));
+  }
+  return bytes.toString("utf8");
+}
+
+/** At most `cap` bytes of a file, read in chunks. */
+function readCapped(file: string, cap: number): Buffer {
+  const fd = openSync(file, "r");
+  try {
+    if (fstatSync(fd).isDirectory()) throw Object.assign(new Error("is a folder"), { code: "EISDIR" });
+    const chunks: Buffer[] = [];
+    let total = 0;
+    while (total < cap) {
+      const chunk = Buffer.alloc(Math.min(1 << 16, cap - total));
+      const read = readSync(fd, chunk, 0, chunk.length, null);
+      if (read === 0) break;
+      chunks.push(chunk.subarray(0, read));
+      total += read;
+    }
+    return Buffer.concat(chunks, total);
+  } finally {
+    closeSync(fd);
+  }
+}
+
+/** The encoding a byte-order mark or zero bytes betray (JSON text holds no raw zero byte), or null. */
+function foreignEncoding(bytes: Buffer): string | null {
+  const starts = (...b: number[]) => b.every((v, k) => bytes[k] === v);
+  if (starts(0x00, 0x00, 0xfe, 0xff) || starts(0xff, 0xfe, 0x00, 0x00))
+    return "UTF-32 (it starts with a UTF-32 byte-order mark)";
+  if (starts(0xfe, 0xff) || starts(0xff, 0xfe)) return "UTF-16 (it starts with a UTF-16 byte-order mark)";
+  if (bytes.includes(0x00))
+    return "not text, or UTF-16 or UTF-32 without a byte-order mark (it holds zero bytes)";
+  return null;
+}
+
+/**
+ * The offset of the first byte that is not part of a well-formed UTF-8 sequence (RFC 3629 §4:
+ * no overlong forms, no surrogates, nothing above U+10FFFF), or −1. Node's decoder would replace
+ * such bytes silently, and isUtf8 does not say where the fault is.
+ */
+export function firstInvalidUtf8(b: Buffer): number {
+  for (let i = 0; i < b.length;) {
+    const c = b[i];
+    if (c < 0x80) {
+      i++;
+      continue;
+    }
+    const [n, lo, hi] =
+      c >= 0xc2 && c <= 0xdf
+        ? [1, 0x80, 0xbf]
+        : c === 0xe0
+          ? [2, 0xa0, 0xbf]
+          : c === 0xed
+            ? [2, 0x80, 0x9f]
+            : c >= 0xe1 && c <= 0xef
+              ? [2, 0x80, 0xbf]
+              : c === 0xf0
+                ? [3, 0x90, 0xbf]
+                : c >= 0xf1 && c <= 0xf3
+                  ? [3, 0x80, 0xbf]
+                  : c === 0xf4
+                    ? [3, 0x80, 0x8f]
+                    : [0, 0, 0];
+    if (n === 0) return i;
+    // the second byte has the lead byte's own range; later ones are plain continuation bytes
+    if (i + n >= b.length) return i;
+    if (b[i + 1] < lo || b[i + 1] > hi) return i;
+    for (let k = 2; k <= n; k++) if (b[i + k] === undefined || b[i + k] < 0x80 || b[i + k] > 0xbf) return i;
+    i += n + 1;
+  }
+  return -1;
 }
 
 export function inputError(issues: SpecIssue[], file: string): CliExit {

@@ -12,6 +12,22 @@ export const messages = {
   jsonBadNumber: () => `invalid number (JSON numbers have no leading zeros, '+' sign, or bare '.')`,
   jsonTrailing: () => `unexpected text after the end of the top-level value`,
   fileUnreadable: (file: string, reason: string) => `cannot read ${file}: ${reason}`,
+  // limits on the spec's text (spec/limits.ts) and its encoding (cli/io.ts)
+  fileTooLarge: (limit: number) =>
+    `the file is larger than ${limit} bytes, the most a spec may hold (SPEC_MAX_BYTES)`,
+  textTooLarge: (length: number, limit: number) =>
+    `the spec is ${length} characters long, more than the ${limit} a spec may hold (SPEC_MAX_BYTES)`,
+  stringTooLong: (length: number, limit: number) =>
+    `this string is ${length} characters long; at most ${limit} are accepted (SPEC_MAX_STRING)`,
+  nestingTooDeep: (limit: number) =>
+    `objects and arrays are nested more than ${limit} deep here; a spec needs at most 6 (SPEC_MAX_DEPTH)`,
+  arrayTooLong: (limit: number) => `this array has more than ${limit} entries (SPEC_MAX_ARRAY)`,
+  duplicateKey: (key: string, line1: number, column1: number, line2: number, column2: number) =>
+    `the key '${key}' appears twice in one object (line ${line1}, column ${column1} and line ${line2}, column ${column2}); JSON readers disagree on which one holds, so keep one`,
+  notUtf8: (byte: number, line: number) =>
+    `the file is not valid UTF-8: byte ${byte} (line ${line}) does not begin or continue a character; save the file as UTF-8`,
+  wrongEncoding: (encoding: string) =>
+    `the file is ${encoding}; keel reads UTF-8 only: save the file as UTF-8`,
   fileIsFolder: () => `it is a folder, not a file`,
   outputUnwritable: (path: string, reason: string) => `cannot write ${path}: ${reason}`,
   missingKey: (key: string, expected: string) =>
@@ -19,7 +35,8 @@ export const messages = {
   unknownKey: (key: string, suggestion: string | null) =>
     `unknown key '${key}'${suggestion ? `; did you mean '${suggestion}'?` : ""}`,
   numberOverflows: () => `expected a finite number; this one is beyond double precision (about 1.8e308)`,
-  forbiddenKey: (key: string) => `the key '${key}' is not accepted anywhere in a spec`,
+  forbiddenKey: (key: string) =>
+    `the key '${key}' is not accepted anywhere in a spec (JavaScript reserves it for objects); a state or parameter needs another name`,
   duplicateName: (name: string, first: string) => `the name '${name}' is already used at ${first}`,
   invalidIdentifier: (name: string) =>
     `'${name}' is not a valid name: use a letter followed by letters, digits or '_'`,

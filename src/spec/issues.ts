@@ -7,10 +7,12 @@ type Path = (string | number)[];
 
 /**
  * JSON.parse keeps "__proto__" as an own key, but copying it into a record (as validation does)
- * hits the prototype setter and the key vanishes silently; so it is refused before validation.
- * Iterative, so a deeply nested file cannot overflow the stack.
+ * hits the prototype setter and the key vanishes silently; an own "constructor" or "prototype"
+ * makes the object look like no plain record to the validator, which then gives messages that
+ * miss the point. So they are refused before validation (as state or parameter names they are
+ * reserved too). Iterative, so a deeply nested file cannot overflow the stack.
  */
-const FORBIDDEN_KEYS = ["__proto__"];
+const FORBIDDEN_KEYS = ["__proto__", "constructor", "prototype"];
 
 export function findForbiddenKeys(raw: unknown): SpecIssue[] {
   const issues: SpecIssue[] = [];

@@ -5,6 +5,7 @@ import { validateSpecRules } from "./validate.js";
 import { normalizeSpec } from "./normalize.js";
 import { hashSpec } from "./hash.js";
 import { locateJsonFault } from "./json-locate.js";
+import { findLimitIssues, SPEC_MAX_BYTES } from "./limits.js";
 import { findForbiddenKeys, fromZodIssues } from "./issues.js";
 import type { NormalizedSpec } from "./types.js";
 
@@ -23,6 +24,14 @@ const BYTE_ORDER_MARK = "\uFEFF";
 /** JSON text to a value, with a located message on a syntax error. */
 export function parseJsonText(text: string): Parsed<unknown> {
   const body = text.startsWith(BYTE_ORDER_MARK) ? text.slice(1) : text;
+  if (body.length > SPEC_MAX_BYTES)
+    return {
+      ok: false,
+      issues: [{ code: "limit_size", path: [], message: messages.textTooLarge(body.length, SPEC_MAX_BYTES) }],
+    };
+  // sizes, depth and repeated keys before JSON.parse: later stages never meet a hostile shape
+  const limits = findLimitIssues(body);
+  if (limits.length) return { ok: false, issues: limits };
   try {
     return { ok: true, value: JSON.parse(body) };
   } catch (err) {

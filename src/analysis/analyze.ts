@@ -232,7 +232,13 @@ function* analyzeCore(
 
   // 7. the spec's claims, one by one
   progress?.("claims", 0, 1);
-  const claims = checkClaims({ model, equilibria, scenarios, studies });
+  const claims = checkClaims({
+    model,
+    equilibria,
+    equilibriaCapped: diagnostics.some((d) => d.code === "too-many-equilibria"),
+    scenarios,
+    studies,
+  });
 
   // 8. the basin map's kernel, for the attractors now known
   progress?.("basins", 0, 1);

@@ -1,3 +1,10 @@
+export type ConstantFaultReason = "overflow" | "not-real" | "divide-by-zero";
+const CONSTANT_FAULT_WORDS: Record<ConstantFaultReason, string> = {
+  overflow: "is beyond double precision (about 1.8e308)",
+  "not-real": "is not a real number",
+  "divide-by-zero": "divides by zero",
+};
+
 /** Every user-facing message, as a function, so wording lives in one place. */
 export const messages = {
   jsonSyntax: (detail: string, line: number, column: number) =>
@@ -74,6 +81,16 @@ export const messages = {
   unexpectedCharacter: (ch: string) =>
     `unexpected character ${/^[\x20-\x7e]$/.test(ch) ? `'${ch}'` : `${JSON.stringify(ch)} (U+${ch.codePointAt(0)!.toString(16).toUpperCase().padStart(4, "0")})`}`,
   numberNotFinite: (text: string) => `the number ${text} is too large for double precision`,
+  expressionTooLong: (tokens: number, limit: number) =>
+    `this expression has ${tokens} tokens (numbers, names, operators); at most ${limit} are accepted (EXPRESSION_MAX_TOKENS): the limit is passed here`,
+  expressionTooDeep: (limit: number) =>
+    `parentheses are nested more than ${limit} deep here (EXPRESSION_MAX_NESTING)`,
+  constantTermFault: (term: string, reason: ConstantFaultReason) =>
+    `the term ${term} ${CONSTANT_FAULT_WORDS[reason]} whatever the state, so this rate is nowhere a finite number`,
+  derivativeTermFault: (variable: string, term: string, reason: ConstantFaultReason) =>
+    `the derivative with respect to ${variable} holds the term ${term}, which ${CONSTANT_FAULT_WORDS[reason]}${reason === "overflow" ? ": a coefficient this large cannot be analysed; rescale the model" : reason === "not-real" ? " (a fractional power of a negative number has no real value: write the root of a positive quantity, e.g. -(u^(1/3)) for the real cube root of -u)" : ""}`,
+  nowhereFinite: (points: number, at: string, value: string) =>
+    `this rate is not a finite real number anywhere in the window (checked at ${points} points; at ${at} it is ${value})`,
   unclosedParenthesis: () => `this '(' is never closed: a ')' is missing`,
   unmatchedParenthesis: () => `this ')' has no matching '('`,
   endsEarly: (last: string) => `the expression ends after '${last}': a value is missing`,

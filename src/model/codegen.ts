@@ -41,7 +41,11 @@ export interface CodegenOptions {
 }
 
 export function literal(v: number): string {
-  if (!Number.isFinite(v)) throw new Error(`non-finite literal ${v}`);
+  // a non-finite constant can come only from folding in a derived closed form (0/0 in a root of
+  // an invasion condition, say), which then evaluates to NaN and matches nothing; the model's own
+  // equations and Jacobian are refused with one at compile time (compile.ts)
+  if (Number.isNaN(v)) return "NaN";
+  if (!Number.isFinite(v)) return v > 0 ? "Infinity" : "(-Infinity)";
   if (Object.is(v, -0)) return "(-0)";
   const s = String(v);
   return v < 0 ? `(${s})` : s;

@@ -6,6 +6,7 @@ import { differentiate } from "./derivatives.js";
 import { emitBody, emitExpression, type CodegenOptions } from "./codegen.js";
 import { instantiate, instantiateParametric, instantiateRhs } from "./instantiate.js";
 import { findSingularFactors } from "./factors.js";
+import { findEquationFaults, findJacobianFaults } from "./constant-faults.js";
 import { expressionToTex, expressionToText, nameToTex } from "./tex.js";
 import type { CompiledCondition, CompiledExpression, GeneratedSource, Model } from "./types.js";
 
@@ -93,12 +94,18 @@ export function compileModel(spec: NormalizedSpec): Parsed<Model> {
     text: expressionToText(node, names.user),
     tex: expressionToTex(node, names.user),
   });
-  const equations = trees.map(describe);
-  const jacobianNodes = trees.map((tree) => stateNames.map((_, j) => differentiate(tree, `S${j}`)));
-  const jacobian = jacobianNodes.map((row) => row.map(describe));
-
+  const textOf = (node: MathNode) => expressionToText(node, names.user);
   const parameterValues = Float64Array.from(spec.parameters.map((p) => p.value));
   const bound: CodegenOptions = { parameterValues: Array.from(parameterValues) };
+  const rhs = instantiateRhs(body(trees, bound));
+  issues.push(...findEquationFaults(trees, stateNames, spec.window, rhs, textOf));
+  if (issues.length) return { ok: false, issues };
+  const equations = trees.map(describe);
+  const jacobianNodes = trees.map((tree) => stateNames.map((_, j) => differentiate(tree, `S${j}`)));
+  issues.push(...findJacobianFaults(jacobianNodes, stateNames, textOf));
+  if (issues.length) return { ok: false, issues };
+  const jacobian = jacobianNodes.map((row) => row.map(describe));
+
   const source: GeneratedSource = {
     rhs: body(trees, bound),
     jacobian: body(jacobianNodes.flat(), bound),
@@ -118,7 +125,7 @@ export function compileModel(spec: NormalizedSpec): Parsed<Model> {
       jacobian,
       assumptionConditions: parsedConditions.assumptions.map((c) => compileCondition(describe, c)),
       claimConditions: parsedConditions.claims.map((c) => compileCondition(describe, c)),
-      rhs: instantiateRhs(source.rhs),
+      rhs,
       jacobianAt: instantiateRhs(source.jacobian),
       rhsParametric: instantiateParametric(source.rhsParametric),
       jacobianParametric: instantiateParametric(source.jacobianParametric),

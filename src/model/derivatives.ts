@@ -1,6 +1,5 @@
 import {
   derivative,
-  simplify,
   ConstantNode,
   FunctionNode,
   OperatorNode,
@@ -14,6 +13,7 @@ import {
   type OperatorNodeMap,
   type OperatorNodeOp,
 } from "mathjs";
+import { simplifyInStates } from "./simplify.js";
 
 /**
  * Symbolic partial derivatives by mathjs. mathjs cannot differentiate min and max and gives
@@ -124,12 +124,10 @@ function powRule(base: MathNode, exponent: MathNode, variable: string): MathNode
   ]);
 }
 
-/** Partial derivative of `node` with respect to the internal symbol `variable`, simplified. */
+/**
+ * Partial derivative of `node` with respect to the internal symbol `variable`, simplified in the
+ * states within SIMPLIFY_MAX_NODES (model/simplify.ts); larger, it stays as differentiated.
+ */
 export function differentiate(node: MathNode, variable: string): MathNode {
-  const d = raw(node, variable);
-  try {
-    return simplify(d);
-  } catch {
-    return d; // simplify gives up on some internal functions; the unsimplified form is exact
-  }
+  return simplifyInStates(raw(node, variable)).node;
 }

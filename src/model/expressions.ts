@@ -60,6 +60,36 @@ function fail(
 }
 
 /**
+ * Tokens of one expression: a rate law of ecology or kinetics runs to a few dozen; the parser and
+ * every walker of the tree after it recurse once per operator of a chain, so the size is held far
+ * below what a call stack allows.
+ */
+export const EXPRESSION_MAX_TOKENS = 1000;
+/** Parentheses (and calls) open at once: each costs the parser several nested calls. */
+export const EXPRESSION_MAX_NESTING = 32;
+
+/** An expression too long or too deeply nested to parse safely, with the caret at the token that passes the limit. */
+function checkSize(ctx: CheckContext, tokens: Token[]): ExpressionResult | null {
+  if (tokens.length > EXPRESSION_MAX_TOKENS) {
+    const tok = tokens[EXPRESSION_MAX_TOKENS];
+    return fail(
+      ctx,
+      "limit_expression",
+      messages.expressionTooLong(tokens.length, EXPRESSION_MAX_TOKENS),
+      tok.column,
+      tok.text.length,
+    );
+  }
+  let depth = 0;
+  for (const tok of tokens) {
+    if (tok.kind === "lparen" && ++depth > EXPRESSION_MAX_NESTING)
+      return fail(ctx, "limit_expression", messages.expressionTooDeep(EXPRESSION_MAX_NESTING), tok.column);
+    if (tok.kind === "rparen") depth--;
+  }
+  return null;
+}
+
+/**
  * Faults the expression parser reports without a usable column: unbalanced parentheses and an
  * expression that stops after an operator. Found here, from the tokens, so the caret is exact.
  */
@@ -229,7 +259,8 @@ export function parseExpression(
   const lexed = lexExpression(text, false);
   if (!lexed.ok)
     return fail(ctx, "unexpected_character", messages.unexpectedCharacter(lexed.char), lexed.column);
-  const tokenProblem = checkTokens(ctx, lexed.tokens) ?? checkStructure(ctx, lexed.tokens);
+  const tokenProblem =
+    checkSize(ctx, lexed.tokens) ?? checkTokens(ctx, lexed.tokens) ?? checkStructure(ctx, lexed.tokens);
   if (tokenProblem) return tokenProblem;
   let root: MathNode;
   try {

@@ -14,6 +14,7 @@ import {
   DEFAULT_CLAIM_NEAR,
   HALTON_PRIMES,
   ZERO_VALUE_TOL,
+  MAX_EQUILIBRIA,
 } from "../constants.js";
 
 type ClaimKind = ClaimSpec["kind"];
@@ -36,6 +37,8 @@ export type ClaimEvidence =
   | { kind: "count"; stableOnly: boolean; claimed: number; found: number; equilibria: string[] }
   /** stableOnly counts: the claimed count lies between the stable ones and those plus the undecided ones. */
   | { kind: "count-undecided"; claimed: number; found: number; undecided: number }
+  /** The search kept only its first `cap` equilibria (MAX_EQUILIBRIA): no count at or above it can be told. */
+  | { kind: "count-capped"; claimed: number; cap: number }
   | {
       kind: "none-near";
       near: Point;
@@ -160,6 +163,8 @@ function halton(index: number, base: number): number {
 interface ClaimContext {
   model: Model;
   equilibria: EquilibriumResult[];
+  /** The equilibrium search stopped at MAX_EQUILIBRIA: more may exist. */
+  equilibriaCapped: boolean;
   scenarios: ScenarioResult[];
   studies: ParameterStudyResult[];
 }
@@ -195,6 +200,13 @@ function checkCount(ctx: ClaimContext, claim: ClaimOf<"equilibrium-count">): Ver
       where,
     };
   const counted = stableOnly ? stable : ctx.equilibria;
+  // the list is cut at the cap: a claim the cut could make false is undecided, never contradicted
+  if (ctx.equilibriaCapped && claim.count >= counted.length)
+    return {
+      verdict: "undecided",
+      evidence: { kind: "count-capped", claimed: claim.count, cap: MAX_EQUILIBRIA },
+      where,
+    };
   return {
     verdict: counted.length === claim.count ? "supported" : "contradicted",
     evidence: {

@@ -2,12 +2,13 @@ import {
   ConstantNode,
   derivative,
   isConstantNode,
+  isOperatorNode,
   isSymbolNode,
   rationalize,
-  simplify,
   type MathNode,
 } from "mathjs";
 import type { Model } from "../../model/types.js";
+import { simplifyBounded, withinSimplifyBudget, withOpaqueParts } from "../../model/simplify.js";
 import { differentiate } from "../../model/derivatives.js";
 import { emitExpression, PRELUDE } from "../../model/codegen.js";
 import { expressionToTex, expressionToText } from "../../model/tex.js";
@@ -59,7 +60,7 @@ function substitute(node: MathNode, name: string, by: MathNode): MathNode {
 
 function isZero(node: MathNode): boolean {
   try {
-    const s = simplify(node);
+    const s = simplifyBounded(node).node;
     return isConstantNode(s) && s.value === 0;
   } catch {
     return false;
@@ -84,12 +85,36 @@ interface RationalParts {
   numerator: MathNode;
 }
 
+/**
+ * Whether a power's exponent is a constant beyond the degrees solved here, or not a constant:
+ * rationalize would expand u^1e308 term by term (and exhaust the heap), and nothing above
+ * MAX_POLYNOMIAL_DEGREE has roots in closed form here anyway.
+ */
+function hasHighPower(node: MathNode): boolean {
+  return (
+    node.filter((n) => {
+      if (!isOperatorNode(n) || n.fn !== "pow") return false;
+      const exponent = n.args[1];
+      return !isConstantNode(exponent) || Math.abs(Number(exponent.value)) > MAX_POLYNOMIAL_DEGREE;
+    }).length > 0
+  );
+}
+
 /** Roots in closed form of a numerator that is a polynomial in `variable` of degree ≤ 2 once roots at 0 are factored out; null otherwise. */
 function polynomialRoots(expr: MathNode, variable: string): MathNode[] | null {
-  let numerator: MathNode;
+  let numerator: MathNode | null = null;
   try {
-    const detailed = rationalize(expr, {}, true);
-    numerator = (detailed as typeof detailed & RationalParts).numerator;
+    // rationalize expands products as it goes: every part free of `variable` is held opaque, and
+    // what remains is bounded as simplify is
+    numerator = withOpaqueParts(
+      expr,
+      (name) => name === variable,
+      (tree) => {
+        if (!withinSimplifyBudget(tree) || hasHighPower(tree)) throw new Error("too large to rationalize");
+        const detailed = rationalize(tree, {}, true);
+        return (detailed as typeof detailed & RationalParts).numerator;
+      },
+    );
   } catch {
     return null;
   }
@@ -98,8 +123,10 @@ function polynomialRoots(expr: MathNode, variable: string): MathNode[] | null {
   const coefficients: MathNode[] = [];
   let d = numerator;
   for (let k = 0; k <= MAX_POLYNOMIAL_DEGREE; k++) {
-    coefficients.push(simplify(`(${substitute(d, variable, zero).toString()}) / ${FACTORIALS[k]}`));
-    d = derivative(d, variable);
+    coefficients.push(
+      simplifyBounded(`(${substitute(d, variable, zero).toString()}) / ${FACTORIALS[k]}`).node,
+    );
+    d = simplifyBounded(derivative(d, variable, { simplify: false })).node;
   }
   if (!isZero(d)) return null;
   while (coefficients.length && isZero(coefficients[coefficients.length - 1])) coefficients.pop();
@@ -110,12 +137,12 @@ function polynomialRoots(expr: MathNode, variable: string): MathNode[] | null {
   if (coefficients.length > 3) return null;
   const [c0, c1, c2] = coefficients.map((c) => c.toString());
   if (coefficients.length === 1) return roots.length ? roots : null;
-  if (coefficients.length === 2) return [...roots, simplify(`-(${c0}) / (${c1})`)];
+  if (coefficients.length === 2) return [...roots, simplifyBounded(`-(${c0}) / (${c1})`).node];
   const disc = `(${c1})^2 - 4 * (${c2}) * (${c0})`;
   return [
     ...roots,
-    simplify(`(-(${c1}) + sqrt(${disc})) / (2 * (${c2}))`),
-    simplify(`(-(${c1}) - sqrt(${disc})) / (2 * (${c2}))`),
+    simplifyBounded(`(-(${c1}) + sqrt(${disc})) / (2 * (${c2}))`).node,
+    simplifyBounded(`(-(${c1}) - sqrt(${disc})) / (2 * (${c2}))`).node,
   ];
 }
 
@@ -172,7 +199,7 @@ export function findInvasionConditions(
       }
       let simplified: MathNode;
       try {
-        simplified = simplify(rateNode);
+        simplified = simplifyBounded(rateNode).node;
       } catch {
         simplified = rateNode;
       }
@@ -238,12 +265,14 @@ function linearThresholds(model: Model, rate: MathNode): ParameterThreshold[] {
     if (!linear && !affineIn(rateAt, p, k, (v) => 1 / v)) return;
     let slope: MathNode, threshold: MathNode;
     try {
-      slope = derivative(rate, sym);
+      slope = simplifyBounded(derivative(rate, sym, { simplify: false })).node;
       threshold = linear
-        ? simplify(`-(${substitute(rate, sym, new ConstantNode(0)).toString()}) / (${slope.toString()})`)
-        : simplify(
+        ? simplifyBounded(
+            `-(${substitute(rate, sym, new ConstantNode(0)).toString()}) / (${slope.toString()})`,
+          ).node
+        : simplifyBounded(
             `(${sym})^2 * (${slope.toString()}) / (${rate.toString()} + ${sym} * (${slope.toString()}))`,
-          );
+          ).node;
     } catch {
       return;
     }

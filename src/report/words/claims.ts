@@ -15,13 +15,15 @@ const at = (p: Record<string, number>) =>
 const percent = (fraction: number) => `${fmt(100 * fraction)}%`;
 
 function equilibriumEvidence(
-  e: Extract<ClaimEvidence, { kind: "count" | "count-undecided" | "none-near" | "type" }>,
+  e: Extract<ClaimEvidence, { kind: "count" | "count-undecided" | "count-capped" | "none-near" | "type" }>,
 ): string {
   switch (e.kind) {
     case "count":
       return `${e.found} ${e.stableOnly ? "stable equilibria" : "equilibria"} found in the window (claimed ${e.claimed}): ${e.equilibria.join(", ") || "none"}`;
     case "count-undecided":
       return `${e.found} stable equilibria found, and ${e.undecided} more whose stability the linearisation does not decide`;
+    case "count-capped":
+      return `the equilibrium search stops at ${e.cap} equilibria and reached that cap, so more may exist: a count of ${e.claimed} cannot be told`;
     case "none-near":
       return (
         `no equilibrium within ${percent(e.tolerance)} of the window of ${at(e.near)}` +
@@ -137,6 +139,7 @@ export function claimEvidenceWords(claim: ClaimResult, states: StateTerms): stri
   switch (e.kind) {
     case "count":
     case "count-undecided":
+    case "count-capped":
     case "none-near":
     case "type":
       return equilibriumEvidence(e);

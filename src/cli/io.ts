@@ -158,6 +158,8 @@ function outputError(path: string, err: unknown): unknown {
  * beforehand can see (a full disk).
  */
 export function checkOutputFolder(dir: string): void {
+  // an empty --out would resolve to the current folder and scatter the files there
+  if (dir.trim() === "") throw new CliExit(EXIT.input, `error: ${messages.emptyOutputFolder()}`);
   const probe = join(dir, "results.json");
   let existing = dir;
   for (;;) {

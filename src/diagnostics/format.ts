@@ -1,3 +1,5 @@
+import { messages } from "./messages.js";
+import { showInvisible } from "./visible.js";
 import { formatPath, type SpecIssue } from "./issue.js";
 
 /** Renders one issue for a terminal: location first, then the message, then a caret line. */
@@ -13,9 +15,14 @@ export function formatIssue(issue: SpecIssue, file?: string): string {
   return lines.join("\n");
 }
 
+/** Issues printed in full; a spec with more (10 000 states, each faulty) gets a count of the rest. */
+export const MAX_SHOWN_ISSUES = 50;
+
 export function formatIssues(issues: SpecIssue[], file?: string): string {
-  const shown = issues.map((i) => formatIssue(i, file));
+  const shown = issues.slice(0, MAX_SHOWN_ISSUES).map((i) => formatIssue(i, file));
   const n = issues.length;
+  if (n > MAX_SHOWN_ISSUES) shown.push(messages.moreIssues(n - MAX_SHOWN_ISSUES));
   shown.push(`${n} error${n === 1 ? "" : "s"} in the spec; nothing was written.`);
-  return shown.join("\n");
+  // a file name, key or text may hold terminal controls: shown, never obeyed
+  return showInvisible(shown.join("\n"));
 }

@@ -19,6 +19,9 @@ export const messages = {
   jsonBadNumber: () => `invalid number (JSON numbers have no leading zeros, '+' sign, or bare '.')`,
   jsonTrailing: () => `unexpected text after the end of the top-level value`,
   fileUnreadable: (file: string, reason: string) => `cannot read ${file}: ${reason}`,
+  emptyOutputFolder: () =>
+    `--out needs a folder name; an empty one is refused (it would mean the current folder)`,
+  moreIssues: (count: number) => `… and ${count} more error${count === 1 ? "" : "s"} not shown`,
   // limits on the spec's text (spec/limits.ts) and its encoding (cli/io.ts)
   fileTooLarge: (limit: number) =>
     `the file is larger than ${limit} bytes, the most a spec may hold (SPEC_MAX_BYTES)`,

@@ -4,6 +4,7 @@ import { KeelSpecSchema } from "./schema.js";
 import { validateSpecRules } from "./validate.js";
 import { normalizeSpec } from "./normalize.js";
 import { hashSpec } from "./hash.js";
+import { showInvisibleDeep } from "../diagnostics/visible.js";
 import { locateJsonFault } from "./json-locate.js";
 import { findLimitIssues, SPEC_MAX_BYTES } from "./limits.js";
 import { findForbiddenKeys, fromZodIssues } from "./issues.js";
@@ -62,7 +63,8 @@ export function parseSpecValue(raw: unknown): Parsed<NormalizedSpec> {
   if (!shaped.success) return { ok: false, issues: fromZodIssues(shaped.error.issues, raw) };
   const ruleIssues = validateSpecRules(shaped.data);
   if (ruleIssues.length) return { ok: false, issues: ruleIssues };
-  return { ok: true, value: normalizeSpec(shaped.data, hashSpec(raw)) };
+  // free text reaches terminals and dossiers: controls and direction overrides are shown, not obeyed
+  return { ok: true, value: showInvisibleDeep(normalizeSpec(shaped.data, hashSpec(raw))) };
 }
 
 export function parseSpecText(text: string): Parsed<NormalizedSpec> {

@@ -1,3 +1,4 @@
+import { createHash } from "node:crypto";
 import { join } from "node:path";
 import { createRequire } from "node:module";
 import { runAnalysis } from "./run.js";
@@ -90,14 +91,37 @@ export function buildEpoch(env: NodeJS.ProcessEnv): { epoch: number; reproducibl
 
 type OutputFiles = Map<string, string | Uint8Array>;
 
+/** Characters of a figure's file name before its suffix: far inside every file system's 255 bytes. */
+const FIGURE_NAME_MAX = 80;
+
+/**
+ * A file name per figure id, safe and distinct: ids hold scenario names, which are free text, so
+ * each becomes a slug (other characters as "-"), cut to FIGURE_NAME_MAX; a slug that was cut or
+ * that two ids share gets a short hash of its id, so no figure overwrites another.
+ */
+export function figureFileBases(ids: string[]): Map<string, string> {
+  const safe = (id: string) => id.replace(/[^A-Za-z0-9_-]+/g, "-");
+  const slug = (id: string) => safe(id).slice(0, FIGURE_NAME_MAX);
+  const uses = new Map<string, number>();
+  for (const id of ids) uses.set(slug(id), (uses.get(slug(id)) ?? 0) + 1);
+  return new Map(
+    ids.map((id) => {
+      const s = slug(id);
+      const exact = safe(id).length <= FIGURE_NAME_MAX && uses.get(s) === 1;
+      const hash = createHash("sha256").update(id).digest("hex").slice(0, 8);
+      return [id, exact ? s : `${s.slice(0, FIGURE_NAME_MAX - 9)}-${hash}`];
+    }),
+  );
+}
+
 /** Every output file but the PDF and the manifest, in memory. */
 function dossierFiles(specText: string, results: Results, dossier: Dossier): OutputFiles {
   const files: OutputFiles = new Map();
   files.set("spec.json", specText);
   files.set("results.json", serializeResults(results));
+  const bases = figureFileBases(dossier.figures.map((f) => f.id));
   for (const f of dossier.figures) {
-    // file names from ids, made safe: scenario names are free text
-    const base = f.id.replace(/[^A-Za-z0-9_-]+/g, "-");
+    const base = bases.get(f.id)!;
     files.set(`figures/${base}.svg`, toStandaloneSvg(f.svg) + "\n");
     files.set(
       `figures/${base}.vl.json`,

@@ -4,7 +4,7 @@
  * whose hashes were all fixed is caught by the re-run, number by number; and builds with
  * SOURCE_DATE_EPOCH set are byte-identical across --jobs values.
  */
-import { cpSync, readFileSync, writeFileSync } from "node:fs";
+import { cpSync, readFileSync, rmSync, symlinkSync, writeFileSync } from "node:fs";
 import { createHash } from "node:crypto";
 import { join } from "node:path";
 import { PDFArray, PDFDict, PDFDocument, PDFHexString, PDFName, PDFRawStream, PDFString } from "pdf-lib";
@@ -228,6 +228,49 @@ describe.skipIf(!chromium)("keel verify on a build with its PDF", () => {
     const escaped = file.replace(/[./]/g, "\\$&");
     expectFailsNaming(verify(dir), new RegExp(`^FAIL tampered: ${escaped}\\b`, "m"));
   });
+
+  /** A copy of the build whose manifest is rewritten, in the canonical form keel writes, by `change`. */
+  function withManifest(change: (m: Manifest, dir: string) => void): string {
+    const dir = copyOfBuild();
+    const path = join(dir, "manifest.json");
+    const manifest = JSON.parse(readFileSync(path, "utf8")) as Manifest;
+    change(manifest, dir);
+    writeFileSync(path, manifestText(manifest));
+    return dir;
+  }
+  const anyDigest = "0".repeat(64);
+
+  it.each(["../spec.json", "/etc/hostname", "figures/../../spec.json", "figures"])(
+    "keel verify DIR exits 3 and refuses the manifest entry %s without reading it",
+    (name) => {
+      const dir = withManifest((m) => (m.files[name] = anyDigest));
+      const escaped = name.replace(/[./]/g, "\\$&");
+      expectFailsNaming(verify(dir), new RegExp(`^FAIL refused: manifest entry '${escaped}'`, "m"));
+    },
+  );
+
+  it("keel verify DIR exits 3 and refuses a figure that is a symbolic link out of the folder", () => {
+    const dir = withManifest(() => undefined);
+    const figure = join(dir, "figures", "portrait.svg");
+    rmSync(figure);
+    symlinkSync(join(built, "figures", "portrait.svg"), figure);
+    expectFailsNaming(
+      verify(dir),
+      /^FAIL refused: manifest entry 'figures\/portrait\.svg' \(a symbolic link leading outside/m,
+    );
+  });
+
+  it.each([[null], [[]], ["files"]])(
+    "keel verify DIR exits 3, not 1, when the manifest's files is %j",
+    (files) => {
+      const dir = copyOfBuild();
+      const path = join(dir, "manifest.json");
+      const manifest = JSON.parse(readFileSync(path, "utf8")) as Record<string, unknown>;
+      // written as plain JSON: keel's canonical writer would not take such a manifest
+      writeFileSync(path, JSON.stringify({ ...manifest, files }, null, 2));
+      expectFailsNaming(verify(dir), /^FAIL tampered: manifest\.json \(its 'files' is not an object/m);
+    },
+  );
 
   it("keel verify DIR exits 3 and names manifest.json after a one-byte change that keeps its meaning (a space made a tab)", () => {
     const dir = copyOfBuild();

@@ -12,6 +12,7 @@ import { serializeResults } from "../../report/archive/serialize.js";
 import { hashSpec } from "../../spec/hash.js";
 import { CliExit, EXIT, makeProgress, type CommonOptions } from "../io.js";
 import { runAnalysis } from "./run.js";
+import { confinedPath, manifestFiles } from "../archive-paths.js";
 
 export interface VerifyReport {
   ok: boolean;
@@ -74,12 +75,19 @@ async function checkFolder(target: string, found: Findings): Promise<ArchivedRun
   // a manifest altered into invalid JSON is a tampered archive (exit 3), not bad usage
   if (parsed instanceof Error) problems.push(`tampered: manifest.json (${parsed.message})`);
   const manifest = (parsed instanceof Error ? { files: {} } : parsed) as Manifest;
+  const listed = manifestFiles(parsed instanceof Error ? {} : manifest.files);
+  if (typeof listed === "string") problems.push(`tampered: manifest.json (${listed})`);
+  const files = typeof listed === "string" ? {} : listed;
   // the manifest cannot hash itself; keel writes it in one canonical form, so any other bytes were changed
-  if (!(parsed instanceof Error) && manifestOnDisk !== manifestText(manifest))
+  if (!(parsed instanceof Error) && typeof listed !== "string" && manifestOnDisk !== manifestText(manifest))
     problems.push("tampered: manifest.json (its bytes differ from the form keel writes)");
-  const files = manifest.files ?? {};
   for (const [name, expected] of Object.entries(files)) {
-    const path = join(target, name);
+    const place = confinedPath(target, name);
+    if ("refused" in place) {
+      problems.push(`refused: manifest entry '${name}' (${place.refused})`);
+      continue;
+    }
+    const path = place.path;
     if (!existsSync(path)) {
       problems.push(`missing: ${name}`);
       continue;
@@ -139,10 +147,12 @@ async function checkPdf(pdfPath: string, found: Findings): Promise<ArchivedRun> 
   if (!manifestBytes)
     throw new CliExit(EXIT.input, `error: ${pdfPath} carries no keel archive (no embedded manifest.json)`);
   const manifest = parseJson(decoder.decode(manifestBytes), "the embedded manifest.json");
+  const listed = manifestFiles(manifest instanceof Error ? {} : (manifest as Manifest).files);
   if (manifest instanceof Error) problems.push("tampered: manifest.json inside the PDF (not valid JSON)");
+  else if (typeof listed === "string") problems.push(`tampered: manifest.json inside the PDF (${listed})`);
   else if (decoder.decode(manifestBytes) !== manifestText(manifest as Manifest))
     problems.push("tampered: manifest.json inside the PDF (its bytes differ from the form keel writes)");
-  const files = manifest instanceof Error ? {} : ((manifest as Manifest).files ?? {});
+  const files = typeof listed === "string" ? {} : listed;
   for (const name of ["spec.json", "results.json"]) {
     const copy = embedded[name];
     if (!copy) {

@@ -97,7 +97,8 @@ export function compileModel(spec: NormalizedSpec): Parsed<Model> {
   const textOf = (node: MathNode) => expressionToText(node, names.user);
   const parameterValues = Float64Array.from(spec.parameters.map((p) => p.value));
   const bound: CodegenOptions = { parameterValues: Array.from(parameterValues) };
-  const rhs = instantiateRhs(body(trees, bound));
+  const rhsSource = body(trees, bound);
+  const rhs = instantiateRhs(rhsSource);
   issues.push(...findEquationFaults(trees, stateNames, spec.window, rhs, textOf));
   if (issues.length) return { ok: false, issues };
   const equations = trees.map(describe);
@@ -107,7 +108,7 @@ export function compileModel(spec: NormalizedSpec): Parsed<Model> {
   const jacobian = jacobianNodes.map((row) => row.map(describe));
 
   const source: GeneratedSource = {
-    rhs: body(trees, bound),
+    rhs: rhsSource,
     jacobian: body(jacobianNodes.flat(), bound),
     rhsParametric: body(trees, {}),
     jacobianParametric: body(jacobianNodes.flat(), {}),

@@ -1,6 +1,7 @@
 import { isConstantNode, isOperatorNode, isSymbolNode, type MathNode } from "mathjs";
 import type { SpecIssue } from "../diagnostics/issue.js";
 import { messages, type ConstantFaultReason } from "../diagnostics/messages.js";
+import { isVariable, mentions } from "./simplify.js";
 
 /**
  * Terms of an equation that cannot be evaluated whatever the state: a constant part that is not a
@@ -9,9 +10,8 @@ import { messages, type ConstantFaultReason } from "../diagnostics/messages.js";
  * term, rather than a fault met mid-analysis. Trouble that depends on the state (a pole, a root of
  * a negative state) is the analysis's to report where it occurs.
  */
-/** Whether a subtree mentions a state or parameter (internal symbols S0, P0, …; a call's function name is no variable). */
-const hasSymbol = (node: MathNode) =>
-  node.filter((n) => isSymbolNode(n) && /^[SP]\d+$/.test(n.name)).length > 0;
+/** Whether a subtree mentions a state or parameter (a call's function name is no variable). */
+const hasSymbol = (node: MathNode) => mentions(node, isVariable);
 
 /** The value of a constant subtree, folded by mathjs (only the whitelisted grammar reaches here). */
 function foldConstant(node: MathNode): number {

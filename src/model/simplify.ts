@@ -67,7 +67,11 @@ export function simplifyBounded(expr: MathNode | string): { node: MathNode; simp
 const isState = (name: string) => /^S\d+$/.test(name);
 const isHeld = (name: string) => /^H\d+$/.test(name);
 /** The internal symbols of states and parameters (a call's function name is none). */
-const isVariable = (name: string) => /^[SP]\d+$/.test(name);
+export const isVariable = (name: string) => /^[SP]\d+$/.test(name);
+
+/** Whether the tree holds a symbol whose name passes `test`. */
+export const mentions = (node: MathNode, test: (name: string) => boolean) =>
+  node.filter((m) => isSymbolNode(m) && test(m.name)).length > 0;
 
 /**
  * Runs `transform` on the tree with each maximal subtree that mentions no kept symbol held as one
@@ -81,17 +85,10 @@ export function withOpaqueParts(
   transform: (tree: MathNode) => MathNode,
 ): MathNode {
   const held: MathNode[] = [];
-  const mentionsKept = (n: MathNode) => {
-    let found = false;
-    n.traverse((m) => {
-      if (isSymbolNode(m) && kept(m.name)) found = true;
-    });
-    return found;
-  };
   // only parts that name a variable are held: the simplifier must still fold plain numbers (2 − 1)
-  const mentionsVariable = (n: MathNode) => n.filter((m) => isSymbolNode(m) && isVariable(m.name)).length > 0;
   const opaque = node.transform((m: MathNode) => {
-    if (isSymbolNode(m) || m.type === "ConstantNode" || mentionsKept(m) || !mentionsVariable(m)) return m;
+    if (isSymbolNode(m) || m.type === "ConstantNode" || mentions(m, kept) || !mentions(m, isVariable))
+      return m;
     held.push(m);
     return new SymbolNode(`H${held.length - 1}`);
   });

@@ -95,16 +95,6 @@ export function* refineLabelGrid(
   return { resolution: n, labels, evaluations, boundaryCells, uncertainCells };
 }
 
-/** Drives the refinement with a synchronous labeller. */
-export function runLabelGridSync(
-  gen: Generator<Float64Array, LabelGrid, Int32Array>,
-  label: (points: Float64Array) => Int32Array,
-): LabelGrid {
-  let step = gen.next(undefined as unknown as Int32Array);
-  while (!step.done) step = gen.next(label(step.value));
-  return step.value;
-}
-
 /**
  * The fine cells the curves pass through (1) as a mask. Each chord is walked in steps of a
  * quarter cell, so no cell it crosses is skipped; a region thinner than a coarse cell that hugs

@@ -19,7 +19,8 @@ import type { SpecIssue } from "../diagnostics/issue.js";
 import { messages } from "../diagnostics/messages.js";
 import { SPEC_MAX_BYTES } from "../spec/limits.js";
 
-export const EXIT = { ok: 0, internal: 1, input: 2, contradicted: 3 } as const;
+/** 4: the dossier was written but Chromium, though found, could not print its PDF. */
+export const EXIT = { ok: 0, internal: 1, input: 2, contradicted: 3, noPdf: 4 } as const;
 
 /** A failure already explained to the user, carrying its exit code. */
 export class CliExit extends Error {

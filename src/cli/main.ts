@@ -80,7 +80,8 @@ function addBuildCommand(program: Command): void {
     .option("--paper <size>", "paper size: a4 or letter", "a4")
     .option("--pdf", "require the PDF: a missing Chromium is an error")
     .option("--no-pdf", "skip the PDF")
-    .action(async (spec: string, opts: { out?: string; paper: string; pdf?: boolean }) => {
+    .option("--force", "write into an --out folder that holds other files, replacing keel's own one by one")
+    .action(async (spec: string, opts: { out?: string; paper: string; pdf?: boolean; force?: boolean }) => {
       if (opts.paper !== "a4" && opts.paper !== "letter")
         throw new CliExit(EXIT.input, `error: --paper must be a4 or letter, got '${opts.paper}'`);
       // with both --pdf and --no-pdf declared, commander leaves the value undefined unless one is given
@@ -88,15 +89,18 @@ function addBuildCommand(program: Command): void {
       prevalidate(spec);
       // loaded on demand: the renderer's dependencies are not needed by check and analyze
       const { runBuild } = await import("./commands/build.js");
-      const written = await runBuild(spec, {
+      const { written, pdfFailure } = await runBuild(spec, {
         out: opts.out,
         paper: opts.paper,
         pdf: explicitPdf,
+        force: opts.force,
         ...commonOptions(program),
       });
       const dossiers = written.filter((w) => /dossier\.(html|pdf)$/.test(w)).join(" and ");
       if (!commonOptions(program).quiet)
         process.stderr.write(`wrote ${written.length} files, including ${dossiers}\n`);
+      // always said, even with --quiet: the exit code alone would not say what is missing
+      if (pdfFailure) throw new CliExit(EXIT.noPdf, `error: ${messages.pdfNotPrinted(pdfFailure)}`);
     });
 }
 

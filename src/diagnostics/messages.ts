@@ -40,6 +40,14 @@ export const messages = {
     `the file is ${encoding}; keel reads UTF-8 only: save the file as UTF-8`,
   fileIsFolder: () => `it is a folder, not a file`,
   outputUnwritable: (path: string, reason: string) => `cannot write ${path}: ${reason}`,
+  pdfNotPrinted: (reason: string) =>
+    `${reason}; everything else was written, without dossier.pdf (set KEEL_CHROMIUM to another browser, or give --no-pdf)`,
+  outputLocked: (dir: string, pid: number, lock: string) =>
+    Number.isNaN(pid)
+      ? `another keel run is writing ${dir}; try again when it ends (or remove ${lock} if none is running)`
+      : `another keel run (process ${pid}) is writing ${dir}; try again when it ends (or remove ${lock} if that process is not keel)`,
+  outputNotKeels: (dir: string) =>
+    `${dir} holds files that are not an earlier build of this spec; choose another --out, empty it, or give --force to write keel's files into it beside the others`,
   missingKey: (key: string, expected: string) =>
     `the required key '${key}' is missing (expected ${expected})`,
   unknownKey: (key: string, suggestion: string | null) =>

@@ -184,3 +184,43 @@ describe("keel build with KEEL_CHROMIUM naming a file that is not executable", (
     expect(hints[0]).toMatch(/apt-get install chromium/);
   });
 });
+
+/**
+ * Chromium that is executable but fails: one that exits at once, one that never answers. Either
+ * is an environment fault: everything but the PDF is written, the message says why, and the exit
+ * code is 4 (README, "Exit codes"). KEEL_CHROMIUM_TIMEOUT shortens the 30 s start timeout so the
+ * hanging case costs seconds.
+ */
+describe("keel build with a Chromium that starts but fails", () => {
+  const fakes: Record<string, string> = {};
+
+  beforeAll(() => {
+    const folder = makeWorkDir();
+    for (const [name, body] of Object.entries({ dead: "exit 1", hang: "sleep 600" })) {
+      fakes[name] = join(folder, name);
+      writeFileSync(fakes[name], `#!/bin/sh\n${body}\n`);
+      chmodSync(fakes[name], 0o755);
+    }
+  });
+
+  for (const kind of ["dead", "hang"] as const) {
+    it(`keel build --pdf (Chromium that ${kind === "dead" ? "exits at once" : "never answers"}) exits 4 and writes everything but the PDF`, () => {
+      const { run, out } = build(SPRING_SPEC, ["--pdf"], {
+        [CHROMIUM_ENV]: fakes[kind],
+        KEEL_CHROMIUM_TIMEOUT: "3",
+      });
+      expect(run.status, run.stderr).toBe(4);
+      expect(run.stderr).toMatch(/dossier\.pdf/);
+      expect(run.stderr).not.toMatch(STACK_FRAME);
+      const written = listFiles(out);
+      for (const name of ["dossier.html", "results.json", "manifest.json", "spec.json"])
+        expect(written).toContain(name);
+      expect(written).not.toContain("dossier.pdf");
+      const manifest = JSON.parse(readFileSync(join(out, "manifest.json"), "utf8")) as {
+        files: Record<string, unknown>;
+      };
+      expect(Object.keys(manifest.files)).not.toContain("dossier.pdf");
+      expect(listFiles(run.cwd).filter((name) => name.includes(".keel-"))).toEqual([]);
+    });
+  }
+});

@@ -1,14 +1,8 @@
 import { join } from "node:path";
 import { runAnalysis } from "./run.js";
 import { serializeResults } from "../../report/archive/serialize.js";
-import {
-  checkOutputFolder,
-  inputError,
-  makeProgress,
-  readSpecFile,
-  writeFileAtomic,
-  type CommonOptions,
-} from "../io.js";
+import { checkOutputFolder, inputError, makeProgress, readSpecFile, type CommonOptions } from "../io.js";
+import { declaredId, withOutputFolder } from "../out-folder.js";
 
 export interface AnalyzeOptions extends CommonOptions {
   out?: string;
@@ -19,15 +13,17 @@ export async function runAnalyze(file: string, options: AnalyzeOptions): Promise
   const specText = readSpecFile(file);
   // the default folder out/<id> needs the id; "out" itself is checked now
   checkOutputFolder(options.out ?? "out");
-  const output = await runAnalysis(
-    specText,
-    options.jobs,
-    makeProgress(options.quiet, options.clock),
-    options.clock,
-  );
-  if (!output.ok) throw inputError(output.issues, file);
-  const dir = options.out ?? join("out", output.value.spec.id);
-  const path = join(dir, "results.json");
-  writeFileAtomic(path, serializeResults(output.value.results));
-  return path;
+  const id = declaredId(specText);
+  const dir = options.out ?? join("out", id ?? "");
+  // results.json alone is written, in place: the lock keeps a concurrent build from mixing in
+  return withOutputFolder(dir, id, "in-place", async (folder) => {
+    const output = await runAnalysis(
+      specText,
+      options.jobs,
+      makeProgress(options.quiet, options.clock),
+      options.clock,
+    );
+    if (!output.ok) throw inputError(output.issues, file);
+    return folder.commit(new Map([["results.json", serializeResults(output.value.results)]]))[0];
+  });
 }

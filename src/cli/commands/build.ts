@@ -7,7 +7,7 @@ import { buildDossier, type Dossier } from "../../report/dossier.js";
 import type { Results } from "../../analysis/types.js";
 import type { NormalizedSpec } from "../../spec/types.js";
 import { findChromium } from "../../report/render/chromium.js";
-import { renderPdf } from "../../report/render/pdf.js";
+import { PdfRenderError, renderPdf } from "../../report/render/pdf.js";
 import { toStandaloneSvg } from "../../report/render/svg.js";
 import { embedArchive, manifestText, sha256, type Manifest } from "../../report/archive/manifest.js";
 import { existsSync, readFileSync } from "node:fs";
@@ -20,15 +20,24 @@ import {
   inputError,
   makeProgress,
   readSpecFile,
-  writeFileAtomic,
   type CommonOptions,
 } from "../io.js";
+import { declaredId, withOutputFolder } from "../out-folder.js";
 
 export interface BuildOptions extends CommonOptions {
   out?: string;
   paper: "a4" | "letter";
   /** true: PDF required; false: skipped; undefined: written when Chromium is available. */
   pdf?: boolean;
+  /** Write into an --out folder that holds other files (keel's own are replaced one by one). */
+  force?: boolean;
+}
+
+/** What a build wrote, and whether the PDF that was wanted is missing because Chromium failed. */
+export interface BuildOutcome {
+  written: string[];
+  /** Why Chromium could not print, when it was found but failed (the rest is written). */
+  pdfFailure: string | null;
 }
 
 const REPORTED_LIBRARIES = [
@@ -166,6 +175,7 @@ async function addPdf(
     paper: context.paper,
     headerLeft: spec.id,
     headerRight: `spec ${spec.sha256.slice(0, 16)}…`,
+    startTimeoutMs: chromiumStartTimeout(process.env),
   });
   if (printed.blockedRequests.length)
     context.notes.push(
@@ -182,6 +192,12 @@ async function addPdf(
   manifest.files["dossier.pdf"] = sha256(pdf);
 }
 
+/** KEEL_CHROMIUM_TIMEOUT, in seconds, when set to a positive number (a slow machine's browser). */
+function chromiumStartTimeout(env: NodeJS.ProcessEnv): number | undefined {
+  const seconds = Number(env.KEEL_CHROMIUM_TIMEOUT);
+  return env.KEEL_CHROMIUM_TIMEOUT && Number.isFinite(seconds) && seconds > 0 ? seconds * 1000 : undefined;
+}
+
 function chromiumFor(options: BuildOptions): string | null {
   const chromium = options.pdf === false ? null : findChromium(process.env);
   if (options.pdf === true && !chromium) {
@@ -194,49 +210,54 @@ function chromiumFor(options: BuildOptions): string | null {
 }
 
 /** `keel build SPEC`: results.json, figures, dossier.html and (when possible) dossier.pdf. */
-export async function runBuild(file: string, options: BuildOptions): Promise<string[]> {
+export async function runBuild(file: string, options: BuildOptions): Promise<BuildOutcome> {
   const { epoch, reproducible } = buildEpoch(process.env);
   const progress = makeProgress(options.quiet, options.clock);
   const chromium = chromiumFor(options);
   const started = performance.now();
   const specText = readSpecFile(file);
   checkOutputFolder(options.out ?? "out");
-  const output = await runAnalysis(specText, options.jobs, progress, options.clock);
-  if (!output.ok) throw inputError(output.issues, file);
-  const { spec, results } = output.value;
-  const runSeconds = reproducible ? null : (performance.now() - started) / 1000;
-  progress?.("render", 0, 1);
-  const dossier = await buildDossier(spec, results, {
-    paper: options.paper,
-    dateEpoch: epoch,
-    runSeconds,
-    nodeVersion: process.version,
-    libraries: libraryVersions(),
+  const id = declaredId(specText);
+  const dir = options.out ?? join("out", id ?? "");
+  return withOutputFolder(dir, id, options.force ? "force" : "replace", async (folder) => {
+    const output = await runAnalysis(specText, options.jobs, progress, options.clock);
+    if (!output.ok) throw inputError(output.issues, file);
+    const { spec, results } = output.value;
+    const runSeconds = reproducible ? null : (performance.now() - started) / 1000;
+    progress?.("render", 0, 1);
+    const dossier = await buildDossier(spec, results, {
+      paper: options.paper,
+      dateEpoch: epoch,
+      runSeconds,
+      nodeVersion: process.version,
+      libraries: libraryVersions(),
+    });
+    const files = dossierFiles(specText, results, dossier);
+    const manifest = buildManifest(spec, results, files, options.paper, Boolean(chromium));
+    const notes: string[] = [];
+    let pdfFailure: string | null = null;
+    if (chromium) {
+      progress?.("render", 1, 1);
+      progress?.("pdf", 0, 1);
+      try {
+        await addPdf(chromium, spec, specText, files, manifest, { paper: options.paper, epoch, notes });
+      } catch (err) {
+        // Chromium's trouble is the machine's, not the model's: everything else is still written
+        if (!(err instanceof PdfRenderError)) throw err;
+        pdfFailure = err.message;
+        manifest.options.pdf = false;
+      }
+    } else if (options.pdf !== false) {
+      notes.push(
+        "no Chromium found, so no PDF was written; install it with `apt-get install chromium` (or set KEEL_CHROMIUM)",
+      );
+    }
+    files.set("manifest.json", manifestText(manifest));
+    progress?.(chromium ? "pdf" : "render", 1, 1);
+    options.clock?.enter("write files");
+    // everything is computed; only now does anything reach the disk, and all of it at once
+    const written = folder.commit(files);
+    for (const n of notes) if (!options.quiet) process.stderr.write(`note: ${n}\n`);
+    return { written, pdfFailure };
   });
-  const files = dossierFiles(specText, results, dossier);
-  const manifest = buildManifest(spec, results, files, options.paper, Boolean(chromium));
-  const notes: string[] = [];
-  if (chromium) {
-    progress?.("render", 1, 1);
-    progress?.("pdf", 0, 1);
-    await addPdf(chromium, spec, specText, files, manifest, { paper: options.paper, epoch, notes });
-  } else if (options.pdf !== false) {
-    notes.push(
-      "no Chromium found, so no PDF was written; install it with `apt-get install chromium` (or set KEEL_CHROMIUM)",
-    );
-  }
-  files.set("manifest.json", manifestText(manifest));
-  progress?.(chromium ? "pdf" : "render", 1, 1);
-  options.clock?.enter("write files");
-
-  // everything is computed; only now does anything reach the disk
-  const dir = options.out ?? join("out", spec.id);
-  const written: string[] = [];
-  for (const [name, content] of files) {
-    const path = join(dir, name);
-    writeFileAtomic(path, content);
-    written.push(path);
-  }
-  for (const n of notes) if (!options.quiet) process.stderr.write(`note: ${n}\n`);
-  return written;
 }

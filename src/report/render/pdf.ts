@@ -17,6 +17,8 @@ export interface PdfRenderOptions {
   headerRight: string;
   /** Optional plain text on the left of the footer; "page N of M" is always on the right. */
   footerNote?: string;
+  /** How long to wait for Chromium to start (default CHROMIUM_START_TIMEOUT_MS). */
+  startTimeoutMs?: number;
 }
 
 export interface PdfRenderResult {
@@ -32,8 +34,10 @@ export class PdfRenderError extends Error {
 }
 
 const pdfMessages = {
-  launchFailed: (path: string, reason: string) => `could not start Chromium at ${path}: ${reason}`,
+  launchFailed: (path: string, reason: string) =>
+    `could not start Chromium at ${path} (the browser KEEL_CHROMIUM names, else the first one found): ${reason}`,
   printFailed: (reason: string) => `Chromium could not print the dossier: ${reason}`,
+  noAnswer: (ms: number) => `no answer within ${ms / 1000} s (the process was stopped)`,
 };
 
 /**
@@ -50,10 +54,15 @@ const CHROMIUM_ARGS = [
   "--disable-sync",
   "--no-first-run",
 ];
-/** A cold start takes about a second; 60 s allows for a loaded CI runner (common practice). */
-const LAUNCH_TIMEOUT_MS = 60_000;
+/**
+ * A cold start takes about a second; 30 s allows for a loaded CI runner (common practice) and
+ * bounds the wait on a browser that never answers. KEEL_CHROMIUM_TIMEOUT (seconds) overrides it.
+ */
+export const CHROMIUM_START_TIMEOUT_MS = 30_000;
 /** Loading and printing a dossier with many inline SVG figures; generous for slow runners. */
 const PRINT_TIMEOUT_MS = 120_000;
+/** A browser that does not close when asked is killed after this long. */
+const CLOSE_TIMEOUT_MS = 5_000;
 /** Room for the running header and footer, which Chromium draws inside the page margins. */
 const MARGINS = { top: "18mm", bottom: "18mm", left: "16mm", right: "16mm" };
 
@@ -64,33 +73,65 @@ const MARGINS = { top: "18mm", bottom: "18mm", left: "16mm", right: "16mm" };
  */
 export async function renderPdf(html: string, options: PdfRenderOptions): Promise<PdfRenderResult> {
   const profile = await mkdtemp(join(tmpdir(), "keel-chromium-"));
+  // puppeteer kills the browser process when this aborts; that rejects every pending protocol
+  // call at once, so neither a browser that never answers nor a hung print can outlast a timer
+  const killSwitch = new AbortController();
   try {
-    const browser = await launchChromium(options.chromiumPath, profile);
+    const startTimeout = options.startTimeoutMs ?? CHROMIUM_START_TIMEOUT_MS;
+    const browser = await withWatchdog(
+      launchChromium(options.chromiumPath, profile, startTimeout, killSwitch.signal),
+      startTimeout,
+      killSwitch,
+    ).catch((error: unknown) => {
+      const reason = killSwitch.signal.aborted ? pdfMessages.noAnswer(startTimeout) : reasonOf(error);
+      throw new PdfRenderError(pdfMessages.launchFailed(options.chromiumPath, reason), { cause: error });
+    });
     try {
-      return await printPage(browser, html, options);
+      return await withWatchdog(printPage(browser, html, options), PRINT_TIMEOUT_MS, killSwitch);
     } catch (error) {
-      throw new PdfRenderError(pdfMessages.printFailed(reasonOf(error)), { cause: error });
+      const reason = killSwitch.signal.aborted ? pdfMessages.noAnswer(PRINT_TIMEOUT_MS) : reasonOf(error);
+      throw new PdfRenderError(pdfMessages.printFailed(reason), { cause: error });
     } finally {
-      await browser.close().catch(() => browser.process()?.kill("SIGKILL"));
+      await withWatchdog(browser.close(), CLOSE_TIMEOUT_MS, killSwitch).catch(() => {});
     }
   } finally {
+    killSwitch.abort();
     await rm(profile, { recursive: true, force: true, maxRetries: 3 });
   }
 }
 
-async function launchChromium(chromiumPath: string, profile: string): Promise<Browser> {
+/** `work`, or a rejection after `ms` with the browser killed. */
+async function withWatchdog<T>(work: Promise<T>, ms: number, killSwitch: AbortController): Promise<T> {
+  let timer: NodeJS.Timeout | undefined;
+  const expired = new Promise<never>((_, reject) => {
+    timer = setTimeout(() => {
+      killSwitch.abort();
+      reject(new Error(`no answer in ${ms} ms`));
+    }, ms);
+  });
   try {
-    return await puppeteer.launch({
-      executablePath: chromiumPath,
-      headless: true,
-      ignoreDefaultArgs: true,
-      args: [...CHROMIUM_ARGS, `--user-data-dir=${profile}`],
-      pipe: true, // no debugging port on the loopback interface
-      timeout: LAUNCH_TIMEOUT_MS,
-    });
-  } catch (error) {
-    throw new PdfRenderError(pdfMessages.launchFailed(chromiumPath, reasonOf(error)), { cause: error });
+    return await Promise.race([work, expired]);
+  } finally {
+    clearTimeout(timer);
   }
+}
+
+async function launchChromium(
+  chromiumPath: string,
+  profile: string,
+  timeout: number,
+  signal: AbortSignal,
+): Promise<Browser> {
+  return await puppeteer.launch({
+    executablePath: chromiumPath,
+    headless: true,
+    ignoreDefaultArgs: true,
+    args: [...CHROMIUM_ARGS, `--user-data-dir=${profile}`],
+    pipe: true, // no debugging port on the loopback interface
+    timeout,
+    protocolTimeout: PRINT_TIMEOUT_MS,
+    signal,
+  });
 }
 
 async function printPage(

@@ -229,6 +229,38 @@ describe.skipIf(!chromium)("keel verify on a build with its PDF", () => {
     expectFailsNaming(verify(dir), new RegExp(`^FAIL tampered: ${escaped}\\b`, "m"));
   });
 
+  it.each([
+    ["cut in half", 0.5],
+    ["without its last 40 bytes", -40],
+  ] as const)(
+    "keel verify PDF exits 3 on a dossier.pdf %s, naming it damaged, with no parser noise",
+    (_label, cut) => {
+      const pdf = readFileSync(join(built, "dossier.pdf"));
+      const end = cut > 0 ? Math.floor(pdf.length * cut) : pdf.length + cut;
+      const path = join(copyOfBuild(), "truncated.pdf");
+      writeFileSync(path, pdf.subarray(0, end));
+      const run = verify(path);
+      expectFailsNaming(run, /^FAIL tampered: .*truncated\.pdf (is truncated|cannot be read as a PDF)/m);
+      expect(run.stderr).toBe("");
+    },
+  );
+
+  it("keel verify PDF exits 2 on a file that is not a PDF at all (no %PDF- header)", () => {
+    const path = join(copyOfBuild(), "notes.pdf");
+    writeFileSync(path, "just some words\n");
+    const run = verify(path);
+    expect(run.status, run.stdout + run.stderr).toBe(2);
+    expect(run.stderr).toMatch(/not a PDF/);
+  });
+
+  it("keel verify DIR prints the spec SHA-256 it checked, the hash of the archived spec.json", () => {
+    const run = verify(built);
+    const specHash = (
+      JSON.parse(readFileSync(join(built, "results.json"), "utf8")) as { spec: { sha256: string } }
+    ).spec.sha256;
+    expect(run.stdout).toContain(`spec SHA-256 checked: ${specHash}`);
+  });
+
   /** A copy of the build whose manifest is rewritten, in the canonical form keel writes, by `change`. */
   function withManifest(change: (m: Manifest, dir: string) => void): string {
     const dir = copyOfBuild();

@@ -139,11 +139,31 @@ async function checkEmbeddedCopies(
   }
 }
 
+/**
+ * PDF files begin with "%PDF-" (ISO 32000-1:2008, §7.5.2) and end with "%%EOF" (§7.5.5), which
+ * writers may follow with a line end or a little padding; 1024 bytes is the slack readers
+ * commonly allow (common practice).
+ */
+const PDF_HEADER = "%PDF-";
+const EOF_MARKER = "%%EOF";
+const EOF_SLACK_BYTES = 1024;
+
+const startsWithPdfHeader = (bytes: Uint8Array) =>
+  Buffer.from(bytes.subarray(0, PDF_HEADER.length)).toString("latin1") === PDF_HEADER;
+const endsWithEofMarker = (bytes: Uint8Array) =>
+  Buffer.from(bytes.subarray(Math.max(0, bytes.length - EOF_SLACK_BYTES)))
+    .toString("latin1")
+    .includes(EOF_MARKER);
+
 /** A dossier.pdf alone: its embedded manifest, and the spec and results it hashes. */
 async function checkPdf(pdfPath: string, found: Findings): Promise<ArchivedRun> {
   const { lines, problems } = found;
+  // a file that never was a PDF is a usage error; a PDF damaged after keel wrote it is a finding
+  if (!startsWithPdfHeader(readFileSync(pdfPath)))
+    throw new CliExit(EXIT.input, `error: ${pdfPath} is not a PDF (it does not begin with %PDF-)`);
   const embedded = await readEmbeddedSafe(pdfPath, problems);
   const manifestBytes = embedded["manifest.json"];
+  if (!manifestBytes && problems.length > 0) return { specText: null, resultsText: null };
   if (!manifestBytes)
     throw new CliExit(EXIT.input, `error: ${pdfPath} carries no keel archive (no embedded manifest.json)`);
   const manifest = parseJson(decoder.decode(manifestBytes), "the embedded manifest.json");
@@ -192,6 +212,8 @@ async function checkRerun(
   }
   const specJson = parseJson(specText, "spec.json");
   const archivedHash = (archived as { spec?: { sha256?: string } }).spec?.sha256;
+  if (!(specJson instanceof Error))
+    lines.push(`spec SHA-256 checked: ${hashSpec(specJson)} (compare it with the dossier's cover)`);
   if (!(specJson instanceof Error) && archivedHash !== hashSpec(specJson))
     problems.push("mismatch: the results were not computed from this spec (spec hash differs)");
   const now = JSON.parse(serializeResults(output.value.results));
@@ -209,8 +231,14 @@ async function checkRerun(
 }
 
 async function readEmbeddedSafe(path: string, problems: string[]): Promise<Record<string, Uint8Array>> {
+  const bytes = readFileSync(path);
+  if (!startsWithPdfHeader(bytes)) {
+    problems.push(`tampered: ${path} is not a PDF (no %PDF- header)`);
+    return {};
+  }
+  if (!endsWithEofMarker(bytes)) problems.push(`tampered: ${path} is truncated (no %%EOF marker at its end)`);
   try {
-    return await readEmbedded(readFileSync(path));
+    return await readEmbedded(bytes);
   } catch (err) {
     problems.push(`tampered: ${path} cannot be read as a PDF (${(err as Error).message})`);
     return {};

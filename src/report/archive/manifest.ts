@@ -84,7 +84,9 @@ function pdfText(value: unknown): string | null {
 
 /** The files embedded in a PDF, by name (read through the document's EmbeddedFiles name tree). */
 export async function readEmbedded(pdf: Uint8Array): Promise<Record<string, Uint8Array>> {
-  const doc = await PDFDocument.load(pdf, { updateMetadata: false });
+  // throwing, not pdf-lib's default of printing a warning and skipping: a damaged object is a
+  // finding for verify to report, not console noise beside its answer
+  const doc = await PDFDocument.load(pdf, { updateMetadata: false, throwOnInvalidObject: true });
   const out: Record<string, Uint8Array> = {};
   const names = doc.catalog.lookupMaybe(PDFName.of("Names"), PDFDict);
   const tree = names?.lookupMaybe(PDFName.of("EmbeddedFiles"), PDFDict);

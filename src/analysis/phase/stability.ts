@@ -40,6 +40,12 @@ export interface StabilityResult {
   hyperbolic: boolean;
   /** true: asymptotically stable; false: unstable; null: the linearisation does not decide. */
   stable: boolean | null;
+  /**
+   * Present when the linearisation could not be read at all: "jacobian-not-finite" (an entry is
+   * NaN or ±Infinity, as at a pole or an overflow). The type is then "non-hyperbolic" with
+   * `stable: null`, which decides nothing: a placeholder, not a finding.
+   */
+  undecided?: "jacobian-not-finite";
 }
 
 /** Sign convention for eigenvectors: the largest-magnitude component is positive. */
@@ -129,6 +135,59 @@ export function classifyEquilibrium(
   jacobian: number[][],
   scales: readonly number[] = [1, 1],
 ): StabilityResult {
+  const entries = jacobian.flat();
+  if (!entries.every(Number.isFinite)) return notFinite(jacobian);
+  // every type is invariant under J → sJ, s > 0: classify J scaled by an even power of two so its
+  // largest entry is near 1 (exact, sqrt included), then scale trace, determinant, discriminant
+  // and eigenvalues back. Rates of 1e-300 would otherwise give a determinant that underflows to
+  // 0 ("non-hyperbolic"), and rates of 1e200 one that overflows to NaN.
+  const largest = Math.max(...entries.map(Math.abs));
+  const exponent = largest > 0 ? 2 * Math.round(Math.log2(largest) / 2) : 0;
+  if (exponent === 0) return classifyScaled(jacobian, scales);
+  const scaled = classifyScaled(
+    jacobian.map((row) => row.map((v) => timesPowerOfTwo(v, -exponent))),
+    scales,
+  );
+  return {
+    ...scaled,
+    jacobian: jacobian.map((r) => r.slice()),
+    trace: timesPowerOfTwo(scaled.trace, exponent),
+    determinant: timesPowerOfTwo(scaled.determinant, 2 * exponent),
+    discriminant: timesPowerOfTwo(scaled.discriminant, 2 * exponent),
+    eigenvalues: scaled.eigenvalues.map((e) => ({
+      re: timesPowerOfTwo(e.re, exponent),
+      im: timesPowerOfTwo(e.im, exponent),
+    })),
+  };
+}
+
+/** x · 2^k, exact unless the result leaves double range; split in two so 2^k itself never overflows. */
+function timesPowerOfTwo(x: number, k: number): number {
+  const half = Math.trunc(k / 2);
+  return x * 2 ** half * 2 ** (k - half);
+}
+
+/** An equilibrium whose Jacobian has a NaN or infinite entry: nothing about it is decided. */
+function notFinite(jacobian: number[][]): StabilityResult {
+  return {
+    jacobian: jacobian.map((r) => r.slice()),
+    trace: NaN,
+    determinant: NaN,
+    discriminant: NaN,
+    eigenvalues: [
+      { re: NaN, im: NaN },
+      { re: NaN, im: NaN },
+    ],
+    eigenvectors: [],
+    type: "non-hyperbolic",
+    borderline: null,
+    hyperbolic: false,
+    stable: null,
+    undecided: "jacobian-not-finite",
+  };
+}
+
+function classifyScaled(jacobian: number[][], scales: readonly number[]): StabilityResult {
   const [[a, b], [c, d]] = jacobian;
   const trace = a + d;
   const determinant = a * d - b * c;

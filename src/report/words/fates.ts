@@ -37,7 +37,9 @@ export function borderlineWords(b: BorderlineResult): string {
 export function equilibriumTypeWords(e: {
   type: EquilibriumType;
   borderline: BorderlineResult | null;
+  undecided?: "jacobian-not-finite";
 }): string {
+  if (e.undecided) return "undecided (the Jacobian is not finite here)";
   const type = TYPE_WORDS[e.type];
   return e.borderline ? `${type}, borderline with ${TYPE_WORDS[e.borderline.between[1]]}` : type;
 }

@@ -763,3 +763,70 @@ describe("classifyEquilibrium is invariant under a change of units", () => {
     expectEigenvalues(r.eigenvalues, pair(-1, 2));
   });
 });
+
+/**
+ * Types are invariant under J → sJ for s > 0: the trace–determinant plane's regions are cones
+ * (Strogatz, Nonlinear Dynamics and Chaos, 2nd ed., section 5.2). Scales near the ends of double
+ * range must not change the call; a Jacobian that is not finite decides nothing.
+ */
+describe("classifyEquilibrium at the ends of double range", () => {
+  const cases: { J: number[][]; type: string }[] = [
+    {
+      J: [
+        [-1, 0],
+        [0, -2],
+      ],
+      type: "stable-node",
+    },
+    {
+      J: [
+        [1, 0],
+        [0, -2],
+      ],
+      type: "saddle",
+    },
+    {
+      J: [
+        [-0.1, -1],
+        [1, -0.1],
+      ],
+      type: "stable-focus",
+    },
+    {
+      J: [
+        [0.5, 2],
+        [-1, 0.3],
+      ],
+      type: "unstable-focus",
+    },
+  ];
+  for (const { J, type } of cases)
+    for (const s of [1e-300, 1e-160, 1e160, 1e300]) {
+      it(`classifyEquilibrium(${s} · ${JSON.stringify(J)}) is ${type}, with eigenvalues ${s} times J's`, () => {
+        const scaled = J.map((row) => row.map((v) => v * s));
+        const result = classifyEquilibrium(scaled);
+        const plain = classifyEquilibrium(J);
+        expect(result.type).toBe(type);
+        expect(result.hyperbolic).toBe(true);
+        expect(result.undecided).toBeUndefined();
+        for (let k = 0; k < 2; k++) {
+          expect(result.eigenvalues[k].re / s).toBeCloseTo(plain.eigenvalues[k].re, 12);
+          expect(result.eigenvalues[k].im / s).toBeCloseTo(plain.eigenvalues[k].im, 12);
+        }
+        expect(result.trace / s).toBeCloseTo(plain.trace, 12);
+      });
+    }
+
+  it.each([NaN, Infinity, -Infinity])(
+    "classifyEquilibrium(a Jacobian holding %s) is undecided: non-hyperbolic, stable null, never a hyperbolic type",
+    (bad) => {
+      const result = classifyEquilibrium([
+        [-1, bad],
+        [0, -2],
+      ]);
+      expect(result.undecided).toBe("jacobian-not-finite");
+      expect(result.hyperbolic).toBe(false);
+      expect(result.stable).toBeNull();
+    },
+  );
+});

@@ -648,3 +648,41 @@ export const CURVE_RANGE_SLACK = 0.05;
 /** On a bound, a state is on its invariant axis when its own derivative is this small against the other's (plus an underflow floor). */
 export const ON_AXIS_REL_TOL = 1e-12;
 export const ON_AXIS_ABS_FLOOR = 1e-300;
+
+/**
+ * Step-size control of the Rosenbrock (RODAS) integrator, as in Hairer and Wanner, Solving ODEs
+ * II, 2nd ed., §IV.8 (the usual values, from memory): safety factor on the predicted step; the
+ * largest growth and smallest shrink per step keep the controller from oscillating; a step whose
+ * stage matrix I/(hγ) − J is singular is retried a quarter as long (common practice).
+ */
+export const ROSENBROCK_SAFETY = 0.9;
+export const ROSENBROCK_MAX_GROWTH = 6;
+export const ROSENBROCK_MIN_SHRINK = 0.2;
+export const ROSENBROCK_SINGULAR_SHRINK = 0.25;
+
+/**
+ * integrateFlow's stiffness switch (numeric/stiff-switch.ts). odex's step has collapsed when
+ * STIFF_WINDOW_STEPS accepted steps in a row advance less than one longest step (the caller's
+ * maxStep, a fixed fraction of its horizon or period: the flow's time scale as the caller sees
+ * it); at that pace a follower's horizon (64 longest steps) would take 65 000 steps. A window
+ * this long lets a brief collapse (a corner, a fast transient crossed in a few hundred steps)
+ * pass, and costs a stiff run 1024 of its 200 000 steps.
+ */
+export const STIFF_WINDOW_STEPS = 1024;
+/**
+ * The collapse is stiffness when the directed field's most negative eigenvalue real part times
+ * that time scale reaches this: odex's extrapolated midpoint steps are held to h·|Re λ| of a few
+ * units by stability (its real stability interval; from memory), so a pace of 1/1024 of the time
+ * scale per step is what stability alone imposes at |Re λ| · time scale ≈ 1000. Below, the step
+ * shrank for another reason (a fast rotation, a near-singular field, a blow-up) that an implicit
+ * method would not cure.
+ */
+export const STIFFNESS_RATIO = 1000;
+/** RODAS's first step when odex handed over before accepting one: the controller grows it sixfold a step. */
+export const RODAS_FIRST_STEP_OF_SCALE = 1e-6;
+/**
+ * Central-difference step for a quadrature's gradient in RODAS's Jacobian, relative to the state
+ * (or to atol/rtol, where the absolute tolerance takes over): the cube root of the double's
+ * epsilon balances the h² truncation against rounding (common practice).
+ */
+export const QUADRATURE_GRADIENT_STEP = Math.cbrt(2 ** -52);

@@ -381,6 +381,7 @@ export function followTrajectory(
       tolerances: ctx.tolerances,
       maxStep: options.maxStep ?? options.horizon * MAX_STEP_OF_HORIZON,
       maxSteps: options.maxSteps ?? TRAJECTORY_MAX_STEPS,
+      jacobian: ctx.model.jacobianAt,
       onStep: (info) => follower.step(info),
     });
     evaluations = integration.evaluations;

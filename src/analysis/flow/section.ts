@@ -111,6 +111,7 @@ export function returnMap(section: Section, r: number, guessPeriod: number, mode
     tolerances: tolerancesFor(box.width, SHOOT_RELATIVE_TOL, SHOOT_ABSOLUTE_TOL_OF_WIDTH),
     maxStep: guessPeriod * (mode === "sample" ? SHOOT_SAMPLE_MAX_STEP_OF_PERIOD : SHOOT_MAX_STEP_OF_PERIOD),
     maxSteps: SHOOT_MAX_STEPS,
+    jacobian: model.jacobianAt,
     // ∮ trace J dt as an error-controlled third component: the Floquet multiplier's exponent
     quadrature: keepOrbit
       ? {

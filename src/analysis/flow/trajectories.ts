@@ -74,6 +74,7 @@ function denseSeries(
     tolerances: ctx.tolerances,
     maxStep: horizon * MAX_STEP_OF_HORIZON,
     maxSteps: TRAJECTORY_MAX_STEPS,
+    jacobian: model.jacobianAt,
     onStep: ({ t1, dense }) => {
       for (let i = out.t.length; i < points && chord.t[i] <= t1; i++) {
         out.t.push(chord.t[i]);
@@ -167,6 +168,7 @@ function extendToHorizon(model: Model, ctx: FlowContext, path: TrajectoryPath, h
     tolerances: ctx.tolerances,
     maxStep: horizon * MAX_STEP_OF_HORIZON,
     maxSteps: TRAJECTORY_MAX_STEPS,
+    jacobian: model.jacobianAt,
     onStep: ({ t1, y }) => {
       path.t.push(t0 + t1);
       path.x.push(y[0]);

@@ -1,10 +1,12 @@
 import { Solver } from "odex";
 import type { RhsFunction } from "../../model/types.js";
 import { TRAJECTORY_ABSOLUTE_TOL_OF_WIDTH, TRAJECTORY_RELATIVE_TOL } from "../constants.js";
+import { continueWithRodas, StiffnessWatch } from "./stiff-switch.js";
 
 /**
  * Thin wrapper over odex (Hairer's extrapolation method); the dimension is that of the start.
  * Backward time is integrated as the forward flow of −f, so every caller sees increasing time.
+ * Given the Jacobian, a stiff stretch continues with RODAS (numeric/stiff-switch.ts).
  */
 export interface IntegrationTolerances {
   /** Relative tolerance per step. */
@@ -39,6 +41,12 @@ export interface FlowOptions {
    * dq/dt = quadrature(y), read back through dense component 2.
    */
   quadrature?: { integrand: (y: ArrayLike<number>) => number; absolute: number };
+  /**
+   * The field's exact Jacobian, row-major (model.jacobianAt). With it, odex hands over to RODAS
+   * when its step collapses or its steps run out and the Jacobian shows stiffness (RODAS then
+   * has maxSteps of its own); without it odex runs alone.
+   */
+  jacobian?: RhsFunction;
   /** Called after every accepted step; return false to stop. */
   onStep: (step: StepInfo) => boolean | void;
 }
@@ -52,6 +60,21 @@ export interface IntegrationResult {
   tEnd: number;
   y: number[];
   evaluations: number;
+  /** "odex+rodas": odex ran up to a stiff stretch, RODAS from there on. */
+  method: "odex" | "odex+rodas";
+}
+
+function odexSolver(n: number, options: FlowOptions): Solver {
+  const quad = options.quadrature;
+  const solver = new Solver(quad ? n + 1 : n);
+  solver.denseOutput = true;
+  solver.relativeTolerance = options.tolerances.relative;
+  solver.absoluteTolerance = quad
+    ? [...options.tolerances.absolute, quad.absolute]
+    : options.tolerances.absolute;
+  solver.maxStepSize = options.maxStep;
+  solver.maxSteps = options.maxSteps;
+  return solver;
 }
 
 export function integrateFlow(
@@ -62,14 +85,7 @@ export function integrateFlow(
 ): IntegrationResult {
   const quad = options.quadrature;
   const n = y0.length;
-  const solver = new Solver(quad ? n + 1 : n);
-  solver.denseOutput = true;
-  solver.relativeTolerance = options.tolerances.relative;
-  solver.absoluteTolerance = quad
-    ? [...options.tolerances.absolute, quad.absolute]
-    : options.tolerances.absolute;
-  solver.maxStepSize = options.maxStep;
-  solver.maxSteps = options.maxSteps;
+  const solver = odexSolver(n, options);
   const buffer = new Float64Array(n);
   const sign = options.direction;
   let nonFinite = false;
@@ -95,6 +111,11 @@ export function integrateFlow(
   };
   let lastT = 0;
   let lastY = Array.from(y0);
+  let lastQ = 0;
+  let lastStep = 0;
+  const timeScale = Number.isFinite(options.maxStep) ? options.maxStep : tEnd;
+  const watch = options.jacobian ? new StiffnessWatch(options.jacobian, sign, timeScale) : null;
+  let handOver = false;
   const observer = (
     step: number,
     t0: number,
@@ -105,14 +126,42 @@ export function integrateFlow(
     if (nonFinite) return false;
     lastT = t1;
     lastY = y.slice(0, n);
+    lastQ = y[n];
+    lastStep = t1 - t0;
     if (step === 1) return undefined;
     if (options.onStep({ t0, t1, y, dense: dense! }) === false) {
       stopped = true;
       return false;
     }
+    if (watch?.collapsedStiff(t1, lastY)) {
+      handOver = true;
+      return false;
+    }
     return undefined;
   };
   const result = solver.solve(f, 0, quad ? [...y0, 0] : Array.from(y0), tEnd, observer);
+  const ranOut = result.outcome === 1 && !nonFinite && !stopped;
+  if (watch && (handOver || (ranOut && watch.isStiff(lastY)))) {
+    const rest = continueWithRodas(
+      rhs,
+      options,
+      { t: lastT, y: lastY, q: lastQ, step: lastStep },
+      tEnd,
+      timeScale,
+    );
+    return { ...rest, evaluations: evaluations + rest.evaluations };
+  }
+  return odexOutcome(result, nonFinite, stopped, { t: lastT, y: lastY }, evaluations);
+}
+
+/** The result of an integration odex ran alone; `last`: its last accepted point. */
+function odexOutcome(
+  result: { outcome: number; xEnd: number; y: number[] },
+  nonFinite: boolean,
+  stopped: boolean,
+  last: { t: number; y: number[] },
+  evaluations: number,
+): IntegrationResult {
   const status: IntegrationStatus = nonFinite
     ? "non-finite"
     : stopped
@@ -122,8 +171,9 @@ export function integrateFlow(
         : "finished";
   return {
     status,
-    tEnd: status === "finished" ? result.xEnd : lastT,
-    y: status === "finished" ? result.y : lastY,
+    tEnd: status === "finished" ? result.xEnd : last.t,
+    y: status === "finished" ? result.y : last.y,
     evaluations,
+    method: "odex",
   };
 }

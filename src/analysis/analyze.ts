@@ -98,7 +98,11 @@ function modelSummary(model: Model): Results["model"] {
 }
 
 /** Settings every pass used, for the methods section and `verify`. */
-function settingsOf(options: AnalysisOptions, portraitHorizon: number): Results["settings"] {
+function settingsOf(
+  options: AnalysisOptions,
+  portraitHorizon: number,
+  basinHorizon: number,
+): Results["settings"] {
   return {
     equilibria: options.equilibria,
     singularities: {
@@ -112,7 +116,7 @@ function settingsOf(options: AnalysisOptions, portraitHorizon: number): Results[
     field: options.field,
     trajectories: {
       ...options.trajectories,
-      integrator: "odex (Hairer's GBS extrapolation, dense output)",
+      integrator: "odex (Hairer's GBS extrapolation, dense output); RODAS where a stretch is stiff",
       relativeTolerance: TRAJECTORY_RELATIVE_TOL,
       absoluteToleranceOfWindow: TRAJECTORY_ABSOLUTE_TOL_OF_WIDTH,
       portraitHorizon,
@@ -122,7 +126,7 @@ function settingsOf(options: AnalysisOptions, portraitHorizon: number): Results[
       integrator: "Dormand–Prince 5(4), generated for the model",
       relativeTolerance: BASIN_RELATIVE_TOL,
       absoluteToleranceOfWindow: BASIN_ABSOLUTE_TOL_OF_WIDTH,
-      horizon: portraitHorizon,
+      horizon: basinHorizon,
     },
   };
 }
@@ -166,7 +170,11 @@ function analyzeFlows(
   progress?.("trajectories", 1, 3);
   const longest = Math.max(0, ...model.spec.scenarios.map((s) => s.horizon));
   const timeScale = flowTimeScale(equilibria);
-  const portraitHorizon = Math.max(longest, PORTRAIT_TIME_SCALES * timeScale);
+  // the portrait's own horizon, from the flow's time scale: a scenario's horizon of 1e12 around
+  // a centre would have every portrait trajectory and separatrix wind to it
+  const portraitHorizon = PORTRAIT_TIME_SCALES * timeScale;
+  // a basin cell's fate must agree with a scenario's from the same start: up to the longest horizon
+  const basinHorizon = Math.max(longest, portraitHorizon);
   const separatrices = findSeparatrices(
     model,
     equilibria,
@@ -189,7 +197,17 @@ function analyzeFlows(
     singularPoints,
   );
   progress?.("trajectories", 3, 3);
-  return { box, registry, scenarios, separatrices, trajectories, portraitHorizon, timeScale, singularPoints };
+  return {
+    box,
+    registry,
+    scenarios,
+    separatrices,
+    trajectories,
+    portraitHorizon,
+    basinHorizon,
+    timeScale,
+    singularPoints,
+  };
 }
 
 /** What steps 1–8 give: everything but the basin map, plus the basin map's plan. */
@@ -220,8 +238,17 @@ function* analyzeCore(
 
   // 3. scenario trajectories, 4. separatrices, 5. portrait trajectories
   const flows = analyzeFlows(model, equilibria, singularities, options, diagnostics, progress);
-  const { box, registry, scenarios, separatrices, trajectories, portraitHorizon, timeScale, singularPoints } =
-    flows;
+  const {
+    box,
+    registry,
+    scenarios,
+    separatrices,
+    trajectories,
+    portraitHorizon,
+    basinHorizon,
+    timeScale,
+    singularPoints,
+  } = flows;
 
   // 6. deciding conditions: symbolic invasion rates, then thresholds by continuation and outcome
   // intervals (one task per study), then the outcome maps level by level, as tasks the driver runs
@@ -247,7 +274,7 @@ function* analyzeCore(
     equilibria,
     registry.cycles,
     box,
-    portraitHorizon,
+    basinHorizon,
     timeScale,
     options.basins,
     diagnostics,
@@ -273,7 +300,7 @@ function* analyzeCore(
     claims,
     assumptions,
     diagnostics,
-    settings: settingsOf(options, portraitHorizon),
+    settings: settingsOf(options, portraitHorizon, basinHorizon),
   };
   return { results, plan };
 }

@@ -269,7 +269,7 @@ export const RECURRENCE_MIN_RADIUS = 1e-3;
 /** Crossings of one ray needed at the horizon to see gaps shrink steadily (three gaps). */
 export const SLOW_RECURRENCE_CROSSINGS = 4;
 
-/** Portrait trajectories, separatrices and basin trajectories run this many slowest time scales (or the longest scenario horizon, if longer). */
+/** Portrait trajectories and separatrices run this many slowest time scales; basin trajectories as long, or to the longest scenario horizon if longer. */
 export const PORTRAIT_TIME_SCALES = 60;
 /** Portrait seeds and stored points: enough to draw the portrait, few enough to keep results.json small. */
 export const DEFAULT_TRAJECTORY_OPTIONS: TrajectoryOptions = {

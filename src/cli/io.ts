@@ -145,6 +145,8 @@ const OUTPUT_PATH_REASONS: Record<string, string> = {
   EACCES: "permission denied",
   EPERM: "permission denied",
   EROFS: "the file system is read-only",
+  // a name in --out longer than the file system allows (255 bytes on most): the user's path
+  ENAMETOOLONG: "a name in the path is too long for the file system",
 };
 
 function outputError(path: string, err: unknown): unknown {

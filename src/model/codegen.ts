@@ -79,6 +79,9 @@ function emitOperator(
   options: CodegenOptions,
   emit: (m: MathNode) => string,
 ): string {
+  // before the arguments are emitted: emitPow emits them itself, and emitting them here as well
+  // would double the work at every level of a power tower (u^u^…^u, 2^depth)
+  if (node.fn === "pow") return emitPow(node.args[0], node.args[1], emit);
   const args = node.args.map(emit);
   switch (node.fn) {
     case "add":
@@ -100,16 +103,15 @@ function emitOperator(
       return `(-${args[0]})`;
     case "unaryPlus":
       return args[0];
-    case "pow":
-      return emitPow(node.args[0], node.args[1], emit);
   }
   throw new Error(`unexpected operator ${node.fn}`);
 }
 
 function emitFunction(node: FunctionNode, emit: (m: MathNode) => string): string {
   const name = node.fn.name;
-  const args = node.args.map(emit);
+  // as in emitOperator: emitPow emits the arguments itself, once
   if (name === "pow") return emitPow(node.args[0], node.args[1], emit);
+  const args = node.args.map(emit);
   if (name === "sech") return `(1 / Math.cosh(${args[0]}))`;
   if (name === "sec") return `(1 / Math.cos(${args[0]}))`;
   if (name === "csc") return `(1 / Math.sin(${args[0]}))`;

@@ -83,6 +83,9 @@ function suggestKey(key: string, known: string[]): string | null {
   let best: string | null = null;
   let bestDistance = Infinity;
   for (const candidate of known) {
+    // the distance is at least the difference in length: a far longer key is no typo, and its
+    // table (length × length) is not worth building
+    if (Math.abs(key.length - candidate.length) > MAX_SUGGESTION_EDITS) continue;
     const distance = editDistance(key.toLowerCase(), candidate.toLowerCase());
     if (distance < bestDistance && distance <= MAX_SUGGESTION_EDITS && distance < candidate.length / 2) {
       best = candidate;

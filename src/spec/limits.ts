@@ -65,7 +65,7 @@ function decodeKey(raw: string): string {
  * Every limit exceeded, and every key repeated within one object (JSON.parse keeps the last
  * silently, so a spec would read one way in an editor and be analysed another), as issues with
  * their JSON paths. Stops at the first excess of depth, which would make every later path
- * meaningless. Malformed JSON is left to the parser: the scan gives up quietly where it loses
+ * meaningless, and at the first over-long key, which every later path would repeat. Malformed JSON is left to the parser: the scan gives up quietly where it loses
  * its way.
  */
 export function findLimitIssues(text: string): SpecIssue[] {
@@ -80,8 +80,18 @@ export function findLimitIssues(text: string): SpecIssue[] {
       if (end < 0) return issues;
       const top = stack[stack.length - 1];
       if (expectKey && top?.kind === "object") {
-        const key = decodeKey(text.slice(i, end + 1));
         top.key = null; // the path of the object itself, not of its previous key
+        // a key is a string too: refused at the object's path, and the scan stops, so no message
+        // (a later path, a repeat of it) prints the key
+        if (end - i - 1 > SPEC_MAX_STRING) {
+          issues.push({
+            code: "limit_string",
+            path: pathOf(stack),
+            message: messages.stringTooLong(end - i - 1, SPEC_MAX_STRING),
+          });
+          return issues;
+        }
+        const key = decodeKey(text.slice(i, end + 1));
         const first = top.keys.get(key);
         if (first !== undefined) {
           const a = lineColumnAt(text, first),

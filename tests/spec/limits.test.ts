@@ -41,6 +41,13 @@ describe("parseSpecText on hostile sizes and shapes", () => {
     expect(parseSpecText(JSON.stringify(spec)).ok).toBe(true);
   });
 
+  it("parseSpecText(a key one character over SPEC_MAX_STRING) refuses it at its object, without repeating it", () => {
+    const key = "k".repeat(SPEC_MAX_STRING + 1);
+    const issues = issuesOf(BASE_TEXT.replace(/}\s*$/, `, "x": { "${key}": 1 } }`));
+    expect(issues.map((i) => [i.code, i.path])).toEqual([["limit_string", ["x"]]]);
+    expect(issues[0].message).not.toContain(key.slice(0, 100));
+  });
+
   it("parseSpecText(an array of SPEC_MAX_ARRAY + 1 cautions) refuses it at cautions", () => {
     const spec = JSON.parse(BASE_TEXT) as { cautions?: string[] };
     spec.cautions = Array.from({ length: SPEC_MAX_ARRAY + 1 }, () => "c");

@@ -20,6 +20,8 @@ describe("text that acts instead of showing", () => {
   it("showInvisible writes ESC, a right-to-left override and a zero-width space out, and keeps tab, newline and accents", () => {
     expect(showInvisible("a\u001b[31mb\u202Ec\u200Bd")).toBe("a⟨U+001B⟩[31mb⟨U+202E⟩c⟨U+200B⟩d");
     expect(showInvisible("tab\there\nnext é ü")).toBe("tab\there\nnext é ü");
+    // line and paragraph separators (The Unicode Standard, §5.8, from memory): no break in HTML
+    expect(showInvisible("a\u2028b\u2029c")).toBe("a⟨U+2028⟩b⟨U+2029⟩c");
   });
 
   it("check(a title with an escape sequence and an override) prints them visibly, never raw", () => {

@@ -406,6 +406,7 @@ describe("labels from the spec", () => {
     const raw = JSON.parse(specText("reservoir-competition"));
     raw.states[0].label = 'perch <script>alert("x")</script> & co';
     raw.states[1].unit = "fish & fry";
+    raw.states[1].label = "pike, see url(https://example.invalid/pike)";
     raw.scenarios[0].name = "survey<b>&1";
     delete raw.claims; // they name the scenario by its old name
     const ex = runExample(JSON.stringify(raw));
@@ -418,6 +419,8 @@ describe("labels from the spec", () => {
     expect(portrait).toContain("perch &lt;script&gt;alert(");
     expect(portrait).toContain("&lt;/script&gt; &amp; co, N (fish)");
     expect(portrait).toContain("fish &amp; fry");
+    expect(portrait).toContain("see url(https://example.invalid/pike)"); // as text only
+    expect(portrait).not.toMatch(/<[^>]*(?<!aria-label)="[^"]*url\(/);
     expect(portrait).toContain("survey&lt;b&gt;&amp;1");
   });
 });

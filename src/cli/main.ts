@@ -156,7 +156,7 @@ function buildProgram(): Command {
     .addOption(
       new Option(
         "-j, --jobs <n>",
-        `threads for heavy passes, this one and n − 1 workers (default: available cores, here ${availableParallelism()})`,
+        `threads for heavy passes, this one and n − 1 workers (default and most: available cores, here ${availableParallelism()})`,
       )
         .env("KEEL_JOBS")
         .argParser(parseJobs),

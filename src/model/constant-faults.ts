@@ -1,7 +1,7 @@
 import { isConstantNode, isOperatorNode, isSymbolNode, type MathNode } from "mathjs";
 import type { SpecIssue } from "../diagnostics/issue.js";
 import { messages, type ConstantFaultReason } from "../diagnostics/messages.js";
-import { isVariable, mentions } from "./simplify.js";
+import { isVariable, mentionsIndex } from "./simplify.js";
 
 /**
  * Terms of an equation that cannot be evaluated whatever the state: a constant part that is not a
@@ -10,9 +10,6 @@ import { isVariable, mentions } from "./simplify.js";
  * term, rather than a fault met mid-analysis. Trouble that depends on the state (a pole, a root of
  * a negative state) is the analysis's to report where it occurs.
  */
-/** Whether a subtree mentions a state or parameter (a call's function name is no variable). */
-const hasSymbol = (node: MathNode) => mentions(node, isVariable);
-
 /** The value of a constant subtree, folded by mathjs (only the whitelisted grammar reaches here). */
 function foldConstant(node: MathNode): number {
   try {
@@ -30,6 +27,8 @@ export function findConstantFault(
 ): { term: string; reason: ConstantFaultReason } | null {
   let found: { term: string; reason: ConstantFaultReason } | null = null;
   const reasonOf = (value: number): ConstantFaultReason => (Number.isNaN(value) ? "not-real" : "overflow");
+  // whether a subtree mentions a state or parameter (a call's function name is no variable)
+  const hasSymbol = mentionsIndex(root, isVariable);
   root.traverse((node) => {
     if (found || isSymbolNode(node)) return;
     if (isOperatorNode(node) && node.fn === "divide" && !hasSymbol(node.args[1])) {

@@ -74,6 +74,33 @@ export const mentions = (node: MathNode, test: (name: string) => boolean) =>
   node.filter((m) => isSymbolNode(m) && test(m.name)).length > 0;
 
 /**
+ * `mentions` for every subtree of `root`, found in one post-order pass: asking each node in turn
+ * costs the tree's size times its depth (a derivative of a power tower of 400: 30 s). Iterative,
+ * so a deep tree does not recurse; subtrees shared by several parents are visited once.
+ */
+export function mentionsIndex(root: MathNode, test: (name: string) => boolean): (node: MathNode) => boolean {
+  const memo = new Map<MathNode, boolean>();
+  const stack: { node: MathNode; expanded: boolean }[] = [{ node: root, expanded: false }];
+  while (stack.length > 0) {
+    const top = stack.pop()!;
+    if (memo.has(top.node)) continue;
+    if (!top.expanded) {
+      stack.push({ node: top.node, expanded: true });
+      top.node.forEach((child: MathNode) => {
+        if (!memo.has(child)) stack.push({ node: child, expanded: false });
+      });
+      continue;
+    }
+    let found = isSymbolNode(top.node) && test(top.node.name);
+    top.node.forEach((child: MathNode) => {
+      found ||= memo.get(child)!;
+    });
+    memo.set(top.node, found);
+  }
+  return (node) => memo.get(node) ?? mentions(node, test);
+}
+
+/**
  * Runs `transform` on the tree with each maximal subtree that mentions no kept symbol held as one
  * opaque symbol (H0, H1, …), then puts the subtrees back: the cost of simplifying or rationalizing
  * then grows with the tree's structure in the kept symbols, not with how many other names a
@@ -85,10 +112,11 @@ export function withOpaqueParts(
   transform: (tree: MathNode) => MathNode,
 ): MathNode {
   const held: MathNode[] = [];
+  const mentionsKept = mentionsIndex(node, kept);
+  const mentionsVariable = mentionsIndex(node, isVariable);
   // only parts that name a variable are held: the simplifier must still fold plain numbers (2 − 1)
   const opaque = node.transform((m: MathNode) => {
-    if (isSymbolNode(m) || m.type === "ConstantNode" || mentions(m, kept) || !mentions(m, isVariable))
-      return m;
+    if (isSymbolNode(m) || m.type === "ConstantNode" || mentionsKept(m) || !mentionsVariable(m)) return m;
     held.push(m);
     return new SymbolNode(`H${held.length - 1}`);
   });

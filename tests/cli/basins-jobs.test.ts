@@ -11,6 +11,7 @@ import {
   type ParameterTaskRunner,
 } from "../../src/analysis/parameters/tasks.js";
 import { compileModel } from "../../src/model/compile.js";
+import { threadsFor } from "../../src/cli/commands/run.js";
 import { CLI_ENTRY, removeWorkDirs, runKeel } from "../fixtures/cli.js";
 import { EXAMPLE_IDS, exampleSpec } from "../fixtures/examples.js";
 
@@ -134,5 +135,16 @@ describe("analyzeAsync with parameter tasks run out of order on a second compila
     expect(direct.conditions.studies.length).toBeGreaterThan(0);
     expect(direct.conditions.maps.length).toBe(1);
     expect(JSON.stringify(elsewhere)).toBe(JSON.stringify(direct));
+  });
+});
+
+describe("threadsFor", () => {
+  it("threadsFor(jobs, cores) takes --jobs up to the core count and one per core by default", () => {
+    expect(threadsFor(undefined, 2)).toBe(2);
+    expect(threadsFor(1, 2)).toBe(1);
+    expect(threadsFor(2, 2)).toBe(2);
+    // --jobs 64 on two cores: two threads, not 63 workers fighting for them
+    expect(threadsFor(64, 2)).toBe(2);
+    expect(threadsFor(undefined, 0)).toBe(1);
   });
 });

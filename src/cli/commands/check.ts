@@ -3,6 +3,17 @@ import { CliExit, EXIT, inputError, makeProgress, readSpecFile, type CommonOptio
 import { runAnalysis } from "./run.js";
 import { claimEvidenceWords, claimReferenceWords, stateTerms } from "../../report/words/index.js";
 
+/**
+ * Longest expression the summary prints in full: a derivative can be far longer than its equation
+ * (a power tower of 400 levels: 600 000 characters), which helps no reader of a terminal.
+ */
+const SUMMARY_MAX_EXPRESSION_CHARS = 400;
+
+const shown = (text: string) =>
+  text.length <= SUMMARY_MAX_EXPRESSION_CHARS
+    ? text
+    : `(an expression of ${text.length} characters, not printed)`;
+
 /** `keel check SPEC`: validate and print a model summary. */
 export function runCheck(file: string): string {
   const prepared = prepareModel(readSpecFile(file));
@@ -15,14 +26,14 @@ export function runCheck(file: string): string {
     ...model.equations.map((e, i) => {
       const s = spec.states[i];
       const w = spec.window[s.name];
-      return `  d${s.name}/dt = ${e.text}    window [${w[0]}, ${w[1]}]${s.unit ? " " + s.unit : ""}`;
+      return `  d${s.name}/dt = ${shown(e.text)}    window [${w[0]}, ${w[1]}]${s.unit ? " " + s.unit : ""}`;
     }),
     `parameters: ${spec.parameters.length ? spec.parameters.map((p) => `${p.name} = ${p.value}${p.unit ? " " + p.unit : ""}`).join(", ") : "none"}`,
     "Jacobian:",
     ...model.jacobian.map(
       (row, i) =>
         `  d(d${spec.states[i].name}/dt): ` +
-        row.map((e, j) => `∂/∂${spec.states[j].name} = ${e.text}`).join("; "),
+        row.map((e, j) => `∂/∂${spec.states[j].name} = ${shown(e.text)}`).join("; "),
     ),
     `scenarios: ${spec.scenarios.map((s) => s.name).join(", ") || "none"}`,
     `assumptions: ${spec.assumptions.length} (${model.assumptionConditions.length} machine-checkable)`,

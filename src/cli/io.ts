@@ -20,7 +20,7 @@ import { messages } from "../diagnostics/messages.js";
 import { SPEC_MAX_BYTES } from "../spec/limits.js";
 
 /** 4: the dossier was written but Chromium, though found, could not print its PDF. */
-export const EXIT = { ok: 0, internal: 1, input: 2, contradicted: 3, noPdf: 4 } as const;
+export const EXIT = { ok: 0, internal: 1, input: 2, contradicted: 3, noPdf: 4, timeLimit: 5 } as const;
 
 /** A failure already explained to the user, carrying its exit code. */
 export class CliExit extends Error {
@@ -201,11 +201,12 @@ export function writeFileAtomic(path: string, content: string | Uint8Array): voi
   }
 }
 
-/** Progress on stderr, only when it is a terminal and not silenced. */
-/** The options every command takes from the program: --quiet, --jobs, and --profile's clock. */
+/** The options every command takes from the program: --quiet, --jobs, --time-limit and --profile's clock. */
 export interface CommonOptions {
   quiet: boolean;
   jobs?: number;
+  /** The analysis's wall-clock limit in seconds; null for none. */
+  timeLimit: number | null;
   clock?: StageClock;
 }
 
@@ -215,15 +216,24 @@ export function makeProgress(quiet: boolean, clock?: StageClock): ProgressReport
   return clock ? clock.observe(bar) : bar;
 }
 
+/** Progress on stderr, only when it is a terminal and not silenced. */
 function progressBar(quiet: boolean): ProgressReporter | undefined {
   if (quiet || !process.stderr.isTTY) return undefined;
   let last = "";
+  let stageNow = "";
+  let stageSince = performance.now();
+  // the same event sent again (the supervisor's heartbeat) redraws the stage's elapsed time
   return (stage, done, total) => {
+    if (stage !== stageNow) {
+      stageNow = stage;
+      stageSince = performance.now();
+    }
     const width = 24;
     const filled = total > 0 ? Math.round((width * done) / total) : width;
-    const line = `${stage.padEnd(14)} [${"#".repeat(filled)}${".".repeat(width - filled)}] ${done}/${total}`;
+    const seconds = Math.floor((performance.now() - stageSince) / 1000);
+    const line = `${stage.padEnd(14)} [${"#".repeat(filled)}${".".repeat(width - filled)}] ${done}/${total}  ${seconds} s`;
     if (line === last) return;
     last = line;
-    process.stderr.write(`\r${line}${done >= total ? "\n" : ""}`);
+    process.stderr.write(`\r${line}\x1b[K${done >= total ? "\n" : ""}`);
   };
 }

@@ -4,10 +4,18 @@ import { buildSpecJsonSchema } from "../spec/schema.js";
 import { messages } from "../diagnostics/messages.js";
 import { CliExit, EXIT, inputError, readSpecFile, type CommonOptions } from "./io.js";
 import { StageClock } from "./profile.js";
+import { DEFAULT_TIME_LIMIT_SECONDS } from "./supervisor.js";
 import { parseSpecText } from "../spec/parse.js";
 import { availableParallelism } from "node:os";
 import { readFileSync } from "node:fs";
 import { fileURLToPath } from "node:url";
+
+function parseTimeLimit(value: string): number {
+  const seconds = Number(value);
+  if (value.trim() === "" || !Number.isFinite(seconds) || seconds < 0)
+    throw new InvalidArgumentError(messages.timeLimitInvalid());
+  return seconds;
+}
 
 function parseJobs(value: string): number {
   const n = Number(value);
@@ -35,7 +43,13 @@ function clockOf(program: Command): StageClock | undefined {
 
 /** The program-level options every command passes on. */
 function commonOptions(program: Command): CommonOptions {
-  return { quiet: Boolean(program.opts().quiet), jobs: program.opts().jobs, clock: clockOf(program) };
+  const limit = (program.opts().timeLimit as number | undefined) ?? DEFAULT_TIME_LIMIT_SECONDS;
+  return {
+    quiet: Boolean(program.opts().quiet),
+    jobs: program.opts().jobs,
+    timeLimit: limit === 0 ? null : limit,
+    clock: clockOf(program),
+  };
 }
 
 function addCheckCommand(program: Command): void {
@@ -160,6 +174,14 @@ function buildProgram(): Command {
       )
         .env("KEEL_JOBS")
         .argParser(parseJobs),
+    )
+    .addOption(
+      new Option(
+        "--time-limit <seconds>",
+        `stop an analysis that runs longer, writing nothing (exit ${EXIT.timeLimit}); 0 for no limit (default: ${DEFAULT_TIME_LIMIT_SECONDS})`,
+      )
+        .env("KEEL_TIME_LIMIT")
+        .argParser(parseTimeLimit),
     )
     .exitOverride()
     .showHelpAfterError(false);

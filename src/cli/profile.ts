@@ -1,6 +1,11 @@
 import type { ProgressReporter } from "../analysis/analyze.js";
 import type { ParameterTask } from "../analysis/parameters/tasks.js";
 
+/** Where a parameter task's own time goes (the stage clock, or a message to it from another thread). */
+export interface TaskTimer {
+  task(name: string, ms: number): void;
+}
+
 /** A stage's or task's wall time, in first-seen order. */
 interface Timing {
   name: string;
@@ -12,7 +17,7 @@ interface Timing {
  * (a stage runs from its first event to the first event of another), plus each parameter task's
  * own time as the thread that ran it measured it. Only cli/ reads the clock.
  */
-export class StageClock {
+export class StageClock implements TaskTimer {
   private readonly stages: Timing[] = [];
   private readonly tasks: Timing[] = [];
   private current: Timing | null = null;

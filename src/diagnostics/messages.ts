@@ -7,6 +7,12 @@ const CONSTANT_FAULT_WORDS: Record<ConstantFaultReason, string> = {
 
 /** Every user-facing message, as a function, so wording lives in one place. */
 export const messages = {
+  timeLimitReached: (seconds: number, last: { stage: string; done: number; total: number } | null) =>
+    `the analysis passed its time limit of ${seconds} s` +
+    (last ? ` in the stage "${last.stage}" (${last.done} of ${last.total} done)` : "") +
+    "; nothing was written. Raise the limit with --time-limit SECONDS (or KEEL_TIME_LIMIT; 0 for none), " +
+    "or ask for less work in the spec's analysis block (basins.resolution, parameters, parameterPairs)",
+  timeLimitInvalid: () => "expected a number of seconds of at least 0 (0 for no limit)",
   jsonSyntax: (detail: string, line: number, column: number) =>
     `the file is not valid JSON (line ${line}, column ${column}): ${detail}`,
   // JSON faults found by spec/json-locate.ts (the engine's own messages omit the position of some)

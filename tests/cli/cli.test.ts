@@ -116,6 +116,29 @@ describe("keel usage errors exit 2 with a message and no stack trace", () => {
     expectUsageError(runKeel(["check"]), /missing required argument 'spec'/);
   });
 
+  it("keel --time-limit -1 (or 'soon') analyze SPEC exits 2 naming the option", () => {
+    for (const value of ["-1", "soon"])
+      expectUsageError(
+        runKeel(["--time-limit", value, "analyze", "spec.json"], {
+          files: { "spec.json": examples[0].text },
+        }),
+        /--time-limit/,
+      );
+  });
+
+  it("keel --time-limit 1 analyze SPEC stops at the limit with exit 5, names the stage, and writes nothing", () => {
+    // the example's analysis takes several seconds, so a limit of one second is passed mid-run
+    const run = runKeel(["--time-limit", "1", "analyze", "spec.json", "--out", "out"], {
+      files: { "spec.json": examples[0].text },
+    });
+    expect(run.status, run.stderr).toBe(5);
+    expect(run.stderr).toMatch(
+      /passed its time limit of 1 s in the stage "[a-z ]+" \(\d+ of \d+ done\); nothing was written/,
+    );
+    expect(run.stderr).not.toMatch(STACK_FRAME);
+    expect(listFiles(run.cwd)).toEqual(["spec.json"]);
+  });
+
   it("keel --jobs 0 check SPEC exits 2", () => {
     expectUsageError(
       runKeel(["--jobs", "0", "check", "spec.json"], { files: { "spec.json": examples[0].text } }),

@@ -1,5 +1,5 @@
 import { join } from "node:path";
-import { runAnalysis } from "./run.js";
+import { analyzeSupervised } from "../supervisor.js";
 import { serializeResults } from "../../report/archive/serialize.js";
 import { checkOutputFolder, inputError, makeProgress, readSpecFile, type CommonOptions } from "../io.js";
 import { declaredId, withOutputFolder } from "../out-folder.js";
@@ -17,12 +17,7 @@ export async function runAnalyze(file: string, options: AnalyzeOptions): Promise
   const dir = options.out ?? join("out", id ?? "");
   // results.json alone is written, in place: the lock keeps a concurrent build from mixing in
   return withOutputFolder(dir, id, "in-place", async (folder) => {
-    const output = await runAnalysis(
-      specText,
-      options.jobs,
-      makeProgress(options.quiet, options.clock),
-      options.clock,
-    );
+    const output = await analyzeSupervised(specText, options, makeProgress(options.quiet, options.clock));
     if (!output.ok) throw inputError(output.issues, file);
     return folder.commit(new Map([["results.json", serializeResults(output.value.results)]]))[0];
   });

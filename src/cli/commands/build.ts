@@ -1,7 +1,7 @@
 import { createHash } from "node:crypto";
 import { join } from "node:path";
 import { createRequire } from "node:module";
-import { runAnalysis } from "./run.js";
+import { analyzeSupervised } from "../supervisor.js";
 import { serializeResults } from "../../report/archive/serialize.js";
 import { buildDossier, type Dossier } from "../../report/dossier.js";
 import type { Results } from "../../analysis/types.js";
@@ -220,7 +220,7 @@ export async function runBuild(file: string, options: BuildOptions): Promise<Bui
   const id = declaredId(specText);
   const dir = options.out ?? join("out", id ?? "");
   return withOutputFolder(dir, id, options.force ? "force" : "replace", async (folder) => {
-    const output = await runAnalysis(specText, options.jobs, progress, options.clock);
+    const output = await analyzeSupervised(specText, options, progress);
     if (!output.ok) throw inputError(output.issues, file);
     const { spec, results } = output.value;
     const runSeconds = reproducible ? null : (performance.now() - started) / 1000;

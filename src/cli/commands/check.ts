@@ -1,6 +1,6 @@
 import { prepareModel } from "../../pipeline.js";
 import { CliExit, EXIT, inputError, makeProgress, readSpecFile, type CommonOptions } from "../io.js";
-import { runAnalysis } from "./run.js";
+import { analyzeSupervised } from "../supervisor.js";
 import { claimEvidenceWords, claimReferenceWords, stateTerms } from "../../report/words/index.js";
 
 /**
@@ -53,12 +53,7 @@ export async function runCheckClaims(
   if (!prepared.ok) throw inputError(prepared.issues, file);
   if (prepared.value.spec.claims.length === 0)
     throw new CliExit(EXIT.input, `error: ${file} states no claims (add a "claims" list to the spec)`);
-  const output = await runAnalysis(
-    text,
-    options.jobs,
-    makeProgress(options.quiet, options.clock),
-    options.clock,
-  );
+  const output = await analyzeSupervised(text, options, makeProgress(options.quiet, options.clock));
   if (!output.ok) throw inputError(output.issues, file);
   const claims = output.value.results.claims;
   const states = stateTerms(prepared.value.spec.states);

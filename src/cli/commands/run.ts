@@ -6,20 +6,34 @@ import { instantiateBasinKernel } from "../../analysis/basins/kernel.js";
 import type { BatchEvaluator } from "../../analysis/basins/refine.js";
 import { runParameterTask, type ParameterTaskRunner } from "../../analysis/parameters/tasks.js";
 import { createAnalysisPool } from "../pool.js";
-import { taskName, type StageClock } from "../profile.js";
+import { taskName, type TaskTimer } from "../profile.js";
 
-/** The basin map's batches, labelled in this thread. */
-function labelHere(source: string): BatchEvaluator {
-  const kernel = instantiateBasinKernel(source);
-  return async (starts) => {
-    const out = new Int32Array(starts.length / 2);
-    kernel(starts, out);
-    return out;
+/** Starts labelled between two progress events when the basin map runs in this thread (as the pool's task size). */
+const STARTS_PER_PROGRESS = 512;
+
+/** The basin map's batches, labelled in this thread, with progress by STARTS_PER_PROGRESS starts. */
+function labelHere(progress?: ProgressReporter): (source: string) => BatchEvaluator {
+  let done = 0;
+  let total = 0;
+  return (source) => {
+    const kernel = instantiateBasinKernel(source);
+    return async (starts) => {
+      const count = starts.length / 2;
+      const out = new Int32Array(count);
+      total += count;
+      for (let first = 0; first < count; first += STARTS_PER_PROGRESS) {
+        const last = Math.min(count, first + STARTS_PER_PROGRESS);
+        kernel(starts.subarray(2 * first, 2 * last), out.subarray(first, last));
+        done += last - first;
+        progress?.("basin cells", done, total);
+      }
+      return out;
+    };
   };
 }
 
 /** The parameter tasks in this thread, in order, each timed for --profile. */
-function tasksHere(progress?: ProgressReporter, clock?: StageClock): ParameterTaskRunner {
+function tasksHere(progress?: ProgressReporter, clock?: TaskTimer): ParameterTaskRunner {
   return async (model, tasks) => {
     const stage = taskStage(tasks);
     progress?.(stage, 0, tasks.length);
@@ -50,11 +64,11 @@ export async function runAnalysis(
   specText: string,
   jobs: number | undefined,
   progress?: ProgressReporter,
-  clock?: StageClock,
+  clock?: TaskTimer,
 ): Promise<Parsed<PipelineOutput>> {
   const workers = threadsFor(jobs, availableParallelism());
   if (workers <= 1)
-    return runPipelineAsync(specText, labelHere, undefined, progress, tasksHere(progress, clock));
+    return runPipelineAsync(specText, labelHere(progress), undefined, progress, tasksHere(progress, clock));
   // this thread takes tasks too: it is warm from the nominal analysis, and a worker's start-up
   // (compiling the spec, a cold JIT) is then paid once fewer
   const pool = createAnalysisPool(workers - 1, {

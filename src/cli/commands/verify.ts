@@ -11,7 +11,7 @@ import { compareResults, VERIFY_ABS_TOL, VERIFY_REL_TOL } from "../../report/arc
 import { serializeResults } from "../../report/archive/serialize.js";
 import { hashSpec } from "../../spec/hash.js";
 import { CliExit, EXIT, makeProgress, type CommonOptions } from "../io.js";
-import { runAnalysis } from "./run.js";
+import { analyzeSupervised } from "../supervisor.js";
 import { confinedPath, manifestFiles } from "../archive-paths.js";
 
 export interface VerifyReport {
@@ -196,12 +196,7 @@ async function checkRerun(
 ): Promise<void> {
   const { lines, problems } = found;
   const archived = parseJson(resultsText, "results.json");
-  const output = await runAnalysis(
-    specText,
-    options.jobs,
-    makeProgress(options.quiet, options.clock),
-    options.clock,
-  );
+  const output = await analyzeSupervised(specText, options, makeProgress(options.quiet, options.clock));
   if (!output.ok) {
     problems.push("the archived spec no longer validates: " + output.issues.map((i) => i.message).join("; "));
     return;

@@ -9,7 +9,9 @@ const CONSTANT_FAULT_WORDS: Record<ConstantFaultReason, string> = {
 export const messages = {
   timeLimitReached: (seconds: number, last: { stage: string; done: number; total: number } | null) =>
     `the analysis passed its time limit of ${seconds} s` +
-    (last ? ` in the stage "${last.stage}" (${last.done} of ${last.total} done)` : "") +
+    (last
+      ? ` in the stage "${last.stage}" (${last.done} of ${last.total} done)`
+      : " before its first stage") +
     "; nothing was written. Raise the limit with --time-limit SECONDS (or KEEL_TIME_LIMIT; 0 for none), " +
     "or ask for less work in the spec's analysis block (basins.resolution, parameters, parameterPairs)",
   timeLimitInvalid: () => "expected a number of seconds of at least 0 (0 for no limit)",

@@ -678,6 +678,14 @@ export const STIFF_WINDOW_STEPS = 1024;
  * method would not cure.
  */
 export const STIFFNESS_RATIO = 1000;
+/**
+ * The tightest relative tolerance RODAS is run at; a tighter request (shooting asks 1e-12) has
+ * both tolerances scaled up to it. RODAS is of order 4, so its steps grow as tol^(-1/4) where
+ * odex's grow far more slowly: at 1e-12 one relaxation period of van der Pol at mu = 1000 takes
+ * over 100 000 steps (shooting's whole budget), at 1e-10 about 10 000, and the period and return
+ * point still agree to 1e-11 of the window (measured on that orbit).
+ */
+export const RODAS_MIN_RELATIVE_TOL = 1e-10;
 /** RODAS's first step when odex handed over before accepting one: the controller grows it sixfold a step. */
 export const RODAS_FIRST_STEP_OF_SCALE = 1e-6;
 /**

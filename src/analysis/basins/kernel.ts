@@ -12,7 +12,15 @@ import {
   STEP_MAX_GROWTH,
   STEP_MIN_SHRINK,
   STEP_SAFETY,
+  ROSENBROCK_MAX_GROWTH,
+  ROSENBROCK_MIN_SHRINK,
+  ROSENBROCK_SAFETY,
+  ROSENBROCK_SINGULAR_SHRINK,
+  RODAS_MIN_RELATIVE_TOL,
+  STIFFNESS_RATIO,
+  STIFF_WINDOW_STEPS,
 } from "../constants.js";
+import { RODAS_A, RODAS_C, RODAS_GAMMA } from "../numeric/rosenbrock.js";
 import {
   emitAlgebraicStep,
   emitCaptureTest,
@@ -31,6 +39,10 @@ import {
  * rules (flow/rules.ts) inlined with their constants: starts lie in the window, trajectories are
  * followed inside the feasible region. Written by hand because the general integrators
  * allocate per step and dominate the basin map's cost; it is validated against odex in tests.
+ * A start whose steps collapse in a stiff stretch (as numeric/stiff-switch.ts decides: a window
+ * of STIFF_WINDOW_STEPS accepted steps advancing less than one longest step, and the Jacobian's
+ * most negative eigenvalue at least STIFFNESS_RATIO over that step) goes on with RODAS
+ * (numeric/rosenbrock.ts's coefficients), generated here the same way, to its fate.
  *
  * The generated function has the signature (starts: Float64Array, out: Int32Array) => number,
  * labelling starts[2k], starts[2k+1] into out[k] and returning the total number of steps.
@@ -144,6 +156,60 @@ function emitTrialStep(f0: string, f1: string, atol: [number, number], rtol: num
       const sb = eb / (${L(atol[1])} + ${L(rtol)} * Math.max(Math.abs(y), Math.abs(yn)));`;
 }
 
+/**
+ * Kernel code for one RODAS trial step of size h from (x, y) (numeric/rosenbrock.ts: stages
+ * (I/(hγ) − J) u_i = f(y + Σ a_ij u_j) + Σ (c_ij/h) u_j, the 2×2 systems solved by Cramer's rule),
+ * giving (xn, yn), k7 = f there and the scaled error of u_6; a singular or non-finite system
+ * shrinks h and tries again.
+ */
+function emitRodasStep(f0: string, f1: string, jac: string[], atol: [number, number], rtol: number): string {
+  const L = literal;
+  const solve = (i: number, ra: string, rb: string) =>
+    `{ const q0 = ${ra}, q1 = ${rb}; u${i}a = (m11 * q0 - m01 * q1) * idet; u${i}b = (m00 * q1 - m10 * q0) * idet; }`;
+  const lines: string[] = [];
+  lines.push(`const diag = 1 / (h * ${L(RODAS_GAMMA)});`);
+  lines.push(
+    `let j00, j01, j10, j11; { const s0 = x, s1 = y; j00 = ${jac[0]}; j01 = ${jac[1]}; j10 = ${jac[2]}; j11 = ${jac[3]}; }`,
+  );
+  lines.push(`const m00 = diag - j00, m01 = -j01, m10 = -j10, m11 = diag - j11;`);
+  lines.push(`const det = m00 * m11 - m01 * m10;`);
+  lines.push(
+    `if (!(det !== 0 && det - det === 0)) { h *= ${L(ROSENBROCK_SINGULAR_SHRINK)}; if (h < ${L(KERNEL_MIN_STEP)}) { label = ${LABEL_UNDECIDED}; break; } continue; }`,
+  );
+  lines.push(`const idet = 1 / det;`);
+  lines.push(`let u0a, u0b, u1a, u1b, u2a, u2b, u3a, u3b, u4a, u4b, u5a, u5b, pa = x, pb = y;`);
+  for (let st = 0; st < 6; st++) {
+    const c = RODAS_C[st];
+    const cTerms = (comp: "a" | "b") => c.map((cj, j) => ` + ${L(cj)} * ih * u${j}${comp}`).join("");
+    if (st === 0) {
+      lines.push(`const ih = 1 / h;`);
+      lines.push(solve(0, "k1a", "k1b"));
+      continue;
+    }
+    const a = RODAS_A[Math.min(st, 4)];
+    const aTerms = (comp: "a" | "b") => a.map((aj, j) => ` + ${L(aj)} * u${j}${comp}`).join("");
+    // the sixth stage sits at the embedded solution: the fifth's point plus u_5
+    const extra = (comp: "a" | "b") => (st === 5 ? ` + u4${comp}` : "");
+    lines.push(
+      `{ const s0 = x${aTerms("a")}${extra("a")}, s1 = y${aTerms("b")}${extra("b")}; pa = s0; pb = s1; const g0 = ${f0}, g1 = ${f1}; ${solve(st, `g0${cTerms("a")}`, `g1${cTerms("b")}`)} }`,
+    );
+  }
+  lines.push(`xn = pa + u5a; yn = pb + u5b;`);
+  lines.push(`{ const s0 = xn, s1 = yn; k7a = ${f0}; k7b = ${f1}; }`);
+  lines.push(`sa = u5a / (${L(atol[0])} + ${L(rtol)} * Math.max(Math.abs(x), Math.abs(xn)));`);
+  lines.push(`sb = u5b / (${L(atol[1])} + ${L(rtol)} * Math.max(Math.abs(y), Math.abs(yn)));`);
+  return lines.join("\n        ");
+}
+
+/** Kernel code: whether the Jacobian at (x, y) is stiff over a step of `span` (as StiffnessWatch.isStiff, n = 2). */
+function emitStiffTest(jac: string[], span: number): string {
+  const L = literal;
+  return `(() => { const s0 = x, s1 = y; const a = ${jac[0]}, b = ${jac[1]}, c = ${jac[2]}, d = ${jac[3]};
+        const half = 0.5 * (a + d), disc = half * half - (a * d - b * c);
+        const low = disc > 0 ? half - Math.sqrt(disc) : half;
+        return low === low && -low * ${L(span)} >= ${L(STIFFNESS_RATIO)}; })()`;
+}
+
 /** The kernel's source for the attractors `targets`: starts in the window `box`, trajectories followed inside `bounds`. */
 export function generateBasinKernel(
   model: Model,
@@ -162,6 +228,12 @@ export function generateBasinKernel(
     atol1 = settings.absoluteOfWidth * w1;
   const rtol = settings.relativeTolerance;
   const maxStep = settings.horizon * MAX_STEP_OF_HORIZON;
+  const jac = model.jacobian.flatMap((row) =>
+    row.map((e) => emitExpression(e.node, { parameterValues: values })),
+  );
+  // RODAS at no tighter a tolerance than it reaches economically (as integrateFlow's switch)
+  const loosen = Math.max(1, RODAS_MIN_RELATIVE_TOL / rtol);
+  const stiffAtol: [number, number] = [atol0 * loosen, atol1 * loosen];
   return `${PRELUDE}
 ${KERNEL_HERMITE_HELPERS}
 return function basinKernel(starts, out) {
@@ -173,21 +245,32 @@ return function basinKernel(starts, out) {
     let k1a, k1b, k2a, k2b, k3a, k3b, k4a, k4b, k5a, k5b, k6a, k6b, k7a, k7b;
     { const s0 = x, s1 = y; k1a = ${f0}; k1b = ${f1}; }
     let xPrev = x, yPrev = y;
+    let stiff = false, windowT = 0, windowSteps = 0;
     ${perStart}
     for (;;) {
       if (!(k1a === k1a && k1b === k1b) || k1a === Infinity || k1a === -Infinity || k1b === Infinity || k1b === -Infinity) { label = outside > 0 ? ${LABEL_LEFT_WINDOW} : ${LABEL_UNDECIDED}; break; }
       if (t >= ${L(settings.horizon)} || steps >= ${settings.maxSteps}) { label = outside > 0 ? ${LABEL_LEFT_WINDOW} : ${LABEL_UNDECIDED}; break; }
       if (t + h > ${L(settings.horizon)}) h = ${L(settings.horizon)} - t;
-      ${emitTrialStep(f0, f1, [atol0, atol1], rtol)}
+      let xn, yn, sa, sb, factor;
+      if (!stiff) {
+      ${emitTrialStep(f0, f1, [atol0, atol1], rtol).replace(/const (xn|yn|sa|sb) = /g, "$1 = ")}
+      } else {
+        ${emitRodasStep(f0, f1, jac, stiffAtol, rtol * loosen)}
+      }
       const err = Math.sqrt(0.5 * (sa * sa + sb * sb));
       if (!(err === err)) { h *= ${L(NAN_STEP_SHRINK)}; if (h < ${L(KERNEL_MIN_STEP)}) { label = ${LABEL_UNDECIDED}; break; } continue; }
-      // step factor 0.9 err^(-1/5) through exp and log: V8's Math.pow costs several multiplies
-      const factor = err === 0 ? ${L(STEP_MAX_GROWTH)} : Math.min(${L(STEP_MAX_GROWTH)}, Math.max(${L(STEP_MIN_SHRINK)}, ${L(STEP_SAFETY)} * Math.exp(${L(STEP_ERROR_EXPONENT)} * Math.log(err))));
+      // step factor 0.9 err^(-1/5) (RODAS: -1/4) through exp and log: V8's Math.pow costs several multiplies
+      if (!stiff) factor = err === 0 ? ${L(STEP_MAX_GROWTH)} : Math.min(${L(STEP_MAX_GROWTH)}, Math.max(${L(STEP_MIN_SHRINK)}, ${L(STEP_SAFETY)} * Math.exp(${L(STEP_ERROR_EXPONENT)} * Math.log(err))));
+      else factor = err === 0 ? ${L(ROSENBROCK_MAX_GROWTH)} : Math.min(${L(ROSENBROCK_MAX_GROWTH)}, Math.max(${L(ROSENBROCK_MIN_SHRINK)}, ${L(ROSENBROCK_SAFETY)} * Math.exp(-0.25 * Math.log(err))));
       if (err > 1) { h *= Math.min(1, factor); continue; }
       xPrev = x; yPrev = y;
       const tPrev = t, hs = h, f0a = k1a, f0b = k1b;
       t += h; x = xn; y = yn; k1a = k7a; k1b = k7b; steps++;
       h = Math.min(h * factor, ${L(maxStep)});
+      if (!stiff && ++windowSteps >= ${STIFF_WINDOW_STEPS}) {
+        if (t - windowT < ${L(maxStep)} && ${emitStiffTest(jac, maxStep)}) stiff = true;
+        windowT = t; windowSteps = 0;
+      }
       ${emitSingularTests(targets.singular, box.width)}
       ${emitStepOutside(bounds, box.width)}
       if (${emitHasLeftWindow("off")} && outside === 0) tExit = tPrev;

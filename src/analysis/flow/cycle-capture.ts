@@ -1,7 +1,7 @@
 import type { Model } from "../../model/types.js";
 import { boundsOf, type Box } from "../numeric/window.js";
 import type { CycleCapture, CycleResult, SolvedOrbit } from "./cycles.js";
-import { returnMap, staysInside, type Return, type Section } from "./section.js";
+import { returnAccuracyScale, returnMap, staysInside, type Return, type Section } from "./section.js";
 import {
   CYCLE_CAPTURE_FIRST_OFFSET,
   CYCLE_MIN_EXTENT,
@@ -89,8 +89,10 @@ export function findCycleCapture(
     if (!ret || !inside(ret)) return null;
     const g = ret.r - r;
     if (kind === "family") return Math.abs(g) <= SHOOT_ACCEPT_TOL ? ret : null;
-    // moves towards r* without passing it: no other fixed point between (sampled)
-    return Math.sign(g) === Math.sign(rStar - r) && Math.abs(g) < Math.abs(rStar - r) ? ret : null;
+    // moves towards r* without passing it (by more than the returns' accuracy, which a strongly
+    // contracting cycle's returns scatter within): no other fixed point between (sampled)
+    const slack = SHOOT_ACCEPT_TOL * returnAccuracyScale(ret);
+    return Math.sign(g) === Math.sign(rStar - r) && Math.abs(g) < Math.abs(rStar - r) + slack ? ret : null;
   };
   // the ray runs to the feasible region's edge, or as far as a return may stray past the window
   const rEdge =

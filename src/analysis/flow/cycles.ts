@@ -1,7 +1,7 @@
 import type { Model } from "../../model/types.js";
 import type { Recurrence, TrajectoryPath } from "./follow.js";
 import type { Box } from "../numeric/window.js";
-import { returnMap, type Return, type Section } from "./section.js";
+import { returnAccuracyScale, returnMap, type Return, type Section } from "./section.js";
 import {
   CYCLE_MIN_EXTENT,
   FAMILY_PROBE,
@@ -93,9 +93,10 @@ function stabilityOf(
 function shoot(section: Section, r0: number, period: number): { r: number; period: number } | null {
   const p0 = returnMap(section, r0, period, "solve");
   if (!p0) return null;
+  const tol = SHOOT_RESIDUAL_TOL * returnAccuracyScale(p0);
   let g0 = p0.r - r0;
   let r1 = r0 * (1 + SHOOT_SECANT_OFFSET);
-  for (let it = 0; it < SHOOT_MAX_ITERATIONS && Math.abs(g0) > SHOOT_RESIDUAL_TOL; it++) {
+  for (let it = 0; it < SHOOT_MAX_ITERATIONS && Math.abs(g0) > tol; it++) {
     const p1 = returnMap(section, r1, period, "solve");
     if (!p1) return null;
     const g1 = p1.r - r1;
@@ -107,12 +108,12 @@ function shoot(section: Section, r0: number, period: number): { r: number; perio
     period = p1.period;
     r1 = r2;
   }
-  return { r: Math.abs(g0) <= SHOOT_RESIDUAL_TOL ? r0 : r1, period };
+  return { r: Math.abs(g0) <= tol ? r0 : r1, period };
 }
 
 /** The return map's slope at r by central differences, in forward time for the section's direction. */
-function returnSlope(section: Section, r: number, period: number): number {
-  const h = RETURN_SLOPE_OFFSET;
+function returnSlope(section: Section, r: number, period: number, scale: number): number {
+  const h = RETURN_SLOPE_OFFSET * scale;
   const plus = returnMap(section, r + h, period, "solve");
   const minus = returnMap(section, r - h, period, "solve");
   return plus && minus ? (plus.r - minus.r) / (2 * h) : NaN;
@@ -131,7 +132,8 @@ export function acceptOrbit(section: Section, around: string, rStar: number, per
   const final = returnMap(section, rStar, period, "orbit");
   if (!final || !final.orbit) return { ok: false, reason: "no-return" };
   const residual = Math.abs(final.r - rStar);
-  if (!(residual <= SHOOT_ACCEPT_TOL)) return { ok: false, reason: "not-converged" };
+  const scale = returnAccuracyScale(final);
+  if (!(residual <= SHOOT_ACCEPT_TOL * scale)) return { ok: false, reason: "not-converged" };
   const size = Math.max(...[0, 1].map((k) => (final.hi[k] - final.lo[k]) / box.width[k]));
   if (!(rStar > CYCLE_MIN_EXTENT && size > CYCLE_MIN_EXTENT))
     return { ok: false, reason: "equilibrium-neighbourhood" };
@@ -139,7 +141,7 @@ export function acceptOrbit(section: Section, around: string, rStar: number, per
   // the trace is of the forward field and dt > 0 either way, so this is the forward multiplier;
   // the return map integrated backward is its inverse
   const multiplier = Math.exp(final.traceIntegral);
-  const ownSlope = returnSlope(section, rStar, final.period);
+  const ownSlope = returnSlope(section, rStar, final.period, scale);
   const ownMultiplier = direction === 1 ? multiplier : 1 / multiplier;
   if (!(Math.abs(ownSlope - ownMultiplier) <= MULTIPLIER_AGREEMENT_TOL * Math.max(1, ownMultiplier)))
     return { ok: false, reason: "multiplier-mismatch" };

@@ -13,6 +13,7 @@ import {
   SHOOT_MAX_STEPS,
   SHOOT_PERIODS,
   SHOOT_RELATIVE_TOL,
+  RODAS_MIN_RELATIVE_TOL,
   WINDOW_EXIT_SLACK,
 } from "../constants.js";
 
@@ -38,6 +39,18 @@ export interface Return {
   lo: [number, number];
   hi: [number, number];
   orbit: TrajectoryPath | null;
+  /** Whether RODAS took over a stiff stretch, at its looser tolerance (RODAS_MIN_RELATIVE_TOL). */
+  stiff: boolean;
+}
+
+/**
+ * How much looser than SHOOT_RELATIVE_TOL a return was integrated: 1, or where RODAS took over a
+ * stiff stretch, RODAS_MIN_RELATIVE_TOL / SHOOT_RELATIVE_TOL. The shooting's residual, its
+ * acceptance and the slope's difference step scale with it, so they ask no more than the
+ * integration gives (a relaxation cycle's return wanders by ~1e-9 of the window from start to start).
+ */
+export function returnAccuracyScale(ret: Return): number {
+  return ret.stiff ? Math.max(1, RODAS_MIN_RELATIVE_TOL / SHOOT_RELATIVE_TOL) : 1;
 }
 
 /** The section crossing in [t0, t1] on the interpolant (bisection, then one secant step for the last bits), when it lies on the ray. */
@@ -106,7 +119,7 @@ export function returnMap(section: Section, r: number, guessPeriod: number, mode
   const samples: TrajectoryPath = { t: [], x: [], y: [] };
   const sampleDt = guessPeriod / ORBIT_SAMPLES;
   let nextSample = 0;
-  integrateFlow(model.rhs, start, guessPeriod * SHOOT_PERIODS, {
+  const run = integrateFlow(model.rhs, start, guessPeriod * SHOOT_PERIODS, {
     direction,
     tolerances: tolerancesFor(box.width, SHOOT_RELATIVE_TOL, SHOOT_ABSOLUTE_TOL_OF_WIDTH),
     maxStep: guessPeriod * (mode === "sample" ? SHOOT_SAMPLE_MAX_STEP_OF_PERIOD : SHOOT_MAX_STEP_OF_PERIOD),
@@ -160,11 +173,14 @@ export function returnMap(section: Section, r: number, guessPeriod: number, mode
           lo,
           hi,
           orbit: keepOrbit ? samples : null,
+          stiff: false,
         };
         return false;
       }
       return !strayed(region, box, end);
     },
   });
-  return result;
+  // set in onStep: the compiler cannot see that and takes result for null here
+  const found = result as Return | null;
+  return found && { ...found, stiff: run.method === "odex+rodas" };
 }

@@ -2,6 +2,7 @@ import type { RhsFunction } from "../../model/types.js";
 import {
   QUADRATURE_GRADIENT_STEP,
   RODAS_FIRST_STEP_OF_SCALE,
+  RODAS_MIN_RELATIVE_TOL,
   STIFFNESS_RATIO,
   STIFF_WINDOW_STEPS,
 } from "../constants.js";
@@ -136,8 +137,8 @@ export function integrateRodasLeg(
 
 /**
  * The rest of integrateFlow's run after odex's last accepted point `from` (its time, state,
- * quadrature value and last step): RODAS with the same tolerances, step cap and onStep, and a
- * budget of maxSteps of its own. Evaluations count RODAS's alone.
+ * quadrature value and last step): RODAS with the same tolerances (none tighter than
+ * RODAS_MIN_RELATIVE_TOL), step cap and onStep, and a budget of maxSteps of its own. Evaluations count RODAS's alone.
  */
 export function continueWithRodas(
   rhs: RhsFunction,
@@ -148,14 +149,17 @@ export function continueWithRodas(
 ): IntegrationResult {
   const quad = options.quadrature;
   const n = from.y.length;
+  const loosen = Math.max(1, RODAS_MIN_RELATIVE_TOL / options.tolerances.relative);
   const rodas = integrateRodasLeg(
     {
       rhs,
       jacobian: options.jacobian!,
       sign: options.direction,
-      quadrature: quad ? { integrand: quad.integrand, start: from.q, absolute: quad.absolute } : undefined,
-      relative: options.tolerances.relative,
-      absolute: options.tolerances.absolute,
+      quadrature: quad
+        ? { integrand: quad.integrand, start: from.q, absolute: quad.absolute * loosen }
+        : undefined,
+      relative: options.tolerances.relative * loosen,
+      absolute: options.tolerances.absolute.map((a) => a * loosen),
       maxStep: options.maxStep,
       maxSteps: options.maxSteps,
       // odex's last step is a stable one; none when it stopped before its first

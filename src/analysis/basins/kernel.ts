@@ -210,6 +210,21 @@ function emitStiffTest(jac: string[], span: number): string {
         return low === low && -low * ${L(span)} >= ${L(STIFFNESS_RATIO)}; })()`;
 }
 
+/** Kernel code for the accepted or rejected step's size factor: Dormand–Prince's, or RODAS's once stiff. */
+function emitStepFactor(): string {
+  const L = literal;
+  return `if (!stiff) factor = err === 0 ? ${L(STEP_MAX_GROWTH)} : Math.min(${L(STEP_MAX_GROWTH)}, Math.max(${L(STEP_MIN_SHRINK)}, ${L(STEP_SAFETY)} * Math.exp(${L(STEP_ERROR_EXPONENT)} * Math.log(err))));
+      else factor = err === 0 ? ${L(ROSENBROCK_MAX_GROWTH)} : Math.min(${L(ROSENBROCK_MAX_GROWTH)}, Math.max(${L(ROSENBROCK_MIN_SHRINK)}, ${L(ROSENBROCK_SAFETY)} * Math.exp(-0.25 * Math.log(err))));`;
+}
+
+/** Kernel code after an accepted explicit step: a window of STIFF_WINDOW_STEPS that advanced less than one longest step, at a stiff point, turns RODAS on. */
+function emitStiffnessWatch(jac: string[], maxStep: number): string {
+  return `if (!stiff && ++windowSteps >= ${STIFF_WINDOW_STEPS}) {
+        if (t - windowT < ${literal(maxStep)} && ${emitStiffTest(jac, maxStep)}) stiff = true;
+        windowT = t; windowSteps = 0;
+      }`;
+}
+
 /** The kernel's source for the attractors `targets`: starts in the window `box`, trajectories followed inside `bounds`. */
 export function generateBasinKernel(
   model: Model,
@@ -260,17 +275,13 @@ return function basinKernel(starts, out) {
       const err = Math.sqrt(0.5 * (sa * sa + sb * sb));
       if (!(err === err)) { h *= ${L(NAN_STEP_SHRINK)}; if (h < ${L(KERNEL_MIN_STEP)}) { label = ${LABEL_UNDECIDED}; break; } continue; }
       // step factor 0.9 err^(-1/5) (RODAS: -1/4) through exp and log: V8's Math.pow costs several multiplies
-      if (!stiff) factor = err === 0 ? ${L(STEP_MAX_GROWTH)} : Math.min(${L(STEP_MAX_GROWTH)}, Math.max(${L(STEP_MIN_SHRINK)}, ${L(STEP_SAFETY)} * Math.exp(${L(STEP_ERROR_EXPONENT)} * Math.log(err))));
-      else factor = err === 0 ? ${L(ROSENBROCK_MAX_GROWTH)} : Math.min(${L(ROSENBROCK_MAX_GROWTH)}, Math.max(${L(ROSENBROCK_MIN_SHRINK)}, ${L(ROSENBROCK_SAFETY)} * Math.exp(-0.25 * Math.log(err))));
+      ${emitStepFactor()}
       if (err > 1) { h *= Math.min(1, factor); continue; }
       xPrev = x; yPrev = y;
       const tPrev = t, hs = h, f0a = k1a, f0b = k1b;
       t += h; x = xn; y = yn; k1a = k7a; k1b = k7b; steps++;
       h = Math.min(h * factor, ${L(maxStep)});
-      if (!stiff && ++windowSteps >= ${STIFF_WINDOW_STEPS}) {
-        if (t - windowT < ${L(maxStep)} && ${emitStiffTest(jac, maxStep)}) stiff = true;
-        windowT = t; windowSteps = 0;
-      }
+      ${emitStiffnessWatch(jac, maxStep)}
       ${emitSingularTests(targets.singular, box.width)}
       ${emitStepOutside(bounds, box.width)}
       if (${emitHasLeftWindow("off")} && outside === 0) tExit = tPrev;

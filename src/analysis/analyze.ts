@@ -137,12 +137,12 @@ function analyzeEquilibria(
   options: AnalysisOptions,
   diagnostics: Diagnostic[],
   progress?: ProgressReporter,
-): Pick<Results, "equilibria" | "singularities"> {
+): Pick<Results, "equilibria" | "equilibriumSets" | "singularities"> {
   progress?.("equilibria", 0, 1);
-  const { equilibria, singular } = findEquilibriumCandidates(model, options.equilibria, diagnostics);
+  const { equilibria, singular, sets } = findEquilibriumCandidates(model, options.equilibria, diagnostics);
   const singularities = findSingularities(model, singular);
   progress?.("equilibria", 1, 1);
-  return { equilibria, singularities };
+  return { equilibria, equilibriumSets: sets, singularities };
 }
 
 /**
@@ -228,7 +228,12 @@ function* analyzeCore(
 ): Generator<ParameterTask[], CoreOutput, ParameterTaskResult[]> {
   const diagnostics: Diagnostic[] = [];
   // 1. equilibria and their stability; singular points and lines (never classified)
-  const { equilibria, singularities } = analyzeEquilibria(model, options, diagnostics, progress);
+  const { equilibria, equilibriumSets, singularities } = analyzeEquilibria(
+    model,
+    options,
+    diagnostics,
+    progress,
+  );
 
   // 2. geometry of the portrait: nullclines, the regions they cut out, the direction field
   progress?.("geometry", 0, 1);
@@ -262,7 +267,8 @@ function* analyzeCore(
   const claims = checkClaims({
     model,
     equilibria,
-    equilibriaCapped: diagnostics.some((d) => d.code === "too-many-equilibria"),
+    // a count of equilibria is undecided when the list is capped or the field vanishes on a set
+    equilibriaCapped: diagnostics.some((d) => d.code === "too-many-equilibria") || equilibriumSets.length > 0,
     scenarios,
     studies,
   });
@@ -287,6 +293,7 @@ function* analyzeCore(
     spec: { id: model.spec.id, sha256: model.spec.sha256 },
     model: modelSummary(model),
     equilibria,
+    equilibriumSets,
     singularities,
     nullclines,
     regions,

@@ -64,6 +64,20 @@ export const NEWTON_STEP_TOL = 1e-15;
 export const NEWTON_POLISH_STALLS = 2;
 /** Beyond this count we report a suspected continuum of equilibria instead of listing more. */
 export const MAX_EQUILIBRIA = 50;
+/**
+ * Sets of equilibria (phase/equilibrium-sets.ts): a root's Jacobian, scaled by the window and the
+ * field's scales, is degenerate when its determinant is within this fraction of its squared norm
+ * (rank 1), or its norm is within it of 0 (rank 0). Roots are accepted at ROOT_RESIDUAL_TOL =
+ * 1e-9, so a root on a curve of equilibria shows a determinant of that order; an isolated
+ * hyperbolic equilibrium shows one of order 1.
+ */
+export const DEGENERATE_JACOBIAN_TOL = 1e-6;
+/** Degenerate roots within this many multistart cells of each other (in each state) belong to one set. */
+export const EQUILIBRIUM_SET_LINK_CELLS = 3;
+/** A linked group spanning less than this many cells in both states is one degenerate equilibrium found several times. */
+export const EQUILIBRIUM_SET_MIN_EXTENT_CELLS = 1;
+/** Points of a set kept in results.json (thinned evenly beyond). */
+export const EQUILIBRIUM_SET_MAX_POINTS = 50;
 /** Bisection of a sign change along an edge: 200 halvings exceed the 2^-1074 range of doubles, so adjacency stops it first. */
 export const EDGE_BISECTION_MAX_ITERATIONS = 200;
 /** Intervals per side of the grid on which the component scales max |f_i| are sampled (25 × 25 nodes). */

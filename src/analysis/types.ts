@@ -1,6 +1,7 @@
 import type { Diagnostic } from "../diagnostics/issue.js";
 import type { RESULTS_FORMAT } from "../version.js";
 import type { EquilibriumResult } from "./phase/equilibria.js";
+import type { EquilibriumSetResult } from "./phase/equilibrium-sets.js";
 import type { SingularityResult } from "./phase/singularities.js";
 import type { PortraitTrajectory, ScenarioResult } from "./flow/trajectories.js";
 import type { CycleResult } from "./flow/cycles.js";
@@ -14,6 +15,7 @@ import type { InvasionConditionResult } from "./parameters/invasion.js";
 import type { OutcomeMapResult } from "./parameters/maps.js";
 
 export type { EquilibriumResult } from "./phase/equilibria.js";
+export type { EquilibriumSetResult } from "./phase/equilibrium-sets.js";
 export type {
   SingularityResult,
   SingularityReason,
@@ -75,6 +77,8 @@ export interface Results {
     jacobian: { text: string; tex: string }[][];
   };
   equilibria: EquilibriumResult[];
+  /** Curves and regions where the field vanishes, each one object (not among the equilibria). */
+  equilibriumSets: EquilibriumSetResult[];
   /** Where the field or its Jacobian is not defined or not continuous: points and lines, with evidence, never a type. */
   singularities: SingularityResult[];
   nullclines: NullclineResult[];

@@ -46,6 +46,7 @@ export type DiagnosticDetail =
     }
   | { code: "equilibrium-off-nullcline"; data: { equilibrium: string; nullcline: string } }
   | { code: "too-many-equilibria"; data: { max: number } }
+  | { code: "equilibrium-set"; data: { set: string; kind: "curve" | "region" } }
   | { code: "outcome-search-budget"; data: { parameter: string; evaluations: number } };
 
 export type DiagnosticCode = DiagnosticDetail["code"];

@@ -1,3 +1,4 @@
+import { groupEquilibriumSets, type EquilibriumSetResult } from "./equilibrium-sets.js";
 import type { Model } from "../../model/types.js";
 import type { Diagnostic } from "../../diagnostics/issue.js";
 import { classifyEquilibrium, type StabilityResult } from "./stability.js";
@@ -266,6 +267,8 @@ function splitSingular<T extends { x: [number, number] }>(
 export interface EquilibriumCandidates {
   equilibria: EquilibriumResult[];
   singular: SingularPoint[];
+  /** Curves and regions of equilibria (equilibrium-sets.ts), left out of `equilibria`. */
+  sets: EquilibriumSetResult[];
 }
 
 /** Every equilibrium in the window, and no singular point: see findEquilibriumCandidates. */
@@ -361,6 +364,17 @@ export function findEquilibriumCandidates(
     }
     return 0;
   });
+  // roots on a curve or region of equilibria are one object, not as many equilibria
+  const { isolated, sets } = groupEquilibriumSets(model, found, box, options.gridSize);
+  found.length = 0;
+  found.push(...isolated);
+  for (const set of sets)
+    diagnostics.push({
+      severity: "warning",
+      stage: "equilibria",
+      code: "equilibrium-set",
+      data: { set: set.id, kind: set.kind },
+    });
   if (found.length > MAX_EQUILIBRIA) {
     diagnostics.push({
       severity: "warning",
@@ -391,5 +405,5 @@ export function findEquilibriumCandidates(
       ...classifyEquilibrium(jacobian, box.width),
     };
   });
-  return { equilibria, singular };
+  return { equilibria, singular, sets };
 }

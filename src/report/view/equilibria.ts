@@ -40,8 +40,21 @@ export function buildEquilibriaView({ spec, results, figure }: ViewInput) {
     factors: s.factors.map((f) => ({ math: m(f.tex), words: singularFactorWords(f) })),
     evidence: singularEvidenceWords(s),
   }));
+  // curves and regions of equilibria: one object each, with where they lie
+  const equilibriumSets = results.equilibriumSets.map((q) => ({
+    id: q.id,
+    kind: q.kind === "curve" ? "a curve of equilibria" : "a region where the field vanishes",
+    extent: spec.states
+      .map(
+        (st) =>
+          `${st.name} from ${formatNumberHtml(q.extent[st.name][0])} to ${formatNumberHtml(q.extent[st.name][1])}`,
+      )
+      .join(", "),
+    roots: q.roots,
+  }));
   return {
     equilibria: rows,
+    equilibriumSets,
     singularities,
     stateHeaders: spec.states.map((s) => (s.unit ? `${s.name} (${formatUnit(s.unit)})` : s.name)),
     traceDeterminant: figure("trace-determinant"),

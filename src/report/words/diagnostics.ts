@@ -33,7 +33,9 @@ const DIAGNOSTIC_WORDS: Wording = {
   "equilibrium-off-nullcline": ({ equilibrium, nullcline }) =>
     `equilibrium ${equilibrium} lies on no traced branch of the ${nullcline}-nullcline (an isolated zero or a tangency the grid cannot see)`,
   "too-many-equilibria": ({ max }) =>
-    `more than ${max} equilibria found: the model may have a curve of equilibria; only the first ${max} are listed`,
+    `more than ${max} isolated equilibria found: only the first ${max} are listed, and statements about their number are undecided`,
+  "equilibrium-set": ({ set, kind }) =>
+    `the field vanishes along a whole ${kind === "curve" ? "curve" : "region"} (${set}): its points are not isolated equilibria and are reported as one set, not classified; trajectories that end on it are undecided`,
   "outcome-search-budget": ({ parameter, evaluations }) =>
     `the search for outcome breaks in ${parameter} stopped after ${evaluations} outcome evaluations; the changes it had not located are reported as unresolved, not as breaks`,
 };
